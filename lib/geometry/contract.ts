@@ -1,0 +1,175 @@
+/**
+ * The measurement core's public contract, version 1: the nominal pattern of a bed, the detected points of a
+ * photo, and the report. Everything that crosses a boundary (API, CLI, worker, database) is parsed with these
+ * schemas.
+ *
+ * Frames:
+ * - Bed frame: millimetres (or inches in a pattern whose `units` is "in"; converted once by `patternToMm`),
+ *   origin at the front-left corner of the bed, +X to the right, +Y away from the operator.
+ * - Image frame: pixels, origin at the top-left corner of the photo, +x right, +y down.
+ */
+import { z } from 'zod';
+
+/** Millimetres per inch (exact, by definition). */
+export const MM_PER_IN = 25.4;
+
+/** The most nominal positions a pattern may have (all families together). */
+export const MAX_POSITIONS = 20_000;
+
+const finite = z.number().finite();
+const positive = finite.positive();
+export const Vec2Schema = z.object({ x: finite, y: finite });
+export type Vec2 = z.infer<typeof Vec2Schema>;
+
+export const HOLE_KINDS = ['threaded-insert', 'dog-hole', 'pin-hole', 'other'] as const;
+export type HoleKind = (typeof HOLE_KINDS)[number];
+
+export const CLEARANCE_CLASSES = ['fine', 'medium', 'coarse', 'close', 'normal', 'loose'] as const;
+export type ClearanceClass = (typeof CLEARANCE_CLASSES)[number];
+
+/** What fits in a family's holes, and so how far a hole may stray: one of three forms. */
+export const FitSpecSchema = z.union([
+  z.object({ toleranceMm: positive.max(50) }).strict(),
+  z.object({ fastener: z.string().min(1).max(20), clearance: z.enum(CLEARANCE_CLASSES) }).strict(),
+  z.object({ pinDiameter: positive }).strict(),
+]);
+export type FitSpec = z.infer<typeof FitSpecSchema>;
+
+export const FamilySchema = z.object({
+  id: z.string().min(1).max(40).regex(/^[A-Za-z0-9_-]+$/, 'letters, digits, - and _ only'),
+  kind: z.enum(HOLE_KINDS),
+  /** Human name for labels, e.g. "insert" or "dog"; defaults from kind. */
+  label: z.string().min(1).max(30).optional(),
+  holeDiameter: positive,
+  /** Centre of the family's position (col 0, row 0), in the bed frame. */
+  origin: Vec2Schema,
+  pitch: z.object({ x: positive, y: positive }),
+  count: z.object({ x: z.number().int().min(1).max(2000), y: z.number().int().min(1).max(2000) }),
+  fit: FitSpecSchema,
+});
+export type Family = z.infer<typeof FamilySchema>;
+
+export const RectSchema = z.object({ x: finite, y: finite, width: positive, height: positive });
+export type Rect = z.infer<typeof RectSchema>;
+
+export const PanelSchema = RectSchema.extend({
+  id: z.string().min(1).max(40).regex(/^[A-Za-z0-9_-]+$/, 'letters, digits, - and _ only'),
+});
+export type Panel = z.infer<typeof PanelSchema>;
+
+export const PatternSchema = z
+  .object({
+    version: z.literal(1),
+    name: z.string().min(1).max(120),
+    units: z.enum(['mm', 'in']),
+    bed: z.object({ width: positive, height: positive }),
+    families: z.array(FamilySchema).min(1).max(8),
+    panels: z.array(PanelSchema).max(200).optional(),
+    channels: z.array(RectSchema).max(200).optional(),
+  })
+  .superRefine((p, ctx) => {
+    const total = p.families.reduce((n, f) => n + f.count.x * f.count.y, 0);
+    if (total > MAX_POSITIONS) {
+      ctx.addIssue({ code: 'custom', path: ['families'], message: `the pattern has ${total} positions; at most ${MAX_POSITIONS} are supported` });
+    }
+    const ids = new Set<string>();
+    p.families.forEach((f, i) => {
+      if (ids.has(f.id)) ctx.addIssue({ code: 'custom', path: ['families', i, 'id'], message: `duplicate family id "${f.id}"` });
+      ids.add(f.id);
+    });
+    const panelIds = new Set<string>();
+    (p.panels ?? []).forEach((q, i) => {
+      if (panelIds.has(q.id)) ctx.addIssue({ code: 'custom', path: ['panels', i, 'id'], message: `duplicate panel id "${q.id}"` });
+      panelIds.add(q.id);
+    });
+  });
+export type Pattern = z.infer<typeof PatternSchema>;
+
+const PointPx = z.tuple([finite, finite]);
+
+export const PointsSchema = z.object({
+  image: z.object({ width: z.number().int().positive(), height: z.number().int().positive(), focalPx: positive.optional() }),
+  reference: z.object({
+    sizeMm: positive.max(2000),
+    /** The reference square's four corners in image px, in order around the square. */
+    corners: z.tuple([PointPx, PointPx, PointPx, PointPx]),
+  }),
+  holes: z
+    .array(
+      z.object({
+        x: finite,
+        y: finite,
+        diameterPx: positive,
+        /** Detector's confidence in [0, 1]; 1 when absent. */
+        confidence: z.number().min(0).max(1).optional(),
+      }),
+    )
+    .max(100_000),
+});
+export type Points = z.infer<typeof PointsSchema>;
+
+export const VERDICTS = ['in', 'marginal', 'out', 'missing'] as const;
+export type Verdict = (typeof VERDICTS)[number];
+
+export const ReportPositionSchema = z.object({
+  family: z.string(),
+  col: z.number().int(),
+  row: z.number().int(),
+  label: z.string(),
+  panel: z.string().nullable(),
+  nominal: Vec2Schema,
+  measured: Vec2Schema.nullable(),
+  deviation: z.object({ dx: finite, dy: finite, r: finite }).nullable(),
+  uncertaintyMm: finite.nullable(),
+  toleranceMm: finite,
+  verdict: z.enum(VERDICTS),
+});
+export type ReportPosition = z.infer<typeof ReportPositionSchema>;
+
+export const ReportPanelSchema = z.object({
+  id: z.string(),
+  dx: finite,
+  dy: finite,
+  rotationDeg: finite,
+  positions: z.number().int(),
+  uncertaintyMm: finite,
+  /** The move that puts the panel back (the negative of its offset), in words, mm and inches. */
+  correction: z.string(),
+});
+export type ReportPanel = z.infer<typeof ReportPanelSchema>;
+
+const Uncertain = finite.nullable();
+
+export const ReportSchema = z.object({
+  version: z.literal(1),
+  units: z.literal('mm'),
+  pattern: z.object({ name: z.string() }).passthrough(),
+  positions: z.array(ReportPositionSchema),
+  unmatched: z.array(z.object({ x: finite, y: finite })),
+  panels: z.array(ReportPanelSchema),
+  /** Steps between neighbouring panels: relative offset at their shared seam, mm. */
+  seams: z.array(z.object({ a: z.string(), b: z.string(), dx: finite, dy: finite, r: finite, uncertaintyMm: finite })).default([]),
+  lattice: z.object({
+    rotationDeg: finite,
+    scaleX: Uncertain,
+    scaleY: Uncertain,
+    squarenessDeg: Uncertain,
+    observed: z.boolean(),
+    reason: z.string().optional(),
+    uncertainty: z.object({ rotationDeg: Uncertain, scaleX: Uncertain, scaleY: Uncertain, squarenessDeg: Uncertain }),
+  }),
+  camera: z.object({ focalPx: finite, k1: finite, k2: finite }),
+  summary: z.object({
+    matched: z.number().int(),
+    missing: z.number().int(),
+    rmsMm: finite,
+    maxMm: finite,
+    out: z.number().int(),
+    marginal: z.number().int(),
+    /** Whole-bed verdict: every position in; some marginal or a panel to reseat; positions out. */
+    verdict: z.enum(['pass', 'marginal', 'fail']),
+    /** The verdict and its reasons in one sentence a machinist understands. */
+    sentence: z.string(),
+  }),
+}).passthrough();
+export type Report = z.infer<typeof ReportSchema>;
