@@ -178,7 +178,12 @@ export const jobs = sqliteTable('jobs', {
   createdAt: createdAt(),
   updatedAt: integer('updated_at'),
   finishedAt: integer('finished_at'),
-}, (t) => [index('jobs_claim_idx').on(t.status, t.runAt)]);
+}, (t) => [
+  index('jobs_claim_idx').on(t.status, t.runAt),
+  // the claim's second arm: running jobs whose lease has run out
+  index('jobs_lease_idx').on(t.status, t.leaseExpiresAt),
+  index('jobs_check_idx').on(t.checkId),
+]);
 
 export const shareLinks = sqliteTable('share_links', {
   id: text('id').primaryKey(),
