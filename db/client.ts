@@ -15,6 +15,9 @@ export type Db = LibSQLDatabase<typeof schema> & { $client: Client };
 
 export const DEFAULT_DATABASE_URL = 'file:data/gridproof.db';
 
+/** How long a local-file connection waits for another writer's lock before SQLITE_BUSY, ms. */
+export const BUSY_TIMEOUT_MS = 5000;
+
 /** Folder of the committed migrations (drizzle/), resolved from this file so any cwd works. */
 export const MIGRATIONS_FOLDER = resolve(dirname(fileURLToPath(import.meta.url)), '..', 'drizzle');
 
@@ -25,10 +28,12 @@ export async function openDb(url: string = process.env.DATABASE_URL ?? DEFAULT_D
     const path = url.slice('file:'.length);
     if (path && path !== ':memory:') mkdirSync(dirname(resolve(path)), { recursive: true });
   }
-  const client = createClient({ url, authToken });
+  // The local client keeps a pool of connections; a PRAGMA reaches only the one connection it ran on, so the
+  // busy timeout is given as the client's `timeout` option, which every pooled connection is opened with.
+  const client = createClient({ url, authToken, ...(isFile ? { timeout: BUSY_TIMEOUT_MS } : {}) });
   if (isFile) {
     await client.execute('PRAGMA journal_mode = WAL');
-    await client.execute('PRAGMA busy_timeout = 5000');
+    await client.execute(`PRAGMA busy_timeout = ${BUSY_TIMEOUT_MS}`);
   }
   await client.execute('PRAGMA foreign_keys = ON');
   return drizzle(client, { schema }) as Db;
