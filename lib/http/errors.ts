@@ -1,0 +1,68 @@
+/**
+ * The one error type and the one JSON error shape of Gridproof.
+ *
+ * Use: throw `new AppError('not_found', 404, 'No such bed')` (or a helper below) anywhere in a service or
+ * handler; the route wrapper (lib/http/route.ts) and the action wrapper (lib/http/action.ts) turn it into
+ * `{ "error": { "code", "message", "fields"? } }` with its HTTP status. Anything else thrown becomes a 500
+ * `internal` error whose message reveals nothing (the cause is logged on the server). `fields` maps a
+ * dotted input path (`pattern.families.0.pitch.x`) to a message, for forms. Never put a password or a
+ * token in a message.
+ */
+import { z } from 'zod';
+
+export type ErrorFields = Record<string, string>;
+
+/** The error body every API answer uses. */
+export type ErrorBody = { error: { code: string; message: string; fields?: ErrorFields } };
+
+export const ErrorBodySchema = z.object({
+  error: z.object({ code: z.string(), message: z.string(), fields: z.record(z.string(), z.string()).optional() }),
+});
+
+export class AppError extends Error {
+  constructor(
+    /** Stable machine-readable code, snake_case (`not_found`, `forbidden`, `invalid_input`, …). */
+    public readonly code: string,
+    /** HTTP status. */
+    public readonly status: number,
+    message: string,
+    public readonly fields?: ErrorFields,
+  ) {
+    super(message);
+    this.name = 'AppError';
+  }
+
+  toBody(): ErrorBody {
+    return { error: { code: this.code, message: this.message, ...(this.fields ? { fields: this.fields } : {}) } };
+  }
+}
+
+export const unauthenticated = (message = 'Sign in first.') => new AppError('unauthenticated', 401, message);
+export const forbidden = (message = 'Your role in this workshop does not allow that.') => new AppError('forbidden', 403, message);
+/** Also the answer for another workshop's record: we never confirm that it exists. */
+export const notFound = (what = 'record') => new AppError('not_found', 404, `No such ${what}.`);
+export const conflict = (message: string, fields?: ErrorFields) => new AppError('conflict', 409, message, fields);
+export const invalidInput = (message: string, fields?: ErrorFields) => new AppError('invalid_input', 422, message, fields);
+
+/** Flattens a zod error into `fields` (first message per path) and a one-line summary. */
+export function fromZodError(err: z.ZodError, message = 'Some fields need attention.'): AppError {
+  const fields: ErrorFields = {};
+  for (const issue of err.issues) {
+    const key = issue.path.length ? issue.path.map(String).join('.') : '_';
+    fields[key] ??= issue.message;
+  }
+  return invalidInput(message, fields);
+}
+
+/** Maps anything thrown to an AppError; unknown errors are logged and hidden behind a 500. */
+export function toAppError(err: unknown): AppError {
+  if (err instanceof AppError) return err;
+  if (err instanceof z.ZodError) return fromZodError(err);
+  console.error('[gridproof] unexpected error', err);
+  return new AppError('internal', 500, 'Something went wrong on the server. Try again; if it persists, tell whoever runs this Gridproof.');
+}
+
+/** A JSON Response carrying an AppError. */
+export function errorResponse(err: AppError, headers?: HeadersInit): Response {
+  return Response.json(err.toBody(), { status: err.status, headers });
+}
