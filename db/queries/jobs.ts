@@ -72,19 +72,31 @@ const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
  * Runs `fn`, retrying it on SQLITE_BUSY / SQLITE_LOCKED for up to `budgetMs` (short randomised pauses), then
  * throws a `DatabaseBusyError` that says what was being attempted. Other errors pass through at once.
  * `fn` must be safe to repeat (a whole statement or a whole transaction).
+ *
+ * On a local file, a statement that failed with SQLITE_BUSY is left un-reset by the libsql driver (0.5.x), and
+ * its connection then keeps every later write of that connection uncommitted while holding the write lock. So
+ * after a busy error on a file database the client's connections are reopened (`reconnect`) before the retry.
  */
-export async function withBusyRetry<T>(what: string, fn: () => Promise<T>, budgetMs = Number(process.env.DB_BUSY_RETRY_MS ?? 3_000)): Promise<T> {
+export async function withBusyRetry<T>(what: string, fn: () => Promise<T>, opts: { db?: DbExecutor; budgetMs?: number } = {}): Promise<T> {
+  const budgetMs = opts.budgetMs ?? Number(process.env.DB_BUSY_RETRY_MS ?? 3_000);
   const started = Date.now();
   for (let attempt = 0; ; attempt++) {
     try {
       return await fn();
     } catch (e) {
       if (!isBusyError(e)) throw e;
+      await resetAfterBusy(opts.db);
       const waited = Date.now() - started;
       if (waited >= budgetMs) throw new DatabaseBusyError(what, waited, e);
       await sleep(Math.min(25 * 2 ** attempt, 250) * (0.5 + Math.random()));
     }
   }
+}
+
+/** Reopens a local-file client's connections after SQLITE_BUSY (see `withBusyRetry`). */
+export async function resetAfterBusy(db: DbExecutor | undefined): Promise<void> {
+  const client = db && '$client' in db ? (db as Db).$client : undefined;
+  if (client && client.protocol === 'file') await client.reconnect();
 }
 
 // ---------------------------------------------------------------------------------------------------------
@@ -193,7 +205,7 @@ export async function claimJob(db: DbExecutor, opts: ClaimOptions): Promise<Clai
         WHERE (j.status = 'queued' AND j.run_at <= ${now})
            OR (j.status = 'running' AND j.lease_expires_at < ${now} AND j.attempts < j.max_attempts)
         ORDER BY j.run_at LIMIT 1)`)
-      .returning());
+      .returning(), { db });
   const row = rows[0];
   if (!row) return null;
   return { ...row, lockToken: token };
@@ -205,7 +217,7 @@ export async function renewLease(db: DbExecutor, jobId: string, token: string, l
     db.update(jobs)
       .set({ leaseExpiresAt: now + leaseMs, updatedAt: now })
       .where(and(eq(jobs.id, jobId), eq(jobs.lockToken, token), eq(jobs.status, 'running')))
-      .returning({ id: jobs.id }));
+      .returning({ id: jobs.id }), { db });
   return rows.length === 1;
 }
 
@@ -223,7 +235,7 @@ export async function finishJobInTx(tx: DbExecutor, jobId: string, token: string
 
 /** Marks a job done when it is still held with `token`; a stale worker's call is a no-op returning false. */
 export async function completeJob(db: Db, jobId: string, token: string, now = Date.now()): Promise<boolean> {
-  return withBusyRetry('finish a job', () => finishJobInTx(db, jobId, token, now));
+  return withBusyRetry('finish a job', () => finishJobInTx(db, jobId, token, now), { db });
 }
 
 /** Thrown inside a result transaction when the job's token is stale, so that the transaction rolls back. */
@@ -278,7 +290,7 @@ export async function failJob(db: Db, jobId: string, token: string, input: FailI
       : input.error);
     await failJobRow(tx, job, message, input.error, now);
     return { outcome: 'failed', attempts: job.attempts, message } as const;
-  }));
+  }), { db });
 }
 
 async function failJobRow(tx: DbExecutor, job: Job, message: string, lastError: string, now: number) {
@@ -306,5 +318,5 @@ export async function reapExhaustedJobs(db: Db, now = Date.now()): Promise<numbe
       await failJobRow(tx, job, message, job.lastError ?? 'lease expired on the last attempt', now);
     }
     return rows.length;
-  }));
+  }), { db });
 }
