@@ -1,0 +1,7 @@
+/** Gridproof's mail: settings, transport, local development server, templates and the outbox. */
+export { APP_NAME, mailConfigFromEnv, type MailConfig } from './config';
+export { createMailer, type Mailer, type MailTransport, type OutgoingMessage } from './transport';
+export { startLocalSmtp, listLocalMail, getLocalMail, type LocalMail, type LocalMailFull, type LocalSmtpServer } from './local-smtp';
+export { reportMail, invitationMail, passwordResetMail, MAIL_KINDS, type MailContent, type MailKind, type ReportMailInput, type InvitationMailInput, type PasswordResetMailInput } from './templates';
+export { deliverPendingMail, queueMail, type DeliverOptions, type DeliverResult } from './outbox';
+export { escapeHtml } from './html';
