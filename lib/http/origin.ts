@@ -52,3 +52,11 @@ export function assertSameOrigin(method: string, headers: Headers, requestUrl?: 
 export function clientIp(headers: Headers): string | null {
   return headers.get('x-forwarded-for')?.split(',')[0]?.trim() || headers.get('x-real-ip') || null;
 }
+
+/** The public base URL of this Gridproof (for links): APP_URL, else the request's own origin. */
+export function publicBaseUrl(req: Request): string {
+  if (process.env.APP_URL) return process.env.APP_URL.replace(/\/$/, '');
+  const host = req.headers.get('x-forwarded-host')?.split(',')[0]?.trim() || req.headers.get('host');
+  const proto = req.headers.get('x-forwarded-proto')?.split(',')[0]?.trim() || new URL(req.url).protocol.replace(':', '');
+  return host ? `${proto}://${host}` : new URL(req.url).origin;
+}
