@@ -1,0 +1,40 @@
+/** Shared set-up for the mail tests: a migrated SQLite database in a temp dir and a free local port. */
+import { mkdtemp, rm } from 'node:fs/promises';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import sharp from 'sharp';
+import { migrateDb, openDb, type Db } from '@/db/client';
+import { workshops } from '@/db/schema';
+
+export async function tempDir(prefix: string): Promise<{ dir: string; cleanup: () => Promise<void> }> {
+  const dir = await mkdtemp(join(tmpdir(), `gridproof-${prefix}-`));
+  return { dir, cleanup: () => rm(dir, { recursive: true, force: true }) };
+}
+
+/** A real migrated database file in `dir`, with one workshop. */
+export async function migratedDb(dir: string): Promise<{ db: Db; workshopId: string }> {
+  const db = await openDb(`file:${join(dir, 'test.db')}`);
+  await migrateDb(db);
+  const workshopId = 'ws-1';
+  await db.insert(workshops).values({ id: workshopId, name: 'North Bench <Shop>' });
+  return { db, workshopId };
+}
+
+/** A port nothing listens on (bound once by the OS, then released). */
+export async function freePort(): Promise<number> {
+  return new Promise((ok, fail) => {
+    const s = createServer();
+    s.once('error', fail);
+    s.listen(0, '127.0.0.1', () => {
+      const addr = s.address();
+      const port = typeof addr === 'object' && addr ? addr.port : 0;
+      s.close(() => ok(port));
+    });
+  });
+}
+
+/** A small real PNG (sharp encodes it), standing in for the deviation map the caller renders. */
+export async function mapPng(): Promise<Buffer> {
+  return sharp({ create: { width: 48, height: 32, channels: 3, background: { r: 40, g: 120, b: 90 } } }).png().toBuffer();
+}

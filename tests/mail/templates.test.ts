@@ -1,0 +1,81 @@
+/**
+ * Templates and settings without a server: escaping of user-given text (& and < in text, quotes in attribute
+ * values as the HTML standard's syntax requires, from memory; escaping all of & < > " ' ` is common practice),
+ * refusal of non-http links, subject
+ * lines free of CR/LF (a line break in a header field would start a new header, RFC 5322 §2.2), and the
+ * validation of the SMTP environment.
+ */
+import { describe, expect, it } from 'vitest';
+import { mailConfigFromEnv } from '@/lib/mail/config';
+import { escapeHtml } from '@/lib/mail/html';
+import { invitationMail, passwordResetMail, reportMail } from '@/lib/mail/templates';
+
+const hostile = '<img src=x onerror="alert(1)">\'`&';
+
+describe('mail templates', () => {
+  it('escapes every user-given field in the HTML part and keeps it verbatim in the text part', () => {
+    const m = reportMail({
+      workshopName: hostile, senderName: hostile, bedName: hostile, checkTitle: 'ok', linkUrl: 'https://a.test/s/1',
+      verdict: 'fail', verdictSentence: hostile, note: hostile,
+    });
+    expect(m.html).not.toContain('<img src=x');
+    expect(m.html).toContain('&lt;img src=x onerror=&quot;alert(1)&quot;&gt;&#39;&#96;&amp;');
+    expect(m.text).toContain(hostile);
+    for (const mail of [
+      invitationMail({ workshopName: hostile, inviterName: hostile, role: 'owner', acceptUrl: 'https://a.test/i/1', expiresAt: 0 }),
+      passwordResetMail({ userName: hostile, workshopName: hostile, resetUrl: 'https://a.test/r/1', expiresAt: 0 }),
+    ]) {
+      expect(mail.html).not.toContain('<img src=x');
+      expect(mail.html).toContain(escapeHtml(hostile));
+    }
+  });
+
+  it('names the role and what it may do in an invitation for each role', () => {
+    for (const role of ['owner', 'machinist', 'reviewer'] as const) {
+      const m = invitationMail({ workshopName: 'W', inviterName: 'I', role, acceptUrl: 'https://a.test/i/1', expiresAt: 0 });
+      expect(m.text).toContain(`as ${role}.`);
+      expect(m.html).toContain(`<strong>${role}</strong>`);
+      expect(m.text).toContain('1970-01-01 00:00 UTC');
+    }
+  });
+
+  it('refuses links that are not http or https', () => {
+    expect(() => reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'javascript:alert(1)', verdict: 'pass', verdictSentence: 'ok' })).toThrow(/http/);
+    expect(() => passwordResetMail({ userName: 'U', resetUrl: 'data:text/html,hi', expiresAt: 0 })).toThrow(/http/);
+  });
+
+  it('keeps line breaks out of the subject', () => {
+    const m = reportMail({ workshopName: 'W', senderName: 'Eve\r\nBcc: all@example.test', linkUrl: 'https://a.test/s/1', verdict: 'pass', verdictSentence: 'ok' });
+    expect(m.subject).not.toMatch(/[\r\n]/);
+    expect(m.subject.startsWith('Eve Bcc: all@example.test shared')).toBe(true);
+  });
+
+  it('attaches a map only when one is given', () => {
+    const without = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'pass', verdictSentence: 'ok' });
+    expect(without.html).not.toContain('<img');
+    const svg = Buffer.from('<svg xmlns="http://www.w3.org/2000/svg" width="4" height="4"/>');
+    const withSvg = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'pass', verdictSentence: 'ok', map: { content: svg, contentType: 'image/svg+xml' } });
+    expect(withSvg.html).toContain(`src="data:image/svg+xml;base64,${svg.toString('base64')}"`);
+  });
+});
+
+describe('mail settings from the environment', () => {
+  it('uses the configured SMTP server, with 465 meaning TLS from the first byte', () => {
+    const c = mailConfigFromEnv({ SMTP_HOST: 'smtp.example.test', SMTP_PORT: '465', SMTP_USER: 'u', SMTP_PASS: 'p', MAIL_FROM: 'Gridproof <g@example.test>' });
+    expect(c).toMatchObject({ mode: 'smtp', host: 'smtp.example.test', port: 465, secure: true, auth: { user: 'u', pass: 'p' }, from: 'Gridproof <g@example.test>' });
+    // Port 587 is mail submission with STARTTLS (RFC 6409); it is the default without SMTP_SECURE.
+    expect(mailConfigFromEnv({ SMTP_HOST: 'smtp.example.test' })).toMatchObject({ port: 587, secure: false, auth: undefined });
+  });
+
+  it('falls back to the local development server outside production', () => {
+    expect(mailConfigFromEnv({ NODE_ENV: 'development' })).toMatchObject({ mode: 'local', host: '127.0.0.1', port: 2525 });
+    expect(mailConfigFromEnv({ LOCAL_SMTP_PORT: '2600' })).toMatchObject({ mode: 'local', port: 2600 });
+  });
+
+  it('names each bad variable', () => {
+    expect(() => mailConfigFromEnv({ NODE_ENV: 'production' })).toThrow(/SMTP_HOST: SMTP_HOST is required in production/);
+    expect(() => mailConfigFromEnv({ SMTP_HOST: 'h', SMTP_PORT: '70000' })).toThrow(/SMTP_PORT/);
+    expect(() => mailConfigFromEnv({ SMTP_HOST: 'h', SMTP_USER: 'u' })).toThrow(/SMTP_USER and SMTP_PASS/);
+    expect(() => mailConfigFromEnv({ SMTP_HOST: 'h', SMTP_SECURE: 'maybe' })).toThrow(/SMTP_SECURE/);
+  });
+});
