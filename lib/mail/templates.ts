@@ -65,7 +65,7 @@ export const ReportMailInputSchema = z.object({
   /** The deviation map, shown inline (PNG preferred: many mail readers do not show SVG). */
   map: z
     .object({
-      content: z.instanceof(Uint8Array),
+      content: z.custom<Uint8Array>((v) => v instanceof Uint8Array, 'the map must be bytes (Buffer or Uint8Array)'),
       contentType: z.enum(['image/png', 'image/svg+xml']),
       /** Alt text; defaults to a description of the map. */
       alt: z.string().max(200).optional(),
