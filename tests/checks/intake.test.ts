@@ -8,7 +8,6 @@ import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import sharp from 'sharp';
 import { afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { eq } from 'drizzle-orm';
 import { checks, jobs, photos } from '@/db/schema';
 import { intakePhoto, IntakeError } from '@/lib/checks/intake';
 import { sniffImageType } from '@/lib/checks/sniff';
