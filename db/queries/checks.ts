@@ -138,6 +138,8 @@ export interface AnalysisResult {
   report: Report;
   /** `needs-review` when the fit holds but a person should look before trusting it. */
   status: Extract<CheckStatus, 'done' | 'needs-review'>;
+  /** Why it needs review (shown as the check's stage), when it does. */
+  reviewReason?: string | null;
   now?: number;
 }
 
@@ -179,7 +181,7 @@ export async function saveAnalysisResult(db: Db, r: AnalysisResult): Promise<voi
     for (let i = 0; i < panelRows.length; i += CHUNK) await tx.insert(panelResults).values(panelRows.slice(i, i + CHUNK));
     await tx.update(checks).set({
       status: r.status,
-      stage: null,
+      stage: r.status === 'needs-review' ? (r.reviewReason ?? 'needs review') : null,
       progress: 1,
       error: null,
       analysisVersion: r.analysisVersion,

@@ -1,0 +1,199 @@
+/**
+ * The worker's analysis of one check: load the photo from storage → find the reference square and the holes
+ * (vision) → fit them to the bed's pattern (measurement core) → write the report, detections, positions,
+ * panels and summary in ONE transaction that also finishes the job under its token (db/queries/checks.ts).
+ * Stages reported on the check: 'reading photo', 'finding square', 'finding holes', 'fitting', with progress.
+ *
+ * The re-fit (after review edits) skips vision: the check's stored, user-edited detections are fitted again.
+ *
+ * Vision and fit are given as `AnalysisDeps` (bound to lib/vision and lib/geometry in lib/checks/pipeline.ts),
+ * which keeps this module about order, progress, errors and storage of results.
+ */
+import { ZodError } from 'zod';
+import type { Db } from '@/db/client';
+import { ANALYSIS_VERSION, getCheckById, saveAnalysisResult, setCheckStage } from '@/db/queries/checks';
+import { LeaseLostError, type ClaimedJob } from '@/db/queries/jobs';
+import { getPattern } from '@/db/queries/patterns';
+import { getPhotoById, setPhotoSize } from '@/db/queries/photos';
+import { PatternSchema, PointsSchema, type Pattern, type Points, type Report } from '@/lib/geometry/contract';
+import { BlobNotFoundError, type Storage } from '@/lib/storage';
+import { CornersSchema, type Corners } from './intake';
+import { needsReview } from './review';
+
+/** Progress (0…1) at which each stage starts; the stage runs until the next one starts. */
+export const STAGES = {
+  'reading photo': 0.02,
+  'finding square': 0.15,
+  'finding holes': 0.4,
+  fitting: 0.85,
+} as const;
+export type Stage = keyof typeof STAGES;
+
+export interface DetectOptions {
+  /** Measured side of the reference square, mm. */
+  referenceMm: number;
+  /** User-marked reference corners in image px, or null to find the square. */
+  corners: Corners | null;
+  /** Called by vision as it moves on; `fraction` (0…1) is progress within the stage when known. */
+  onStage?: (stage: string, fraction?: number) => void;
+}
+
+export interface AnalysisDeps {
+  /** Photo bytes → detected points (image px). */
+  detect: (bytes: Buffer, options: DetectOptions) => Promise<Points>;
+  /** Detected points + nominal pattern → report (bed mm). */
+  analyze: (points: Points, pattern: Pattern) => Report | Promise<Report>;
+  /** True for vision's input errors (no square, unreadable image…), which another attempt cannot fix. */
+  isInputError: (error: unknown) => boolean;
+}
+
+/** An error another attempt cannot fix: the job fails at once with this message for the person. */
+export class PermanentJobError extends Error {
+  constructor(message: string, options?: { cause?: unknown }) {
+    super(message, options);
+    this.name = 'PermanentJobError';
+  }
+}
+
+export interface JobContext {
+  db: Db;
+  storage: Storage;
+  job: ClaimedJob;
+  /** Throws `LeaseLostError` once the worker no longer holds the job (checked between stages). */
+  assertHeld: () => void;
+  /** Test hook: pause this long after reading the photo (WORKER_TEST_DELAY_MS, never in production). */
+  testDelayMs: number;
+}
+
+const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
+
+/** Maps vision's stage names onto ours (anything about the square / the holes). */
+function visionStage(name: string): Stage {
+  const n = name.toLowerCase();
+  if (n.includes('square') || n.includes('corner') || n.includes('reference')) return 'finding square';
+  if (n.includes('hole') || n.includes('detect') || n.includes('blob')) return 'finding holes';
+  if (n.includes('fit')) return 'fitting';
+  return 'reading photo';
+}
+
+/** Progress of `stage` at `fraction` of the way through it. */
+export function stageProgress(stage: Stage, fraction = 0): number {
+  const order = Object.keys(STAGES) as Stage[];
+  const start = STAGES[stage];
+  const next = order[order.indexOf(stage) + 1];
+  const end = next ? STAGES[next] : 0.98;
+  return start + (end - start) * Math.max(0, Math.min(1, fraction));
+}
+
+async function loadInputs(ctx: JobContext) {
+  const checkId = ctx.job.checkId;
+  if (!checkId) throw new PermanentJobError('This job names no check.');
+  const check = await getCheckById(ctx.db, checkId);
+  if (!check) throw new PermanentJobError('The check was deleted before it could be analysed.');
+  const patternRow = await getPattern(ctx.db, check.bedId, check.patternId);
+  if (!patternRow) throw new PermanentJobError('The bed pattern this check was made against no longer exists. Upload the photo again.');
+  let pattern: Pattern;
+  try {
+    pattern = PatternSchema.parse(JSON.parse(patternRow.json));
+  } catch (e) {
+    const detail = e instanceof ZodError ? e.issues.slice(0, 3).map((i) => `${i.path.join('.')}: ${i.message}`).join('; ') : 'not valid JSON';
+    throw new PermanentJobError(`The bed's pattern has problems (${detail}). Fix the bed setup, then upload the photo again.`, { cause: e });
+  }
+  return { check, pattern };
+}
+
+/** Photo → points → report for the job's check. */
+export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Promise<void> {
+  const { check, pattern } = await loadInputs(ctx);
+  const held = { jobId: ctx.job.id, token: ctx.job.lockToken };
+  // progress writes are chained so they land in order; the chain is awaited before the result is saved
+  let writes: Promise<unknown> = Promise.resolve();
+  let last = -1;
+  const report = (stage: Stage, fraction = 0) => {
+    const p = stageProgress(stage, fraction);
+    if (p < last) return; // never go backwards
+    last = p;
+    writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, p)).catch(() => undefined);
+  };
+
+  report('reading photo');
+  await writes;
+  ctx.assertHeld();
+  if (!check.photoId) throw new PermanentJobError('The photo of this check was deleted. Upload it again.');
+  const photo = await getPhotoById(ctx.db, check.photoId);
+  if (!photo) throw new PermanentJobError('The photo of this check was deleted. Upload it again.');
+  let bytes: Buffer;
+  try {
+    bytes = await ctx.storage.getBytes(photo.storageKey);
+  } catch (e) {
+    if (e instanceof BlobNotFoundError) throw new PermanentJobError('The photo file is missing from storage. Upload the photo again.', { cause: e });
+    throw e;
+  }
+  if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
+  ctx.assertHeld();
+
+  const corners = check.cornersJson ? CornersSchema.parse(JSON.parse(check.cornersJson)) : null;
+  report('finding square');
+  let points: Points;
+  try {
+    points = await deps.detect(bytes, { referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction) });
+  } catch (e) {
+    if (deps.isInputError(e)) throw new PermanentJobError(withHint((e as Error).message, corners !== null), { cause: e });
+    throw e;
+  }
+  points = PointsSchema.parse(points);
+  ctx.assertHeld();
+  await fitAndSave(ctx, deps, check.id, pattern, points, report, () => writes);
+  await setPhotoSize(ctx.db, photo.id, points.image.width, points.image.height).catch(() => undefined);
+}
+
+function withHint(message: string, cornersGiven: boolean): string {
+  const hint = cornersGiven
+    ? 'Check the marked corners, or try another photo taken straight from above in even light.'
+    : 'Try another photo taken straight from above in even light, or mark the reference square\'s corners by hand.';
+  return /[.!?]$/.test(message.trim()) ? `${message.trim()} ${hint}` : `${message.trim()}. ${hint}`;
+}
+
+/** Re-fit after review: the check's stored (edited) detections → report; no vision. */
+export async function runCheckRefit(ctx: JobContext, deps: AnalysisDeps): Promise<void> {
+  const { check, pattern } = await loadInputs(ctx);
+  const held = { jobId: ctx.job.id, token: ctx.job.lockToken };
+  if (!check.detectionsJson) throw new PermanentJobError('This check has no detections to fit yet. Mark the square and the holes in review first.');
+  const parsed = PointsSchema.safeParse(JSON.parse(check.detectionsJson));
+  if (!parsed.success) throw new PermanentJobError('The edited detections are not valid points. Open the review again and redo the edit.');
+  let writes: Promise<unknown> = Promise.resolve();
+  const report = (stage: Stage, fraction = 0) => {
+    writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, stageProgress(stage, fraction))).catch(() => undefined);
+  };
+  if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
+  await fitAndSave(ctx, deps, check.id, pattern, parsed.data, report, () => writes);
+}
+
+async function fitAndSave(
+  ctx: JobContext, deps: AnalysisDeps, checkId: string, pattern: Pattern, points: Points,
+  report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
+) {
+  report('fitting');
+  let result: Report;
+  try {
+    result = await deps.analyze(points, pattern);
+  } catch (e) {
+    if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, false), { cause: e });
+    throw e;
+  }
+  await pending();
+  ctx.assertHeld();
+  const review = needsReview(result);
+  await saveAnalysisResult(ctx.db, {
+    checkId,
+    jobId: ctx.job.id,
+    token: ctx.job.lockToken,
+    analysisVersion: ANALYSIS_VERSION,
+    detections: points,
+    report: result,
+    status: review ? 'needs-review' : 'done',
+    reviewReason: review,
+  });
+}
+
+export { LeaseLostError };
