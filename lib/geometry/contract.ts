@@ -123,6 +123,8 @@ export const ReportPositionSchema = z.object({
   uncertaintyMm: finite.nullable(),
   toleranceMm: finite,
   verdict: z.enum(VERDICTS),
+  /** True when a missing position lies under the reference sheet (expected to be unseen). */
+  hidden: z.boolean().optional(),
 });
 export type ReportPosition = z.infer<typeof ReportPositionSchema>;
 
@@ -133,6 +135,8 @@ export const ReportPanelSchema = z.object({
   rotationDeg: finite,
   positions: z.number().int(),
   uncertaintyMm: finite,
+  /** 1σ of rotationDeg, degrees. */
+  rotationUncertaintyDeg: finite.optional(),
   /** The move that puts the panel back (the negative of its offset), in words, mm and inches. */
   correction: z.string(),
 });

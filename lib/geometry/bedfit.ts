@@ -1,0 +1,260 @@
+/**
+ * Joint Levenberg–Marquardt fit of the lens and the bed: observed hole centre (image px) =
+ * distort(H(panel_j(nominal))), where
+ * - nominal is the position's nominal bed point (mm, bed frame),
+ * - panel_j(n) = c_j + R(ρ_j)(n − c_j) + (dx_j, dy_j) is panel j's rigid offset (mm, rad) about its centre c_j,
+ *   with zero mean over the fitted panels (the gauge: a common move is the camera's),
+ * - H is a free plane homography from the bed lattice frame (mm) to undistorted image px; it holds the camera's
+ *   perspective and the lattice's global shape, which the photo alone cannot tell apart (the reference square
+ *   separates them, see shape.ts); being common to all panels, its shape is set by the shape within panels,
+ * - distort is Brown–Conrady radial k1, k2 about the principal point (camera.ts), fitted from straightness.
+ * Robust: Huber-weighted IRLS around LM. Returns the estimates with their covariance (σ² (JᵀWJ)⁻¹).
+ */
+import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
+import { cholesky, choleskySolve, invertSpd } from './linalg';
+import { normalisingTransform, type Pt } from './homography';
+import { undistortPx, type Lens } from './camera';
+import { huberWeight, madSigma } from './robust';
+import type { PanelInfo } from './lattice';
+
+export interface BedFitInput {
+  /** Nominal bed points, mm (x0, y0, x1, y1, …). */
+  nominal: Float64Array;
+  /** Observed centres, image px (u0, v0, …). */
+  observed: Float64Array;
+  panel: Int32Array;
+  n: number;
+  panels: PanelInfo[];
+  lens: Lens;
+  /** Initial bed → undistorted-px homography. */
+  H0: Mat3;
+  fitDistortion?: boolean;
+  /** Per-match prior weights in [0, 1] (detector confidence). */
+  weights?: Float64Array;
+  warm?: BedModel;
+}
+
+export interface BedModel {
+  H: Mat3;
+  Hinv: Mat3;
+  lens: Lens;
+  panelDx: Float64Array;
+  panelDy: Float64Array;
+  panelRot: Float64Array;
+  /** Parameter index of panel j's dx (dy = +1, rot = +2), or −1 if the panel had too few holes to fit. */
+  panelParam: Int32Array;
+  /** Covariance of all parameters (np × np, row-major); parameters 0–7 homography (normalised), 8–9 k1 k2. */
+  cov: Float64Array;
+  np: number;
+  /** Robust 1σ of the image residuals, px (per axis). */
+  sigmaPx: number;
+  /** Final IRLS weights per match. */
+  weights: Float64Array;
+  /** Residuals per match, px (observed − predicted). */
+  residualPx: Float64Array;
+  /** Normalisations used by the parameterisation (H = Ti⁻¹ Ĥ Tb). */
+  Tb: Mat3;
+  Ti: Mat3;
+  hHat: Float64Array;
+}
+
+const NG = 10;
+
+/** Maps an observed image point (px) to the bed lattice frame (mm) through the fitted lens and homography. */
+export function toLattice(m: BedModel, u: number, v: number): [number, number] {
+  const [x, y] = undistortPx(m.lens, u, v);
+  return applyH(m.Hinv, x, y);
+}
+
+/** Predicted image point (px) of nominal (x, y) in panel j. */
+export function predictPx(m: BedModel, x: number, y: number, j: number, panels: PanelInfo[]): [number, number] {
+  const q = panels[j]!;
+  const c = Math.cos(m.panelRot[j]!), s = Math.sin(m.panelRot[j]!);
+  const ax = x - q.cx, ay = y - q.cy;
+  const px = q.cx + c * ax - s * ay + m.panelDx[j]!, py = q.cy + s * ax + c * ay + m.panelDy[j]!;
+  const [uu, vv] = applyH(m.H, px, py);
+  const xn = (uu - m.lens.cx) / m.lens.fPx, yn = (vv - m.lens.cy) / m.lens.fPx;
+  const r2 = xn * xn + yn * yn, d = 1 + m.lens.k1 * r2 + m.lens.k2 * r2 * r2;
+  return [m.lens.cx + m.lens.fPx * xn * d, m.lens.cy + m.lens.fPx * yn * d];
+}
+
+export function fitBed(inp: BedFitInput): BedModel {
+  const { n, panels, nominal, observed } = inp;
+  const fitK = inp.fitDistortion !== false;
+  // Which panels get parameters: those with ≥ 3 matches.
+  const perPanel = new Int32Array(panels.length);
+  for (let k = 0; k < n; k++) perPanel[inp.panel[k]!]!++;
+  const panelParam = new Int32Array(panels.length).fill(-1);
+  let np = NG;
+  const fitted: number[] = [];
+  if (panels.length > 1) panels.forEach((_, j) => { if (perPanel[j]! >= 3) { panelParam[j] = np; np += 3; fitted.push(j); } });
+  const nomPts: Pt[] = [], obsPts: Pt[] = [];
+  for (let k = 0; k < n; k++) { nomPts.push([nominal[2 * k]!, nominal[2 * k + 1]!]); obsPts.push([observed[2 * k]!, observed[2 * k + 1]!]); }
+  const Tb = inp.warm?.Tb ?? normalisingTransform(nomPts), Ti = inp.warm?.Ti ?? normalisingTransform(obsPts);
+  const sb = Tb[0], si = Ti[0];
+  const lens = { ...inp.lens };
+  const theta = new Float64Array(np);
+  if (inp.warm && inp.warm.np === np) {
+    theta.set(inp.warm.hHat.subarray(0, 8));
+    theta[8] = inp.warm.lens.k1; theta[9] = inp.warm.lens.k2;
+    fitted.forEach((j) => { const b = panelParam[j]!; theta[b] = inp.warm!.panelDx[j]!; theta[b + 1] = inp.warm!.panelDy[j]!; theta[b + 2] = inp.warm!.panelRot[j]!; });
+  } else {
+    const hh = mat3Mul(Ti, mat3Mul(inp.H0, mat3Inv(Tb)));
+    for (let i = 0; i < 8; i++) theta[i] = hh[i]! / hh[8];
+    theta[8] = inp.lens.k1; theta[9] = inp.lens.k2;
+  }
+  const prior = inp.weights ?? new Float64Array(n).fill(1);
+  const w = Float64Array.from(prior);
+  const res = new Float64Array(2 * n);
+  const J = new Float64Array(2 * 13);
+  const cols = new Int32Array(13);
+  const { cx, cy, fPx } = lens;
+
+  /** Residual (and Jacobian into J/cols) of match k at parameters t. Returns number of columns used. */
+  const evalMatch = (t: Float64Array, k: number, out: Float64Array, wantJ: boolean): number => {
+    const nx = nominal[2 * k]!, ny = nominal[2 * k + 1]!, j = inp.panel[k]!;
+    const b = panelParam[j]!;
+    let px = nx, py = ny, ax = 0, ay = 0, c = 1, s = 0;
+    if (b >= 0) {
+      const q = panels[j]!;
+      c = Math.cos(t[b + 2]!); s = Math.sin(t[b + 2]!);
+      ax = nx - q.cx; ay = ny - q.cy;
+      px = q.cx + c * ax - s * ay + t[b]!; py = q.cy + s * ax + c * ay + t[b + 1]!;
+    }
+    const qx = sb * px + Tb[2], qy = sb * py + Tb[5];
+    const den = t[6]! * qx + t[7]! * qy + 1;
+    const wx = (t[0]! * qx + t[1]! * qy + t[2]!) / den, wy = (t[3]! * qx + t[4]! * qy + t[5]!) / den;
+    const uu = (wx - Ti[2]) / si, vv = (wy - Ti[5]) / si;
+    const xn = (uu - cx) / fPx, yn = (vv - cy) / fPx;
+    const r2 = xn * xn + yn * yn, k1 = t[8]!, k2 = t[9]!;
+    const d = 1 + k1 * r2 + k2 * r2 * r2;
+    out[0] = cx + fPx * xn * d - observed[2 * k]!;
+    out[1] = cy + fPx * yn * d - observed[2 * k + 1]!;
+    if (!wantJ) return 0;
+    const dp = k1 + 2 * k2 * r2;
+    // d obs / d (uu, vv)
+    const D00 = d + 2 * xn * xn * dp, D01 = 2 * xn * yn * dp, D11 = d + 2 * yn * yn * dp;
+    // d (uu, vv) / d (wx, wy) = 1/si; chain to d obs / d w
+    const E00 = D00 / si, E01 = D01 / si, E11 = D11 / si;
+    const gw = [qx / den, qy / den, 1 / den];
+    // wx depends on t0..2 and t6,7; wy on t3..5 and t6,7
+    let m = 0;
+    for (let i = 0; i < 3; i++) { cols[m] = i; J[m] = E00 * gw[i]!; J[13 + m] = E01 * gw[i]!; m++; }
+    for (let i = 0; i < 3; i++) { cols[m] = 3 + i; J[m] = E01 * gw[i]!; J[13 + m] = E11 * gw[i]!; m++; }
+    const g6x = (-wx * qx) / den, g6y = (-wy * qx) / den, g7x = (-wx * qy) / den, g7y = (-wy * qy) / den;
+    cols[m] = 6; J[m] = E00 * g6x + E01 * g6y; J[13 + m] = E01 * g6x + E11 * g6y; m++;
+    cols[m] = 7; J[m] = E00 * g7x + E01 * g7y; J[13 + m] = E01 * g7x + E11 * g7y; m++;
+    cols[m] = 8; J[m] = fitK ? fPx * xn * r2 : 0; J[13 + m] = fitK ? fPx * yn * r2 : 0; m++;
+    cols[m] = 9; J[m] = fitK ? fPx * xn * r2 * r2 : 0; J[13 + m] = fitK ? fPx * yn * r2 * r2 : 0; m++;
+    if (b >= 0) {
+      // d w / d q (homography Jacobian), d q / d p = sb
+      const a00 = ((t[0]! - wx * t[6]!) / den) * sb, a01 = ((t[1]! - wx * t[7]!) / den) * sb;
+      const a10 = ((t[3]! - wy * t[6]!) / den) * sb, a11 = ((t[4]! - wy * t[7]!) / den) * sb;
+      const F00 = E00 * a00 + E01 * a10, F01 = E00 * a01 + E01 * a11, F10 = E01 * a00 + E11 * a10, F11 = E01 * a01 + E11 * a11;
+      const drx = -s * ax - c * ay, dry = c * ax - s * ay;
+      cols[m] = b; J[m] = F00; J[13 + m] = F10; m++;
+      cols[m] = b + 1; J[m] = F01; J[13 + m] = F11; m++;
+      cols[m] = b + 2; J[m] = F00 * drx + F01 * dry; J[13 + m] = F10 * drx + F11 * dry; m++;
+    }
+    return m;
+  };
+
+  const GAUGE = 1e6, PRIOR_MM = 1e-4, PRIOR_RAD = 1e-4 * (180 / Math.PI) ** 2, PRIOR_K = 1e-6;
+  const penalty = (t: Float64Array) => {
+    let c = 0;
+    if (fitted.length) {
+      let sx = 0, sy = 0, sr = 0;
+      for (const j of fitted) { const b = panelParam[j]!; sx += t[b]!; sy += t[b + 1]!; sr += t[b + 2]!; c += PRIOR_MM * (t[b]! ** 2 + t[b + 1]! ** 2) + PRIOR_RAD * t[b + 2]! ** 2; }
+      const P = fitted.length;
+      c += GAUGE * ((sx / P) ** 2 + (sy / P) ** 2 + (sr / P) ** 2 * 1e4);
+    }
+    c += PRIOR_K * (t[8]! ** 2 + t[9]! ** 2);
+    return c;
+  };
+  const cost = (t: Float64Array) => {
+    let c = 0;
+    const r = new Float64Array(2);
+    for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); c += w[k]! * (r[0]! ** 2 + r[1]! ** 2); }
+    return c + penalty(t);
+  };
+  const jtj = new Float64Array(np * np), jtr = new Float64Array(np);
+  const build = (t: Float64Array) => {
+    jtj.fill(0); jtr.fill(0);
+    const r = new Float64Array(2);
+    for (let k = 0; k < n; k++) {
+      const m = evalMatch(t, k, r, true);
+      res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!;
+      const wk = w[k]!;
+      if (!(wk > 0)) continue;
+      for (let a = 0; a < m; a++) {
+        const ca = cols[a]!, ja0 = J[a]!, ja1 = J[13 + a]!;
+        jtr[ca]! += wk * (ja0 * r[0]! + ja1 * r[1]!);
+        const row = ca * np;
+        for (let bb = 0; bb < m; bb++) jtj[row + cols[bb]!]! += wk * (ja0 * J[bb]! + ja1 * J[13 + bb]!);
+      }
+    }
+    if (fitted.length) {
+      const P = fitted.length;
+      for (let o = 0; o < 3; o++) {
+        const g = GAUGE * (o === 2 ? 1e4 : 1) / (P * P);
+        let sum = 0;
+        for (const j of fitted) sum += t[panelParam[j]! + o]!;
+        for (const ja of fitted) {
+          const a = panelParam[ja]! + o;
+          jtr[a]! += g * sum;
+          for (const jb of fitted) jtj[a * np + panelParam[jb]! + o]! += g;
+          jtj[a * np + a]! += o === 2 ? PRIOR_RAD : PRIOR_MM;
+          jtr[a]! += (o === 2 ? PRIOR_RAD : PRIOR_MM) * t[a]!;
+        }
+      }
+    }
+    for (const a of [8, 9]) { jtj[a * np + a]! += PRIOR_K + (fitK ? 0 : 1e12); jtr[a]! += PRIOR_K * t[a]!; }
+  };
+
+  const lm = (maxIt: number) => {
+    let c0 = cost(theta);
+    let lambda = 1e-4;
+    for (let it = 0; it < maxIt; it++) {
+      build(theta);
+      let accepted = false, gain = 0;
+      for (let tries = 0; tries < 8; tries++) {
+        const a = Float64Array.from(jtj);
+        for (let i = 0; i < np; i++) a[i * np + i]! += lambda * (jtj[i * np + i]! || 1);
+        if (!cholesky(a, np)) { lambda *= 10; continue; }
+        const step = choleskySolve(a, np, jtr);
+        const tn = Float64Array.from(theta);
+        for (let i = 0; i < np; i++) tn[i]! -= step[i]!;
+        const c1 = cost(tn);
+        if (c1 <= c0) { gain = c0 - c1; theta.set(tn); c0 = c1; lambda = Math.max(lambda / 10, 1e-12); accepted = true; break; }
+        lambda *= 10;
+      }
+      if (!accepted || gain < 1e-10 * c0) break;
+    }
+  };
+
+  // IRLS with Huber weights at 2 σ.
+  let sigma = 1;
+  for (let outer = 0; outer < 3; outer++) {
+    lm(outer === 0 ? 25 : 10);
+    build(theta);
+    sigma = Math.max(madSigma(res), 1e-6);
+    for (let k = 0; k < n; k++) w[k] = prior[k]! * huberWeight(Math.hypot(res[2 * k]!, res[2 * k + 1]!), 2 * sigma);
+  }
+  build(theta);
+  let rss = 0, sw = 0;
+  for (let k = 0; k < n; k++) { rss += w[k]! * (res[2 * k]! ** 2 + res[2 * k + 1]! ** 2); sw += w[k]!; }
+  const dof = Math.max(1, 2 * sw - np);
+  const s2 = rss / dof;
+  const inv = invertSpd(jtj, np) ?? new Float64Array(np * np).fill(NaN);
+  const cov = inv.map((x) => x * s2);
+
+  const hHat = Float64Array.from(theta);
+  const Hn: Mat3 = [theta[0]!, theta[1]!, theta[2]!, theta[3]!, theta[4]!, theta[5]!, theta[6]!, theta[7]!, 1];
+  const H = mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb));
+  const panelDx = new Float64Array(panels.length), panelDy = new Float64Array(panels.length), panelRot = new Float64Array(panels.length);
+  fitted.forEach((j) => { const b = panelParam[j]!; panelDx[j] = theta[b]!; panelDy[j] = theta[b + 1]!; panelRot[j] = theta[b + 2]!; });
+  return {
+    H, Hinv: mat3Inv(H), lens: { ...lens, k1: theta[8]!, k2: theta[9]! }, panelDx, panelDy, panelRot, panelParam, cov, np,
+    sigmaPx: Math.sqrt(s2 / 1), weights: w, residualPx: Float64Array.from(res), Tb, Ti, hHat,
+  };
+}

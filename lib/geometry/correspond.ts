@@ -1,0 +1,152 @@
+/**
+ * Correspondence without manual pairing: which detected centre (image px) is which nominal position (bed mm).
+ * 1. The reference square rectifies the photo to a metric frame (square frame, mm) — good enough near it.
+ * 2. Lattice orientation: the 4-fold circular mean of neighbour directions of the main family, resolved to the
+ *    quarter turn that puts the bed's front edge at the bottom of the photo (±45°).
+ * 3. Lattice phase: circular vote of positions modulo the pitch; the whole-pitch shift is chosen by how many
+ *    detections then land on valid nodes (ties: the one that centres the detections on the pattern).
+ * 4. Assignment: each detection goes to the nearest valid node of a family its diameter fits, within a gate;
+ *    one detection per node (the nearest wins); the rest are unmatched. Nothing is ever interpolated.
+ */
+import { nearestNode, type Lattice } from './lattice';
+import { applyH, mat3Mul, type Mat3 } from './linalg';
+
+export interface Detections { u: Float64Array; v: Float64Array; dPx: Float64Array; n: number; conf: Float64Array }
+
+const TAU = 2 * Math.PI;
+
+/** Families whose hole diameter a detection of diameter `dMm` could be (ratio within `tol`). */
+export function familiesForDiameter(l: Lattice, dMm: number, tol: number): number[] {
+  const out: number[] = [];
+  l.families.forEach((f, i) => { if (Math.abs(Math.log(dMm / f.family.holeDiameter)) <= Math.log(1 + tol)) out.push(i); });
+  return out;
+}
+
+function circularMeanPeak(angles: number[], bins = 48): number {
+  const hist = new Float64Array(bins);
+  for (const a of angles) hist[Math.floor((((a % TAU) + TAU) % TAU) / TAU * bins) % bins]!++;
+  let best = 0, bestV = -1;
+  for (let i = 0; i < bins; i++) { const v = hist[(i + bins - 1) % bins]! + 2 * hist[i]! + hist[(i + 1) % bins]!; if (v > bestV) { bestV = v; best = i; } }
+  const centre = ((best + 0.5) / bins) * TAU;
+  let s = 0, c = 0;
+  for (const a of angles) {
+    const d = Math.atan2(Math.sin(a - centre), Math.cos(a - centre));
+    if (Math.abs(d) < (2.5 * TAU) / bins) { s += Math.sin(d); c += Math.cos(d); }
+  }
+  return centre + Math.atan2(s, c);
+}
+
+/**
+ * Initial map image px → bed mm (a homography): square rectification, lattice turn, phase and whole-pitch shift.
+ * `sq` maps the square frame (mm) to image px; `famOf[i]` lists the families detection i may belong to.
+ */
+export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Array, famOf: number[][], sqInv: Mat3, sq: Mat3): Mat3 | null {
+  const n = det.n;
+  const sx = new Float64Array(n), sy = new Float64Array(n);
+  for (let i = 0; i < n; i++) { const [x, y] = applyH(sqInv, det.u[i]!, det.v[i]!); sx[i] = x; sy[i] = y; }
+  // Main family: the one with most candidate detections.
+  const votes = new Int32Array(l.families.length);
+  for (let i = 0; i < n; i++) if (usable[i]) for (const f of famOf[i]!) votes[f]!++;
+  let fm = 0;
+  votes.forEach((v, i) => { if (v > votes[fm]!) fm = i; });
+  if (votes[fm]! < 4) return null;
+  const F = l.families[fm]!.family;
+  const idx: number[] = [];
+  for (let i = 0; i < n; i++) if (usable[i] && famOf[i]!.includes(fm)) idx.push(i);
+  // Neighbour directions via a grid hash.
+  const cell = Math.max(F.pitch.x, F.pitch.y) * 1.3;
+  const grid = new Map<string, number[]>();
+  for (const i of idx) { const key = `${Math.floor(sx[i]! / cell)},${Math.floor(sy[i]! / cell)}`; (grid.get(key) ?? grid.set(key, []).get(key)!).push(i); }
+  const dirs: number[] = [];
+  const lens = [F.pitch.x, F.pitch.y];
+  for (const i of idx) {
+    const gx = Math.floor(sx[i]! / cell), gy = Math.floor(sy[i]! / cell);
+    for (let ox = -1; ox <= 1; ox++) for (let oy = -1; oy <= 1; oy++) {
+      for (const j of grid.get(`${gx + ox},${gy + oy}`) ?? []) {
+        if (j <= i) continue;
+        const dx = sx[j]! - sx[i]!, dy = sy[j]! - sy[i]!, d = Math.hypot(dx, dy);
+        if (lens.some((p) => Math.abs(d - p) < 0.15 * p)) dirs.push(4 * Math.atan2(dy, dx));
+      }
+    }
+  }
+  if (dirs.length < 3) return null;
+  const th0 = circularMeanPeak(dirs) / 4;
+  // Quarter turn that keeps the bed's +X within ±45° of the image's +x (front edge at the bottom).
+  const c0 = applyH(sq, 0, 0);
+  let theta = th0, bestA = Infinity;
+  for (let k = 0; k < 4; k++) {
+    const t = th0 + (k * Math.PI) / 2;
+    const p = applyH(sq, 10 * Math.cos(t), 10 * Math.sin(t));
+    const a = Math.abs(Math.atan2(-(p[1] - c0[1]), p[0] - c0[0]));
+    if (a < bestA) { bestA = a; theta = t; }
+  }
+  const cs = Math.cos(-theta), sn = Math.sin(-theta);
+  const bx = new Float64Array(n), by = new Float64Array(n);
+  for (let i = 0; i < n; i++) { bx[i] = cs * sx[i]! - sn * sy[i]!; by[i] = sn * sx[i]! + cs * sy[i]!; }
+  // Phase of t ≡ origin − b (mod pitch).
+  const ax: number[] = [], ay: number[] = [];
+  for (const i of idx) { ax.push((TAU * (F.origin.x - bx[i]!)) / F.pitch.x); ay.push((TAU * (F.origin.y - by[i]!)) / F.pitch.y); }
+  const tx0 = (circularMeanPeak(ax) / TAU) * F.pitch.x, ty0 = (circularMeanPeak(ay) / TAU) * F.pitch.y;
+  // Whole-pitch shift.
+  const ci: number[] = [], cj: number[] = [];
+  for (const i of idx) { ci.push(Math.round((bx[i]! + tx0 - F.origin.x) / F.pitch.x)); cj.push(Math.round((by[i]! + ty0 - F.origin.y) / F.pitch.y)); }
+  const pct = (a: number[], q: number) => { const s = [...a].sort((x, y) => x - y); return s[Math.min(s.length - 1, Math.max(0, Math.floor(q * (s.length - 1))))]!; };
+  const range = (lo: number, hi: number, count: number) => {
+    let a = -lo, b = count - 1 - hi;
+    if (a > b) { const m = Math.round((a + b) / 2); a = m - 1; b = m + 1; }
+    const out: number[] = [];
+    for (let k = a; k <= b; k++) out.push(k);
+    return out;
+  };
+  const ilo = pct(ci, 0.01), ihi = pct(ci, 0.99), jlo = pct(cj, 0.01), jhi = pct(cj, 0.99);
+  const kxs = range(ilo, ihi, F.count.x), kys = range(jlo, jhi, F.count.y);
+  const sample: number[] = [];
+  const step = Math.max(1, Math.floor(n / 600));
+  for (let i = 0; i < n; i += step) if (usable[i] && famOf[i]!.length) sample.push(i);
+  const centreX = (F.count.x - 1) / 2 - (ilo + ihi) / 2, centreY = (F.count.y - 1) / 2 - (jlo + jhi) / 2;
+  let best = { score: -1, off: Infinity, kx: 0, ky: 0 };
+  const gate = 0.25 * Math.min(...l.families.map((f) => Math.min(f.family.pitch.x, f.family.pitch.y)));
+  const maxCand = 2500;
+  const kxL = kxs.length * kys.length > maxCand ? kxs.filter((_, i) => i % Math.ceil(kxs.length / 50) === 0) : kxs;
+  const kyL = kxs.length * kys.length > maxCand ? kys.filter((_, i) => i % Math.ceil(kys.length / 50) === 0) : kys;
+  for (const kx of kxL) for (const ky of kyL) {
+    const tx = tx0 + kx * F.pitch.x, ty = ty0 + ky * F.pitch.y;
+    let score = 0;
+    for (const i of sample) for (const f of famOf[i]!) { if (nearestNode(l, f, bx[i]! + tx, by[i]! + ty).dist < gate) { score++; break; } }
+    const off = Math.hypot(kx - centreX, ky - centreY);
+    if (score > best.score || (score === best.score && off < best.off)) best = { score, off, kx, ky };
+  }
+  const tx = tx0 + best.kx * F.pitch.x, ty = ty0 + best.ky * F.pitch.y;
+  // bed = Rot(−θ)·square + t ; image → square is sqInv.
+  const rigid: Mat3 = [cs, -sn, tx, sn, cs, ty, 0, 0, 1];
+  return mat3Mul(rigid, sqInv);
+}
+
+export interface Assignment { posOf: Int32Array; detOf: Int32Array; distMm: Float64Array }
+
+/**
+ * Assigns detections to nodes: `bedXY` holds each detection's predicted bed point (mm); `gateMm(fi)` the gate
+ * radius for family fi; `ref(pos)` the point a position is expected at (nominal or nominal + panel move).
+ */
+export function assign(l: Lattice, bedXY: Float64Array, n: number, usable: Uint8Array, famOf: number[][], gateMm: (fi: number) => number, ref?: (pos: number) => [number, number]): Assignment {
+  const posOf = new Int32Array(n).fill(-1), detOf = new Int32Array(l.positions.length).fill(-1), distMm = new Float64Array(n).fill(Infinity);
+  const cand: { i: number; pos: number; d: number }[] = [];
+  for (let i = 0; i < n; i++) {
+    if (!usable[i]) continue;
+    let bp = -1, bd = Infinity;
+    for (const f of famOf[i]!) {
+      const { pos } = nearestNode(l, f, bedXY[2 * i]!, bedXY[2 * i + 1]!);
+      if (pos < 0) continue;
+      const [rx, ry] = ref ? ref(pos) : [l.positions[pos]!.x, l.positions[pos]!.y];
+      const d = Math.hypot(bedXY[2 * i]! - rx, bedXY[2 * i + 1]! - ry);
+      if (d < gateMm(f) && d < bd) { bd = d; bp = pos; }
+    }
+    if (bp >= 0) cand.push({ i, pos: bp, d: bd });
+  }
+  cand.sort((a, b) => a.d - b.d);
+  for (const c of cand) {
+    if (detOf[c.pos]! >= 0) continue;
+    detOf[c.pos] = c.i; posOf[c.i] = c.pos; distMm[c.i] = c.d;
+  }
+  return { posOf, detOf, distMm };
+}

@@ -1,0 +1,52 @@
+/**
+ * Robust estimation helpers: median / MAD scale, Huber and Tukey weights for iteratively reweighted least
+ * squares, and a seeded RANSAC loop. Unit-free: residuals are in whatever unit the caller fits.
+ */
+import { mulberry32 } from './random';
+
+export function median(values: ArrayLike<number>): number {
+  const a = Float64Array.from(values).sort();
+  const n = a.length;
+  if (n === 0) return NaN;
+  return n % 2 ? a[(n - 1) / 2]! : (a[n / 2 - 1]! + a[n / 2]!) / 2;
+}
+
+/** Robust σ from the median absolute deviation about zero (for residuals centred on 0): 1.4826·median|r|. */
+export function madSigma(residuals: ArrayLike<number>): number {
+  const a = Float64Array.from(residuals, Math.abs);
+  return 1.4826 * median(a);
+}
+
+/** Huber weight for a residual r at threshold k (same unit): 1 inside, k/|r| outside. */
+export const huberWeight = (r: number, k: number): number => (Math.abs(r) <= k ? 1 : k / Math.abs(r));
+
+/** Tukey biweight for residual r at cut-off c: (1 − (r/c)²)² inside, 0 outside. */
+export const tukeyWeight = (r: number, c: number): number => (Math.abs(r) >= c ? 0 : (1 - (r / c) ** 2) ** 2);
+
+export interface RansacResult<M> { model: M; inliers: number[] }
+
+/**
+ * RANSAC: draws minimal samples of `sampleSize` indices (seeded), fits `fit`, counts residuals below
+ * `threshold`, keeps the largest consensus and refits on it.
+ */
+export function ransac<M>(n: number, sampleSize: number, fit: (idx: number[]) => M | null, residual: (m: M, i: number) => number, threshold: number, opts: { iterations?: number; seed?: number } = {}): RansacResult<M> | null {
+  if (n < sampleSize) return null;
+  const rand = mulberry32(opts.seed ?? 1);
+  let best: RansacResult<M> | null = null;
+  const iterations = opts.iterations ?? 200;
+  for (let it = 0; it < iterations; it++) {
+    const idx = new Set<number>();
+    while (idx.size < sampleSize) idx.add(Math.floor(rand() * n));
+    const m = fit([...idx]);
+    if (!m) continue;
+    const inl: number[] = [];
+    for (let i = 0; i < n; i++) if (residual(m, i) < threshold) inl.push(i);
+    if (!best || inl.length > best.inliers.length) best = { model: m, inliers: inl };
+  }
+  if (!best || best.inliers.length < sampleSize) return null;
+  const refit = fit(best.inliers);
+  if (!refit) return best;
+  const inl: number[] = [];
+  for (let i = 0; i < n; i++) if (residual(refit, i) < threshold) inl.push(i);
+  return { model: refit, inliers: inl };
+}
