@@ -1,0 +1,8 @@
+import { z } from 'zod';
+import { route } from '@/lib/http/route';
+import { getCheckReport } from '@/lib/checks/api';
+
+const Params = z.object({ id: z.string().min(1).max(64) });
+
+/** GET /api/checks/{id}/report → the report JSON of the measurement core's contract; 409 until done. */
+export const GET = route({ params: Params }, async ({ db, actor, params }) => getCheckReport(db, actor, params.id));

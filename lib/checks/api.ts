@@ -1,0 +1,181 @@
+/**
+ * Check use cases for the route handlers: each takes the actor first, authorises, and scopes every read by
+ * the actor's workshop (another workshop's bed or check is "not found", never "forbidden").
+ */
+import { Readable } from 'node:stream';
+import type { ReadableStream as NodeReadableStream } from 'node:stream/web';
+import { z } from 'zod';
+import type { Db } from '@/db/client';
+import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
+import { checkStatusView, getCheck, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
+import { PointsSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
+import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
+import { authorize, type Actor } from '@/lib/services/actor';
+import { type Storage, uploadMaxBytes } from '@/lib/storage';
+import { compareReports, type Comparison } from './compare';
+import { CornersSchema, intakePhoto, IntakeError } from './intake';
+
+/** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
+const ENVELOPE_BYTES = 64 * 1024;
+
+function toAppError(e: IntakeError): AppError {
+  switch (e.code) {
+    case 'bad-input': return invalidInput(e.message, e.fields);
+    case 'bed-not-found': return notFound('bed');
+    case 'no-pattern': return conflict(e.message);
+    case 'empty': return new AppError('empty_file', 400, e.message, { photo: e.message });
+    case 'not-an-image': return new AppError('unsupported_media_type', 415, e.message, { photo: e.message });
+    case 'too-large': return new AppError('too_large', 413, e.message, { photo: e.message });
+  }
+}
+
+/** Reads a multipart upload with its size bounded while reading (a missing or false Content-Length too). */
+async function readMultipart(req: Request, maxBytes: number): Promise<FormData> {
+  const type = req.headers.get('content-type') ?? '';
+  if (!/^multipart\/form-data;/i.test(type)) {
+    throw new AppError('unsupported_media_type', 415, 'Send the photo as multipart/form-data with fields photo and referenceMm.');
+  }
+  const limit = maxBytes + ENVELOPE_BYTES;
+  const tooLarge = () => new AppError('too_large', 413, `The upload is larger than the limit of ${Math.round(maxBytes / (1024 * 1024))} MB. Take the photo at a lower resolution or export a smaller copy.`, { photo: 'Too large.' });
+  const declared = Number(req.headers.get('content-length'));
+  if (Number.isFinite(declared) && declared > limit) throw tooLarge();
+  if (!req.body) throw invalidInput('The upload is empty.', { photo: 'Choose a photo.' });
+  let seen = 0;
+  const bounded = req.body.pipeThrough(new TransformStream<Uint8Array, Uint8Array>({
+    transform(chunk, controller) {
+      seen += chunk.byteLength;
+      if (seen > limit) controller.error(tooLarge());
+      else controller.enqueue(chunk);
+    },
+  }));
+  try {
+    return await new Response(bounded, { headers: { 'content-type': type } }).formData();
+  } catch (e) {
+    if (e instanceof AppError) throw e;
+    if (seen > limit) throw tooLarge();
+    throw invalidInput('The upload could not be read as a form. Try again.', { photo: 'Could not read the upload.' });
+  }
+}
+
+const UploadFieldsSchema = z.object({
+  referenceMm: z.coerce.number({ error: 'Give the measured size of the reference square in mm.' }).finite().positive('The square\'s size must be more than 0 mm.').max(2000),
+  corners: z.string().max(2000).optional().transform((s, ctx) => {
+    if (s === undefined || s.trim() === '') return null;
+    try {
+      const parsed = CornersSchema.safeParse(JSON.parse(s));
+      if (parsed.success) return parsed.data;
+    } catch { /* reported below */ }
+    ctx.addIssue({ code: 'custom', message: 'Corners must be four [x, y] pixel pairs, e.g. [[10,10],[200,10],[200,200],[10,200]].' });
+    return z.NEVER;
+  }),
+  title: z.string().trim().max(120).optional(),
+});
+
+export interface UploadAnswer {
+  check: { id: string; status: string };
+  photo: { id: string; duplicate: boolean };
+  /** True when the same photo with the same inputs was already checked: its check is returned. */
+  reused: boolean;
+}
+
+/** `POST /api/beds/{bedId}/checks`: multipart `photo`, `referenceMm`, optional `corners` (JSON), `title`. */
+export async function uploadCheck(db: Db, storage: Storage, actor: Actor, bedId: string, req: Request): Promise<UploadAnswer> {
+  authorize(actor, 'photo:upload');
+  authorize(actor, 'check:run');
+  const maxBytes = uploadMaxBytes();
+  const bed = await getBed(db, actor.workshopId, bedId);
+  if (!bed) throw notFound('bed');
+  const form = await readMultipart(req, maxBytes);
+  const photo = form.get('photo');
+  if (!(photo instanceof File)) throw invalidInput('Choose a photo of the bed.', { photo: 'Required.' });
+  const fields = UploadFieldsSchema.safeParse({
+    referenceMm: form.get('referenceMm') ?? undefined,
+    corners: typeof form.get('corners') === 'string' ? form.get('corners') : undefined,
+    title: typeof form.get('title') === 'string' ? form.get('title') : undefined,
+  });
+  if (!fields.success) {
+    const f: Record<string, string> = {};
+    for (const i of fields.error.issues) f[String(i.path[0] ?? '_')] ??= i.message;
+    throw invalidInput('Some fields of the upload need attention.', f);
+  }
+  try {
+    const r = await intakePhoto(db, storage, {
+      workshopId: actor.workshopId,
+      bedId,
+      userId: actor.user.id,
+      source: Readable.fromWeb(photo.stream() as unknown as NodeReadableStream<Uint8Array>),
+      contentType: photo.type || null,
+      name: photo.name || null,
+      referenceMm: fields.data.referenceMm,
+      corners: fields.data.corners,
+      title: fields.data.title ?? null,
+      maxBytes,
+    });
+    return { check: { id: r.check.id, status: r.check.status }, photo: { id: r.photo.id, duplicate: !r.photoCreated }, reused: r.reusedCheck };
+  } catch (e) {
+    if (e instanceof IntakeError) throw toAppError(e);
+    throw e;
+  }
+}
+
+/** `GET /api/checks/{id}` */
+export async function getCheckStatus(db: Db, actor: Actor, id: string): Promise<CheckStatusView> {
+  authorize(actor, 'workshop:read');
+  const row = await getCheck(db, actor.workshopId, id);
+  if (!row) throw notFound('check');
+  return checkStatusView(row);
+}
+
+async function finishedReport(db: Db, actor: Actor, id: string): Promise<Report> {
+  const row = await getCheck(db, actor.workshopId, id);
+  if (!row) throw notFound('check');
+  if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) {
+    const why = row.status === 'failed' ? `The analysis failed: ${row.error ?? 'no reason recorded'}` : `The check is ${row.status}; the report is ready once it is done.`;
+    throw new AppError('not_ready', 409, why);
+  }
+  return ReportSchema.parse(JSON.parse(row.reportJson));
+}
+
+/** `GET /api/checks/{id}/report`: the measurement core's report JSON; 409 until the check is done. */
+export async function getCheckReport(db: Db, actor: Actor, id: string): Promise<Report> {
+  authorize(actor, 'workshop:read');
+  return finishedReport(db, actor, id);
+}
+
+/** `GET /api/beds/{bedId}/checks`: the bed's checks, newest first, with their summary figures. */
+export async function listChecks(db: Db, actor: Actor, bedId: string): Promise<CheckListRow[]> {
+  authorize(actor, 'workshop:read');
+  const bed = await getBed(db, actor.workshopId, bedId);
+  if (!bed) throw notFound('bed');
+  return listBedChecks(db, actor.workshopId, bedId);
+}
+
+/** `GET /api/checks/{a}/compare/{b}`: what changed from check a to check b (same bed). */
+export async function compareChecks(db: Db, actor: Actor, a: string, b: string): Promise<{ before: string; after: string; comparison: Comparison }> {
+  authorize(actor, 'workshop:read');
+  const [ra, rb] = await Promise.all([getCheck(db, actor.workshopId, a), getCheck(db, actor.workshopId, b)]);
+  if (!ra || !rb) throw notFound('check');
+  if (ra.bedId !== rb.bedId) throw invalidInput('Only two checks of the same bed can be compared.');
+  const [before, after] = await Promise.all([finishedReport(db, actor, a), finishedReport(db, actor, b)]);
+  return { before: a, after: b, comparison: compareReports(before, after) };
+}
+
+export const RefitBodySchema = z.object({
+  detections: PointsSchema,
+  edits: z.unknown().optional(),
+});
+
+/** `POST /api/checks/{id}/refit` {detections, edits?}: store the reviewer's edits and queue a fit → 202. */
+export async function refitCheck(db: Db, actor: Actor, id: string, body: z.infer<typeof RefitBodySchema>): Promise<{ check: { id: string; status: string } }> {
+  authorize(actor, 'check:review');
+  try {
+    const { check } = await requestRefit(db, { workshopId: actor.workshopId, checkId: id, userId: actor.user.id, detections: body.detections, edits: body.edits ?? null });
+    return { check: { id: check.id, status: check.status } };
+  } catch (e) {
+    if (e instanceof CheckStateError) {
+      if (e.code === 'not-found') throw notFound('check');
+      throw conflict(e.message);
+    }
+    throw e;
+  }
+}
