@@ -31,8 +31,15 @@ export function wrapText(font: PDFFont, text: string, size: number, maxWidthPt: 
     let line = '';
     for (let word of words) {
       while (font.widthOfTextAtSize(word, size) > maxWidthPt && word.length > 1) {
-        let cut = word.length - 1;
-        while (cut > 1 && font.widthOfTextAtSize(word.slice(0, cut), size) > maxWidthPt) cut -= 1;
+        // Longest prefix that fits, by bisection (width grows with length).
+        let lo = 1;
+        let hi = word.length - 1;
+        while (lo < hi) {
+          const mid = Math.ceil((lo + hi) / 2);
+          if (font.widthOfTextAtSize(word.slice(0, mid), size) <= maxWidthPt) lo = mid;
+          else hi = mid - 1;
+        }
+        const cut = lo;
         if (line) lines.push(line);
         lines.push(word.slice(0, cut));
         line = '';

@@ -17,6 +17,8 @@ export interface PaintedPath {
   stroke: boolean;
   fillGrey: number | null;
   strokeGrey: number | null;
+  /** Fill colour as RGB in [0, 1] (grey g gives [g, g, g]). */
+  fillRgb: [number, number, number] | null;
   lineWidth: number;
 }
 
@@ -123,8 +125,8 @@ export async function readPage(bytes: Uint8Array, index = 0): Promise<PageConten
   const uu = page.node.lookup(PDFName.of('UserUnit'));
   const src = pageStreams(page).map((b) => Buffer.from(b).toString('latin1')).join('\n');
 
-  type State = { ctm: Matrix; fillGrey: number | null; strokeGrey: number | null; lineWidth: number };
-  let gs: State = { ctm: [1, 0, 0, 1, 0, 0], fillGrey: 0, strokeGrey: 0, lineWidth: 1 };
+  type State = { ctm: Matrix; fillGrey: number | null; strokeGrey: number | null; fillRgb: [number, number, number] | null; lineWidth: number };
+  let gs: State = { ctm: [1, 0, 0, 1, 0, 0], fillGrey: 0, strokeGrey: 0, fillRgb: [0, 0, 0], lineWidth: 1 };
   const saved: State[] = [];
   let subpaths: Pt[][] = [];
   let current: Pt[] | null = null;
@@ -144,7 +146,7 @@ export async function readPage(bytes: Uint8Array, index = 0): Promise<PageConten
   const num = (k: number) => { const t = operands[operands.length - k]; if (!t || t.kind !== 'num') throw new Error('expected a number'); return t.v; };
   const paint = (fillRule: PaintedPath['fill'], doStroke: boolean, close: boolean) => {
     if (close && current) current.push(current[0]!);
-    paths.push({ subpaths, fill: fillRule, stroke: doStroke, fillGrey: gs.fillGrey, strokeGrey: gs.strokeGrey, lineWidth: gs.lineWidth * Math.hypot(gs.ctm[0], gs.ctm[1]) });
+    paths.push({ subpaths, fill: fillRule, stroke: doStroke, fillGrey: gs.fillGrey, strokeGrey: gs.strokeGrey, fillRgb: gs.fillRgb, lineWidth: gs.lineWidth * Math.hypot(gs.ctm[0], gs.ctm[1]) });
     subpaths = []; current = null;
   };
   for (const t of tokenize(src)) {
@@ -155,9 +157,9 @@ export async function readPage(bytes: Uint8Array, index = 0): Promise<PageConten
       case 'Q': gs = saved.pop() ?? gs; break;
       case 'cm': gs.ctm = mul([num(6), num(5), num(4), num(3), num(2), num(1)], gs.ctm); break;
       case 'w': gs.lineWidth = num(1); break;
-      case 'g': gs.fillGrey = num(1); break;
+      case 'g': gs.fillGrey = num(1); gs.fillRgb = [num(1), num(1), num(1)]; break;
       case 'G': gs.strokeGrey = num(1); break;
-      case 'rg': gs.fillGrey = num(3) === num(2) && num(2) === num(1) ? num(1) : null; break;
+      case 'rg': gs.fillGrey = num(3) === num(2) && num(2) === num(1) ? num(1) : null; gs.fillRgb = [num(3), num(2), num(1)]; break;
       case 'RG': gs.strokeGrey = num(3) === num(2) && num(2) === num(1) ? num(1) : null; break;
       case 'm': current = [apply(gs.ctm, num(2), num(1))]; subpaths.push(current); break;
       case 'l': current?.push(apply(gs.ctm, num(2), num(1))); break;

@@ -1,0 +1,411 @@
+/**
+ * The report of a check as a PDF (pdf-lib, standard Helvetica): verdict sentence, summary and lattice figures,
+ * a deviation map drawn with vectors, the panel table with the moves that correct them, the table of positions
+ * out or marginal, and comments.
+ *
+ * Frames: the report is in the bed frame (mm, origin front-left, +X right, +Y away from the operator); the map
+ * keeps that orientation on the page (PDF points, origin bottom-left, +y up), so the operator's side is at the
+ * bottom. Lengths print in mm, or in inches when `units` is 'in'.
+ */
+import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
+import { MM_PER_IN, type Report, type ReportPosition, type Verdict } from '@/lib/geometry/contract';
+import { drawable, wrapText } from './text';
+import { mmToPt, paperSizePt, type Paper } from './units';
+
+export interface ReportPdfComment {
+  author: string | null;
+  positionLabel: string | null;
+  body: string;
+  /** ms since the Unix epoch, or a Date. */
+  createdAt: number | Date;
+}
+
+export interface ReportPdfOptions {
+  paper?: Paper;
+  workshopName: string;
+  bedName?: string | null;
+  checkTitle?: string | null;
+  /** When the photo was checked (ms since the Unix epoch, or a Date). */
+  checkedAt?: number | Date | null;
+  /** Display units for lengths (the report itself is in mm). */
+  units?: 'mm' | 'in';
+  comments?: ReportPdfComment[];
+  /** Most rows in the table of positions out or marginal (default 400); the rest are counted. */
+  maxPositionRows?: number;
+}
+
+const COLOURS: Record<Verdict, RGB> = {
+  in: rgb(0.18, 0.44, 0.37),
+  marginal: rgb(0.72, 0.5, 0.0),
+  out: rgb(0.68, 0.2, 0.17),
+  missing: rgb(0.55, 0.57, 0.56),
+};
+const BED_VERDICT_WORDS = { pass: 'Passes', marginal: 'Marginal', fail: 'Fails' } as const;
+const BED_VERDICT_COLOURS = { pass: COLOURS.in, marginal: COLOURS.marginal, fail: COLOURS.out } as const;
+const INK = rgb(0.1, 0.13, 0.12);
+const MUTED = rgb(0.38, 0.42, 0.41);
+const RULE = rgb(0.8, 0.83, 0.82);
+
+function utc(at: number | Date): string {
+  return `${new Date(at).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
+}
+
+/** Page-flowing writer: a cursor from the top, new pages as needed. */
+class Flow {
+  page!: PDFPage;
+  y = 0;
+  readonly pages: PDFPage[] = [];
+  readonly width: number;
+  readonly height: number;
+  readonly margin = mmToPt(15);
+  constructor(readonly doc: PDFDocument, paper: Paper, readonly regular: PDFFont, readonly bold: PDFFont) {
+    [this.width, this.height] = paperSizePt(paper);
+    this.newPage();
+  }
+  get left() { return this.margin; }
+  get right() { return this.width - this.margin; }
+  get textWidth() { return this.width - 2 * this.margin; }
+  newPage() {
+    this.page = this.doc.addPage([this.width, this.height]);
+    this.pages.push(this.page);
+    this.y = this.height - this.margin;
+  }
+  ensure(h: number) {
+    if (this.y - h < this.margin + 14) this.newPage();
+  }
+  text(s: string, opts: { x?: number; size?: number; font?: PDFFont; color?: RGB } = {}) {
+    const font = opts.font ?? this.regular;
+    this.page.drawText(drawable(font, s), { x: opts.x ?? this.left, y: this.y, size: opts.size ?? 9, font, color: opts.color ?? INK });
+  }
+  paragraph(s: string, opts: { size?: number; font?: PDFFont; color?: RGB; indent?: number; width?: number } = {}) {
+    const size = opts.size ?? 9;
+    const font = opts.font ?? this.regular;
+    for (const line of wrapText(font, s, size, (opts.width ?? this.textWidth) - (opts.indent ?? 0))) {
+      this.ensure(size * 1.35);
+      this.y -= size * 1.35;
+      this.text(line, { x: this.left + (opts.indent ?? 0), size, font, color: opts.color });
+    }
+  }
+  heading(s: string) {
+    this.ensure(40);
+    this.y -= 18;
+    this.text(s, { size: 12, font: this.bold });
+    this.y -= 4;
+    this.page.drawLine({ start: { x: this.left, y: this.y }, end: { x: this.right, y: this.y }, thickness: 0.5, color: RULE });
+  }
+}
+
+interface Column {
+  title: string;
+  width: number;
+  align?: 'left' | 'right';
+  wrap?: boolean;
+}
+
+function table(f: Flow, columns: Column[], rows: string[][], size = 8) {
+  const lineH = size * 1.3;
+  const total = columns.reduce((s, c) => s + c.width, 0);
+  const scale = f.textWidth / total;
+  const widths = columns.map((c) => c.width * scale);
+  const drawRow = (cells: string[], font: PDFFont, color: RGB) => {
+    const wrapped = cells.map((c, k) => (columns[k]!.wrap ? wrapText(font, c, size, widths[k]! - 4) : [drawable(font, c)]));
+    const lines = Math.max(...wrapped.map((w) => w.length));
+    f.ensure(lines * lineH + 3);
+    let x = f.left;
+    wrapped.forEach((ls, k) => {
+      ls.forEach((line, j) => {
+        const w = font.widthOfTextAtSize(line, size);
+        const tx = columns[k]!.align === 'right' ? x + widths[k]! - 4 - w : x;
+        f.page.drawText(line, { x: tx, y: f.y - (j + 1) * lineH, size, font, color });
+      });
+      x += widths[k]!;
+    });
+    f.y -= lines * lineH + 3;
+    f.page.drawLine({ start: { x: f.left, y: f.y + 1 }, end: { x: f.right, y: f.y + 1 }, thickness: 0.25, color: RULE });
+  };
+  drawRow(columns.map((c) => c.title), f.bold, MUTED);
+  for (const r of rows) {
+    // Repeat the header at the top of a new page.
+    const before = f.pages.length;
+    f.ensure(lineH * 2);
+    if (f.pages.length !== before) drawRow(columns.map((c) => c.title), f.bold, MUTED);
+    drawRow(r, f.regular, INK);
+  }
+}
+
+interface MapGeometry {
+  widthMm: number;
+  heightMm: number;
+  originX: number;
+  originY: number;
+  panels: { id: string; x: number; y: number; width: number; height: number }[];
+}
+
+/** Bed outline and panels from the report's pattern when it carries them, else the positions' bounds. */
+function mapGeometry(report: Report): MapGeometry {
+  const p = report.pattern as Record<string, unknown>;
+  const bed = p.bed as { width?: unknown; height?: unknown } | undefined;
+  const panelsRaw = Array.isArray(p.panels) ? (p.panels as Record<string, unknown>[]) : [];
+  const panels = panelsRaw
+    .filter((q) => typeof q.id === 'string' && [q.x, q.y, q.width, q.height].every((v) => typeof v === 'number' && Number.isFinite(v)))
+    .map((q) => ({ id: q.id as string, x: q.x as number, y: q.y as number, width: q.width as number, height: q.height as number }));
+  const inMm = p.units !== 'in';
+  if (bed && typeof bed.width === 'number' && typeof bed.height === 'number' && bed.width > 0 && bed.height > 0) {
+    const k = inMm ? 1 : MM_PER_IN;
+    return { widthMm: bed.width * k, heightMm: bed.height * k, originX: 0, originY: 0, panels: panels.map((q) => ({ ...q, x: q.x * k, y: q.y * k, width: q.width * k, height: q.height * k })) };
+  }
+  const xs = report.positions.map((q) => q.nominal.x);
+  const ys = report.positions.map((q) => q.nominal.y);
+  const minX = xs.length ? Math.min(...xs) : 0;
+  const minY = ys.length ? Math.min(...ys) : 0;
+  const w = xs.length ? Math.max(...xs) - minX : 100;
+  const h = ys.length ? Math.max(...ys) - minY : 100;
+  const pad = Math.max(w, h, 1) * 0.05;
+  return { widthMm: w + 2 * pad, heightMm: h + 2 * pad, originX: minX - pad, originY: minY - pad, panels: [] };
+}
+
+/** Smallest distance between two nominal positions of one family (mm), for the arrow scale. */
+function nearestSpacing(positions: ReportPosition[]): number {
+  const byFamily = new Map<string, ReportPosition[]>();
+  for (const q of positions) byFamily.set(q.family, [...(byFamily.get(q.family) ?? []), q]);
+  let best = Infinity;
+  for (const list of byFamily.values()) {
+    const sample = list.slice(0, 200);
+    for (const a of sample) for (const b of list) {
+      if (a === b) continue;
+      const d = Math.hypot(a.nominal.x - b.nominal.x, a.nominal.y - b.nominal.y);
+      if (d > 1e-9 && d < best) best = d;
+    }
+  }
+  return Number.isFinite(best) ? best : 50;
+}
+
+function niceFactor(x: number): number {
+  if (!(x > 0) || !Number.isFinite(x)) return 1;
+  const e = Math.pow(10, Math.floor(Math.log10(x)));
+  const m = x / e;
+  return (m >= 5 ? 5 : m >= 2 ? 2 : 1) * e;
+}
+
+function drawMap(f: Flow, report: Report) {
+  const g = mapGeometry(report);
+  const boxW = f.textWidth;
+  const boxH = Math.min(mmToPt(120), f.height * 0.42);
+  const scale = Math.min(boxW / g.widthMm, (boxH - 24) / g.heightMm);
+  const drawW = g.widthMm * scale;
+  const drawH = g.heightMm * scale;
+  f.ensure(drawH + 40);
+  const x0 = f.left + (boxW - drawW) / 2;
+  const y0 = f.y - 8 - drawH;
+  const px = (xMm: number) => x0 + (xMm - g.originX) * scale;
+  const py = (yMm: number) => y0 + (yMm - g.originY) * scale;
+  const page = f.page;
+  page.drawRectangle({ x: x0, y: y0, width: drawW, height: drawH, borderColor: INK, borderWidth: 0.6, color: rgb(0.97, 0.97, 0.95) });
+  for (const q of g.panels) {
+    page.drawRectangle({ x: px(q.x), y: py(q.y), width: q.width * scale, height: q.height * scale, borderColor: MUTED, borderWidth: 0.4 });
+    page.drawText(drawable(f.regular, q.id), { x: px(q.x) + 2, y: py(q.y + q.height) - 7, size: 6, font: f.regular, color: MUTED });
+  }
+  const matched = report.positions.filter((q) => q.deviation);
+  const maxR = Math.max(0, ...matched.map((q) => q.deviation!.r));
+  const spacingPt = nearestSpacing(report.positions) * scale;
+  // Arrows are drawn exaggerated so the largest is about 0.8 of the spacing between neighbours.
+  const exaggeration = maxR > 0 ? niceFactor((0.8 * spacingPt) / (maxR * scale)) : 1;
+  const dot = Math.max(0.8, Math.min(3, spacingPt * 0.18));
+  const many = report.positions.length > 1500;
+  for (const q of report.positions) {
+    const cx = px(q.nominal.x);
+    const cy = py(q.nominal.y);
+    const colour = COLOURS[q.verdict];
+    if (q.verdict === 'missing') {
+      page.drawCircle({ x: cx, y: cy, size: dot, borderColor: colour, borderWidth: 0.5 });
+      continue;
+    }
+    if (many) page.drawRectangle({ x: cx - dot, y: cy - dot, width: 2 * dot, height: 2 * dot, color: colour });
+    else page.drawCircle({ x: cx, y: cy, size: dot, color: colour });
+    if (q.deviation && q.deviation.r > 0) {
+      const ex = cx + q.deviation.dx * scale * exaggeration;
+      const ey = cy + q.deviation.dy * scale * exaggeration;
+      page.drawLine({ start: { x: cx, y: cy }, end: { x: ex, y: ey }, thickness: 0.6, color: colour });
+      // Arrow head: two short strokes at ±25° from the shaft.
+      const len = Math.hypot(ex - cx, ey - cy);
+      if (len > 3) {
+        const ux = (ex - cx) / len;
+        const uy = (ey - cy) / len;
+        const hl = Math.min(3, len * 0.35);
+        for (const s of [1, -1]) {
+          const c = Math.cos((25 * Math.PI) / 180);
+          const sn = s * Math.sin((25 * Math.PI) / 180);
+          page.drawLine({ start: { x: ex, y: ey }, end: { x: ex - hl * (ux * c - uy * sn), y: ey - hl * (uy * c + ux * sn) }, thickness: 0.6, color: colour });
+        }
+      }
+    }
+  }
+  for (const u of report.unmatched) {
+    const cx = px(u.x);
+    const cy = py(u.y);
+    if (cx < x0 || cx > x0 + drawW || cy < y0 || cy > y0 + drawH) continue;
+    page.drawLine({ start: { x: cx - dot, y: cy - dot }, end: { x: cx + dot, y: cy + dot }, thickness: 0.5, color: INK });
+    page.drawLine({ start: { x: cx - dot, y: cy + dot }, end: { x: cx + dot, y: cy - dot }, thickness: 0.5, color: INK });
+  }
+  page.drawText('operator side (front)', { x: x0, y: y0 - 9, size: 6.5, font: f.regular, color: MUTED });
+  f.y = y0 - 12;
+  // Legend
+  f.y -= 10;
+  let lx = f.left;
+  for (const v of ['in', 'marginal', 'out', 'missing'] as const) {
+    if (v === 'missing') page.drawCircle({ x: lx + 3, y: f.y + 3, size: 2.5, borderColor: COLOURS[v], borderWidth: 0.6 });
+    else page.drawCircle({ x: lx + 3, y: f.y + 3, size: 2.5, color: COLOURS[v] });
+    page.drawText(v, { x: lx + 9, y: f.y, size: 7.5, font: f.regular, color: INK });
+    lx += 58;
+  }
+  page.drawText(drawable(f.regular, `x  unmatched hole.   Arrows: deviation from nominal, drawn ${exaggeration}x larger than the map scale.`), { x: lx, y: f.y, size: 7.5, font: f.regular, color: INK });
+}
+
+/** Renders a check's report as PDF bytes. */
+export async function renderReportPdf(report: Report, opts: ReportPdfOptions): Promise<Uint8Array> {
+  const doc = await PDFDocument.create();
+  const title = [opts.bedName, opts.checkTitle].filter((s): s is string => !!s).join(' — ') || report.pattern.name;
+  doc.setTitle(`Gridproof bed check: ${title}`);
+  doc.setCreator('Gridproof');
+  doc.setProducer('Gridproof');
+  const regular = await doc.embedFont(StandardFonts.Helvetica);
+  const bold = await doc.embedFont(StandardFonts.HelveticaBold);
+  const f = new Flow(doc, opts.paper ?? 'a4', regular, bold);
+  const inch = opts.units === 'in';
+  const len = (mm: number, digits = 3) => (inch ? `${(mm / MM_PER_IN).toFixed(digits + 1)} in` : `${mm.toFixed(digits)} mm`);
+  const signed = (mm: number) => {
+    const v = inch ? mm / MM_PER_IN : mm;
+    return `${v >= 0 ? '+' : '-'}${Math.abs(v).toFixed(inch ? 4 : 3)}`;
+  };
+  const unitName = inch ? 'in' : 'mm';
+
+  // Header
+  f.y -= 16;
+  f.text('Gridproof bed check', { size: 16, font: bold });
+  f.y -= 14;
+  f.text(`${opts.workshopName} · ${title}${opts.checkedAt ? ` · ${utc(opts.checkedAt)}` : ''}`, { size: 9.5, color: MUTED });
+  f.y -= 12;
+  f.text(`Pattern: ${report.pattern.name}`, { size: 8.5, color: MUTED });
+
+  // Verdict
+  const s = report.summary;
+  f.y -= 10;
+  const sentenceLines = wrapText(regular, s.sentence, 10, f.textWidth - 20);
+  const boxH = 22 + sentenceLines.length * 13;
+  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: f.textWidth, height: boxH, color: rgb(0.965, 0.973, 0.969) });
+  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: 4, height: boxH, color: BED_VERDICT_COLOURS[s.verdict] });
+  f.y -= 16;
+  f.text(BED_VERDICT_WORDS[s.verdict], { x: f.left + 12, size: 12, font: bold, color: BED_VERDICT_COLOURS[s.verdict] });
+  for (const line of sentenceLines) {
+    f.y -= 13;
+    f.text(line, { x: f.left + 12, size: 10 });
+  }
+  f.y -= 10;
+
+  // Summary and lattice figures
+  f.heading('Figures');
+  const lat = report.lattice;
+  const u = lat.uncertainty;
+  const pm = (v: number | null, digits: number, k = 1) => (v === null ? '' : ` ± ${(v * k).toFixed(digits)}`);
+  const scaleLine = (name: string, v: number | null, sd: number | null) =>
+    v === null ? `${name}: not measured` : `${name}: ${((v - 1) * 1000).toFixed(3)}${pm(sd, 3, 1000)} mm per metre (factor ${v.toFixed(6)})`;
+  const figures = [
+    `Positions: ${s.matched} measured, ${s.missing} missing, ${s.out} out, ${s.marginal} marginal; ${report.unmatched.length} holes not on the pattern.`,
+    `Deviation: RMS ${len(s.rmsMm)}, largest ${len(s.maxMm)}.`,
+    `Lattice rotation on the photo: ${lat.rotationDeg.toFixed(3)}°${pm(u.rotationDeg, 3)}.`,
+    scaleLine('Scale along X', lat.scaleX, u.scaleX),
+    scaleLine('Scale along Y', lat.scaleY, u.scaleY),
+    lat.squarenessDeg === null ? 'Squareness: not measured' : `Squareness (departure of the X and Y rows from 90°): ${lat.squarenessDeg.toFixed(4)}°${pm(u.squarenessDeg, 4)}.`,
+    ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
+    `Lens model: focal length ${report.camera.focalPx.toFixed(0)} px, k1 ${report.camera.k1.toExponential(2)}, k2 ${report.camera.k2.toExponential(2)}.`,
+  ];
+  for (const line of figures) f.paragraph(line, { size: 9 });
+
+  // Map
+  f.heading('Deviation map');
+  drawMap(f, report);
+
+  // Panels
+  if (report.panels.length) {
+    f.heading('Panels and the moves that correct them');
+    table(
+      f,
+      [
+        { title: 'Panel', width: 50 },
+        { title: `dX ${unitName}`, width: 48, align: 'right' },
+        { title: `dY ${unitName}`, width: 48, align: 'right' },
+        { title: 'Turn °', width: 44, align: 'right' },
+        { title: 'Holes', width: 34, align: 'right' },
+        { title: `± ${unitName}`, width: 40, align: 'right' },
+        { title: 'Correcting move', width: 230, wrap: true },
+      ],
+      report.panels.map((q) => [q.id, signed(q.dx), signed(q.dy), q.rotationDeg.toFixed(3), String(q.positions), len(q.uncertaintyMm, 3).replace(/ (mm|in)$/, ''), q.correction]),
+    );
+  }
+  if (report.seams.length) {
+    f.heading('Steps at panel seams');
+    table(
+      f,
+      [
+        { title: 'Between', width: 90 },
+        { title: `dX ${unitName}`, width: 60, align: 'right' },
+        { title: `dY ${unitName}`, width: 60, align: 'right' },
+        { title: `Step ${unitName}`, width: 60, align: 'right' },
+        { title: `± ${unitName}`, width: 60, align: 'right' },
+      ],
+      report.seams.map((m) => [`${m.a} / ${m.b}`, signed(m.dx), signed(m.dy), len(m.r).replace(/ (mm|in)$/, ''), len(m.uncertaintyMm).replace(/ (mm|in)$/, '')]),
+    );
+  }
+
+  // Positions out or marginal
+  const flagged = report.positions
+    .filter((q) => q.verdict === 'out' || q.verdict === 'marginal')
+    .sort((a, b) => (a.verdict === b.verdict ? (b.deviation?.r ?? 0) - (a.deviation?.r ?? 0) : a.verdict === 'out' ? -1 : 1));
+  f.heading('Positions out of tolerance or marginal');
+  if (!flagged.length) f.paragraph('None: every measured position is within its tolerance.');
+  else {
+    const maxRows = opts.maxPositionRows ?? 400;
+    table(
+      f,
+      [
+        { title: 'Position', width: 70 },
+        { title: 'Family', width: 55 },
+        { title: 'Panel', width: 45 },
+        { title: `dX ${unitName}`, width: 55, align: 'right' },
+        { title: `dY ${unitName}`, width: 55, align: 'right' },
+        { title: `Off ${unitName}`, width: 55, align: 'right' },
+        { title: `Allowed ${unitName}`, width: 60, align: 'right' },
+        { title: 'Verdict', width: 50 },
+      ],
+      flagged.slice(0, maxRows).map((q) => [
+        q.label, q.family, q.panel ?? '',
+        q.deviation ? signed(q.deviation.dx) : '', q.deviation ? signed(q.deviation.dy) : '',
+        q.deviation ? len(q.deviation.r).replace(/ (mm|in)$/, '') : '', len(q.toleranceMm).replace(/ (mm|in)$/, ''), q.verdict,
+      ]),
+    );
+    if (flagged.length > maxRows) f.paragraph(`… and ${flagged.length - maxRows} more (see the report online).`, { color: MUTED });
+  }
+  const missing = report.positions.filter((q) => q.verdict === 'missing');
+  if (missing.length) {
+    f.y -= 6;
+    f.paragraph(`Not seen (${missing.length}): ${missing.slice(0, 120).map((q) => q.label).join(', ')}${missing.length > 120 ? ', …' : ''}`, { size: 8, color: MUTED });
+  }
+
+  // Comments
+  if (opts.comments?.length) {
+    f.heading('Comments');
+    for (const c of opts.comments) {
+      f.paragraph(`${c.author ?? 'Former member'}${c.positionLabel ? ` on ${c.positionLabel}` : ''} · ${utc(c.createdAt)}`, { size: 8, font: bold, color: MUTED });
+      f.paragraph(c.body, { size: 9, indent: 8 });
+      f.y -= 4;
+    }
+  }
+
+  // Footers
+  const n = f.pages.length;
+  f.pages.forEach((page, k) => {
+    const footer = drawable(regular, `Gridproof · ${opts.workshopName} · bed frame: origin front-left, +X right, +Y away from the operator · page ${k + 1} of ${n}`);
+    page.drawText(footer, { x: f.margin, y: f.margin - 4, size: 6.5, font: regular, color: MUTED });
+  });
+  return doc.save();
+}

@@ -1,0 +1,103 @@
+/**
+ * The report PDF, read back from its bytes: structure per ISO 32000-1 (header `%PDF-` §7.5.2, `%%EOF` at the
+ * end §7.5.5), text shown on the pages, and the deviation map's geometry (markers on the bed's lattice, the
+ * operator's side at the bottom, one marker per position by verdict colour).
+ */
+import { PDFDocument } from 'pdf-lib';
+import { describe, expect, it } from 'vitest';
+import { renderReportPdf } from '@/lib/pdf/report';
+import { bounds, readPage, type PageContent } from './pdf-reader';
+import { buildReport } from './report-fixture';
+
+async function allPages(bytes: Uint8Array): Promise<PageContent[]> {
+  const n = (await PDFDocument.load(bytes)).getPageCount();
+  return Promise.all(Array.from({ length: n }, (_, k) => readPage(bytes, k)));
+}
+const textOf = (pages: PageContent[]) => pages.flatMap((p) => p.texts.map((t) => t.text)).join(' ');
+
+const OUT_RGB: [number, number, number] = [0.68, 0.2, 0.17];
+const IN_RGB: [number, number, number] = [0.18, 0.44, 0.37];
+const same = (a: [number, number, number] | null, b: [number, number, number]) => !!a && a.every((v, k) => Math.abs(v - b[k]!) < 1e-3);
+
+describe('report PDF', () => {
+  it('renders a full report: verdict, figures, panel moves and the positions out or marginal', async () => {
+    const report = buildReport();
+    const bytes = await renderReportPdf(report, { workshopName: 'North Bench', bedName: 'Main spoilboard', checkTitle: 'After resurfacing', checkedAt: Date.UTC(2026, 11, 2, 8, 0), comments: [{ author: 'Ada', positionLabel: 'insert D3', body: 'Binds when the clamp is tight.', createdAt: Date.UTC(2026, 11, 2, 9, 0) }] });
+    expect(Buffer.from(bytes.subarray(0, 5)).toString('latin1')).toBe('%PDF-');
+    expect(Buffer.from(bytes.subarray(bytes.length - 8)).toString('latin1')).toContain('%%EOF');
+    const pages = await allPages(bytes);
+    const text = textOf(pages);
+    expect(text).toContain('Gridproof bed check');
+    expect(text).toContain('North Bench');
+    expect(text).toContain('Main spoilboard');
+    expect(text).toContain('2026-12-02 08:00 UTC');
+    expect(text).toContain(report.summary.verdict === 'fail' ? 'Fails' : 'Marginal');
+    // The verdict sentence (wrapped over lines) appears word for word.
+    const words = report.summary.sentence.split(' ');
+    expect(words.every((w) => text.includes(w))).toBe(true);
+    // Figures: scale 1.00021 is +0.210 mm per metre; squareness; RMS.
+    expect(text).toContain('0.210 ± 0.040 mm per metre');
+    expect(text).toContain('-0.120 ± 0.040 mm per metre');
+    expect(text).toContain('0.0123');
+    expect(text).toContain(`RMS ${report.summary.rmsMm.toFixed(3)} mm`);
+    // Panel moves, with the contract's unicode minus drawn as '-'.
+    expect(text).toContain('move X by -0.12 mm (-0.005 in)');
+    // Every position out or marginal is listed by label.
+    const flagged = report.positions.filter((p) => p.verdict === 'out' || p.verdict === 'marginal');
+    expect(flagged.length).toBeGreaterThanOrEqual(2);
+    for (const p of flagged) expect(text).toContain(p.label);
+    expect(text).toContain('Binds when the clamp is tight.');
+    expect(text).toMatch(/page 1 of \d/);
+  });
+
+  it('draws one marker per position on the lattice, operator side at the bottom', async () => {
+    const report = buildReport();
+    const [first] = await allPages(await renderReportPdf(report, { workshopName: 'W' }));
+    // Markers are small (a few pt); the verdict bar and map background are not.
+    const filled = first!.paths.filter((p) => p.fill && p.fillRgb && (({ minY, maxY }) => maxY - minY < 10)(bounds(p.subpaths.flat())));
+    const centre = (p: (typeof filled)[number]) => { const b = bounds(p.subpaths.flat()); return [(b.minX + b.maxX) / 2, (b.minY + b.maxY) / 2] as const; };
+    const outMarkers = filled.filter((p) => same(p.fillRgb, OUT_RGB));
+    const inMarkers = filled.filter((p) => same(p.fillRgb, IN_RGB));
+    const expectIn = report.positions.filter((p) => p.verdict === 'in').length;
+    const expectOut = report.positions.filter((p) => p.verdict === 'out').length;
+    // Plus one legend swatch per colour.
+    expect(outMarkers.length).toBe(expectOut + 1);
+    expect(inMarkers.length).toBe(expectIn + 1);
+    // The inserts sit on a 100 mm lattice: marker centres (legend excluded, it lies below the map) differ by
+    // whole multiples of one page pitch along x.
+    const legendY = Math.min(...inMarkers.map((p) => centre(p)[1]));
+    const xs = [...new Set(inMarkers.map(centre).filter((c) => c[1] > legendY + 1).map((c) => c[0].toFixed(2)))].map(Number).sort((a, b) => a - b);
+    const pitch = xs[1]! - xs[0]!;
+    for (const x of xs) expect(Math.abs((x - xs[0]!) / pitch - Math.round((x - xs[0]!) / pitch))).toBeLessThan(0.01);
+    // +Y (away from the operator) is up the page: the dog row (largest Y) is drawn above every insert.
+    const dogs = report.positions.filter((p) => p.family === 'dog' && p.verdict === 'in');
+    expect(dogs.length).toBeGreaterThan(0);
+    const markerYs = inMarkers.map(centre).filter((c) => c[1] > legendY + 1).map((c) => c[1]);
+    const top = Math.max(...markerYs);
+    const dogCount = markerYs.filter((y) => Math.abs(y - top) < 0.01).length;
+    expect(dogCount).toBe(dogs.length);
+  });
+
+  it('prints lengths in inches when asked', async () => {
+    const report = buildReport();
+    const text = textOf(await allPages(await renderReportPdf(report, { workshopName: 'W', units: 'in' })));
+    // 25.4 mm = 1 in exactly: the largest deviation in inches.
+    expect(text).toContain(`largest ${(report.summary.maxMm / 25.4).toFixed(4)} in`);
+    expect(text).toContain('dX in');
+  });
+
+  it('flows a large report over several pages and survives text the font cannot show', async () => {
+    const report = buildReport({ cols: 60, rows: 40, seed: 3 });
+    expect(report.positions.length).toBeGreaterThan(2000);
+    const bytes = await renderReportPdf(report, { workshopName: 'Werkstatt → Nord ≈ 🛠', paper: 'letter', maxPositionRows: 150, comments: [{ author: null, positionLabel: null, body: 'x'.repeat(3000), createdAt: 0 }] });
+    const pages = await allPages(bytes);
+    expect(pages.length).toBeGreaterThan(1);
+    for (const p of pages) {
+      expect(p.mediaBox[2]).toBeCloseTo(612, 6); // US Letter, 8.5 in × 72
+      expect(p.mediaBox[3]).toBeCloseTo(792, 6);
+    }
+    const text = textOf(pages);
+    expect(text).toContain('Werkstatt -> Nord ~ ?');
+    expect(text).toContain(`page ${pages.length} of ${pages.length}`);
+  });
+});
