@@ -1,6 +1,6 @@
 /**
  * When a finished fit should be looked at by a person before it is trusted. A check is flagged when fewer
- * than half of the pattern's positions were matched, or when there are more unmatched detections than
+ * than half of the pattern's visible positions (not under the reference sheet) were matched, or when there are more unmatched detections than
  * matched ones (a different bed, a wrong pattern or many false holes). Thresholds are ours (common practice
  * for a robust fit: a consensus below one half is not a consensus).
  */
@@ -8,7 +8,8 @@ import type { Report } from '@/lib/geometry/contract';
 
 /** The reason the report needs review, in words for the machinist, or null when it can be trusted. */
 export function needsReview(report: Report): string | null {
-  const total = report.positions.length;
+  // positions under the reference sheet are expected to be unseen
+  const total = report.positions.filter((p) => !p.hidden).length;
   const matched = report.summary.matched;
   const unmatched = report.unmatched.length;
   if (total > 0 && matched < total / 2) {
