@@ -5,3 +5,4 @@ export { startLocalSmtp, listLocalMail, getLocalMail, type LocalMail, type Local
 export { reportMail, invitationMail, passwordResetMail, MAIL_KINDS, type MailContent, type MailKind, type ReportMailInput, type InvitationMailInput, type PasswordResetMailInput } from './templates';
 export { deliverPendingMail, queueMail, type DeliverOptions, type DeliverResult } from './outbox';
 export { escapeHtml } from './html';
+export { renderDeviationMapSvg, renderDeviationMapPng, type MapImageOptions } from './map-image';

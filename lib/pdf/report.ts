@@ -8,7 +8,8 @@
  * bottom. Lengths print in mm, or in inches when `units` is 'in'.
  */
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
-import { MM_PER_IN, type Report, type ReportPosition, type Verdict } from '@/lib/geometry/contract';
+import { MM_PER_IN, type Report, type Verdict } from '@/lib/geometry/contract';
+import { mapGeometry, nearestSpacing, niceFactor, VERDICT_RGB } from './map';
 import { drawable, wrapText } from './text';
 import { mmToPt, paperSizePt, type Paper } from './units';
 
@@ -35,10 +36,10 @@ export interface ReportPdfOptions {
 }
 
 const COLOURS: Record<Verdict, RGB> = {
-  in: rgb(0.18, 0.44, 0.37),
-  marginal: rgb(0.72, 0.5, 0.0),
-  out: rgb(0.68, 0.2, 0.17),
-  missing: rgb(0.55, 0.57, 0.56),
+  in: rgb(...VERDICT_RGB.in),
+  marginal: rgb(...VERDICT_RGB.marginal),
+  out: rgb(...VERDICT_RGB.out),
+  missing: rgb(...VERDICT_RGB.missing),
 };
 const BED_VERDICT_WORDS = { pass: 'Passes', marginal: 'Marginal', fail: 'Fails' } as const;
 const BED_VERDICT_COLOURS = { pass: COLOURS.in, marginal: COLOURS.marginal, fail: COLOURS.out } as const;
@@ -131,60 +132,6 @@ function table(f: Flow, columns: Column[], rows: string[][], size = 8) {
     if (f.pages.length !== before) drawRow(columns.map((c) => c.title), f.bold, MUTED);
     drawRow(r, f.regular, INK);
   }
-}
-
-interface MapGeometry {
-  widthMm: number;
-  heightMm: number;
-  originX: number;
-  originY: number;
-  panels: { id: string; x: number; y: number; width: number; height: number }[];
-}
-
-/** Bed outline and panels from the report's pattern when it carries them, else the positions' bounds. */
-function mapGeometry(report: Report): MapGeometry {
-  const p = report.pattern as Record<string, unknown>;
-  const bed = p.bed as { width?: unknown; height?: unknown } | undefined;
-  const panelsRaw = Array.isArray(p.panels) ? (p.panels as Record<string, unknown>[]) : [];
-  const panels = panelsRaw
-    .filter((q) => typeof q.id === 'string' && [q.x, q.y, q.width, q.height].every((v) => typeof v === 'number' && Number.isFinite(v)))
-    .map((q) => ({ id: q.id as string, x: q.x as number, y: q.y as number, width: q.width as number, height: q.height as number }));
-  const inMm = p.units !== 'in';
-  if (bed && typeof bed.width === 'number' && typeof bed.height === 'number' && bed.width > 0 && bed.height > 0) {
-    const k = inMm ? 1 : MM_PER_IN;
-    return { widthMm: bed.width * k, heightMm: bed.height * k, originX: 0, originY: 0, panels: panels.map((q) => ({ ...q, x: q.x * k, y: q.y * k, width: q.width * k, height: q.height * k })) };
-  }
-  const xs = report.positions.map((q) => q.nominal.x);
-  const ys = report.positions.map((q) => q.nominal.y);
-  const minX = xs.length ? Math.min(...xs) : 0;
-  const minY = ys.length ? Math.min(...ys) : 0;
-  const w = xs.length ? Math.max(...xs) - minX : 100;
-  const h = ys.length ? Math.max(...ys) - minY : 100;
-  const pad = Math.max(w, h, 1) * 0.05;
-  return { widthMm: w + 2 * pad, heightMm: h + 2 * pad, originX: minX - pad, originY: minY - pad, panels: [] };
-}
-
-/** Smallest distance between two nominal positions of one family (mm), for the arrow scale. */
-function nearestSpacing(positions: ReportPosition[]): number {
-  const byFamily = new Map<string, ReportPosition[]>();
-  for (const q of positions) byFamily.set(q.family, [...(byFamily.get(q.family) ?? []), q]);
-  let best = Infinity;
-  for (const list of byFamily.values()) {
-    const sample = list.slice(0, 200);
-    for (const a of sample) for (const b of list) {
-      if (a === b) continue;
-      const d = Math.hypot(a.nominal.x - b.nominal.x, a.nominal.y - b.nominal.y);
-      if (d > 1e-9 && d < best) best = d;
-    }
-  }
-  return Number.isFinite(best) ? best : 50;
-}
-
-function niceFactor(x: number): number {
-  if (!(x > 0) || !Number.isFinite(x)) return 1;
-  const e = Math.pow(10, Math.floor(Math.log10(x)));
-  const m = x / e;
-  return (m >= 5 ? 5 : m >= 2 ? 2 : 1) * e;
 }
 
 function drawMap(f: Flow, report: Report) {

@@ -3,7 +3,6 @@ import { mkdtemp, rm } from 'node:fs/promises';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import sharp from 'sharp';
 import { migrateDb, openDb, type Db } from '@/db/client';
 import { workshops } from '@/db/schema';
 
@@ -32,9 +31,4 @@ export async function freePort(): Promise<number> {
       s.close(() => ok(port));
     });
   });
-}
-
-/** A small real PNG (sharp encodes it), standing in for the deviation map the caller renders. */
-export async function mapPng(): Promise<Buffer> {
-  return sharp({ create: { width: 48, height: 32, channels: 3, background: { r: 40, g: 120, b: 90 } } }).png().toBuffer();
 }

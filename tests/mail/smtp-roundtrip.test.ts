@@ -14,7 +14,9 @@ import { getLocalMail, listLocalMail, startLocalSmtp, type LocalMail, type Local
 import { deliverPendingMail, queueMail } from '@/lib/mail/outbox';
 import { invitationMail, passwordResetMail, reportMail } from '@/lib/mail/templates';
 import { createMailer, type Mailer } from '@/lib/mail/transport';
-import { mapPng, migratedDb, tempDir } from './helpers';
+import { renderDeviationMapPng } from '@/lib/mail/map-image';
+import { buildReport } from '../pdf/report-fixture';
+import { migratedDb, tempDir } from './helpers';
 
 let cleanup: () => Promise<void>;
 let mailDir: string;
@@ -42,7 +44,7 @@ afterAll(async () => {
 
 describe('mail over a real SMTP round trip', () => {
   it('delivers a shared report with its link, both parts and the deviation map inline', async () => {
-    const png = await mapPng();
+    const png = await renderDeviationMapPng(buildReport());
     const link = 'https://gridproof.test/s/4b0c1e0d9a7f4d3c8e2b1a6f5c4d3e2f';
     const content = reportMail({
       workshopName: 'North Bench <Shop>',
