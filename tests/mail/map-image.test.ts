@@ -22,7 +22,7 @@ describe('deviation map image', () => {
 
   it('escapes panel names in the SVG', () => {
     const report = buildReport();
-    (report.pattern as { panels: { id: string }[] }).panels[0]!.id = '<P&1>';
+    (report.pattern as unknown as { panels: { id: string }[] }).panels[0]!.id = '<P&1>';
     const svg = renderDeviationMapSvg(report);
     expect(svg).toContain('&lt;P&amp;1&gt;');
     expect(svg).not.toContain('<P&1>');
@@ -34,7 +34,7 @@ describe('deviation map image', () => {
     const meta = await sharp(png).metadata();
     expect(meta.format).toBe('png');
     expect(meta.width).toBe(640);
-    const bed = report.pattern as { bed: { width: number; height: number } };
+    const bed = report.pattern as unknown as { bed: { width: number; height: number } };
     // Drawn height = (640 − 2·10 px padding) × bed aspect, plus padding and the legend strip (42 px).
     expect(meta.height).toBe(Math.ceil(((640 - 20) * bed.bed.height) / bed.bed.width + 20 + 22));
   });
