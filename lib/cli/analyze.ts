@@ -1,0 +1,42 @@
+/**
+ * CLI: `npm run -s analyze -- --points POINTS.json --pattern PATTERN.json [--corner-sigma PX]`
+ * Prints the report JSON (bed frame, mm) on stdout and exits 0. Bad input exits 2 with one line on stderr that
+ * names the field (bad JSON, schema violation, too few matched holes, reference corners not convex…).
+ */
+import { readFileSync } from 'node:fs';
+import { analyzePoints, GeometryInputError, type Pattern, type Points } from '../geometry/index';
+
+function fail(message: string): never {
+  process.stderr.write(`analyze: ${message}\n`);
+  process.exit(2);
+}
+
+function argValue(args: string[], name: string): string | undefined {
+  const i = args.indexOf(name);
+  if (i < 0) return undefined;
+  const v = args[i + 1];
+  if (v === undefined || v.startsWith('--')) fail(`${name} needs a value`);
+  return v;
+}
+
+function readJson(path: string, what: string): unknown {
+  let text: string;
+  try { text = readFileSync(path, 'utf8'); } catch (e) { fail(`${what}: cannot read ${path} (${(e as NodeJS.ErrnoException).code ?? 'error'})`); }
+  try { return JSON.parse(text); } catch (e) { fail(`${what}: ${path} is not valid JSON (${(e as Error).message.split('\n')[0]})`); }
+}
+
+const args = process.argv.slice(2);
+const pointsPath = argValue(args, '--points'), patternPath = argValue(args, '--pattern');
+if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX]');
+const sigmaArg = argValue(args, '--corner-sigma');
+const cornerSigmaPx = sigmaArg === undefined ? undefined : Number(sigmaArg);
+if (cornerSigmaPx !== undefined && !(cornerSigmaPx > 0)) fail('--corner-sigma: must be a positive number of px');
+const points = readJson(pointsPath, 'points') as Points;
+const pattern = readJson(patternPath, 'pattern') as Pattern;
+try {
+  const report = analyzePoints(points, pattern, { cornerSigmaPx });
+  process.stdout.write(`${JSON.stringify(report)}\n`);
+} catch (e) {
+  if (e instanceof GeometryInputError) fail(e.message);
+  throw e;
+}

@@ -1,0 +1,69 @@
+import { createRequire } from 'node:module';
+import { describe, expect, it } from 'vitest';
+import { distortPx, focalFromHomography, lookAt, projectBedPoint, undistortPx, type Lens } from '@/lib/geometry/camera';
+import { homographyDlt, type Pt } from '@/lib/geometry/homography';
+
+const require = createRequire(import.meta.url);
+
+describe('Brown–Conrady lens model', () => {
+  it("maps ideal pixels to distorted ones as OpenCV's undistort does", () => {
+    // Independent library: OpenCV 4.3 (opencv-wasm) cv.undistort. Undistorting an image whose pixel value is its own
+    // x (or y) coordinate yields, at each ideal pixel, the distorted source coordinate OpenCV samples — its
+    // Brown–Conrady forward map (bilinear interpolation of a linear ramp is exact up to OpenCV's 1/32 px tables).
+    const { cv } = require('opencv-wasm') as { cv: any };
+    const W = 320, H = 240;
+    const lens: Lens = { fPx: 300, cx: 160, cy: 120, k1: -0.2, k2: 0.05 };
+    const K = cv.matFromArray(3, 3, cv.CV_64F, [lens.fPx, 0, lens.cx, 0, lens.fPx, lens.cy, 0, 0, 1]);
+    const D = cv.matFromArray(1, 5, cv.CV_64F, [lens.k1, lens.k2, 0, 0, 0]);
+    const maps = [0, 1].map((axis) => {
+      const ramp = new Array(W * H);
+      for (let y = 0; y < H; y++) for (let x = 0; x < W; x++) ramp[y * W + x] = axis === 0 ? x : y;
+      const src = cv.matFromArray(H, W, cv.CV_32F, ramp);
+      const dst = new cv.Mat();
+      cv.undistort(src, dst, K, D);
+      const out = Float32Array.from(dst.data32F as Float32Array);
+      src.delete(); dst.delete();
+      return out;
+    });
+    K.delete(); D.delete();
+    let checked = 0;
+    for (const [u, v] of [[300, 120], [20, 220], [160, 10], [250, 200], [60, 40]] as const) {
+      const [du, dv] = distortPx(lens, u, v);
+      expect(Math.abs(maps[0]![v * W + u]! - du)).toBeLessThan(0.05);
+      expect(Math.abs(maps[1]![v * W + u]! - dv)).toBeLessThan(0.05);
+      checked++;
+    }
+    expect(checked).toBe(5);
+  });
+
+  it('undistorts what it distorts', () => {
+    const lens: Lens = { fPx: 3000, cx: 2000, cy: 1500, k1: -0.08, k2: 0.02 };
+    for (const [u, v] of [[0, 0], [4000, 3000], [2500, 100]] as const) {
+      const [a, b] = distortPx(lens, u, v);
+      const [x, y] = undistortPx(lens, a, b, 20);
+      expect(Math.hypot(x - u, y - v)).toBeLessThan(1e-6);
+    }
+  });
+});
+
+describe('pinhole projection', () => {
+  it('looks straight down with the bed front at the bottom of the photo', () => {
+    const cam = { ...lookAt([500, 500, 1000], [500, 500, 0]), fPx: 1000, cx: 500, cy: 500, k1: 0, k2: 0 };
+    expect(projectBedPoint(cam, 500, 500)).toEqual([500, 500]);
+    const right = projectBedPoint(cam, 600, 500)!, away = projectBedPoint(cam, 500, 600)!;
+    expect(right[0]).toBeCloseTo(600, 9); // +X → image right
+    expect(away[1]).toBeCloseTo(400, 9); // +Y (away from the operator) → image up
+  });
+
+  it('recovers the focal length of a tilted view from a metric homography (Zhang 2000)', () => {
+    const f = 2800;
+    const cam = { ...lookAt([900, -300, 1400], [600, 500, 0]), fPx: f, cx: 2000, cy: 1500, k1: 0, k2: 0 };
+    const plane: Pt[] = [[0, 0], [1200, 0], [1200, 1000], [0, 1000], [600, 500]];
+    const h = homographyDlt(plane, plane.map((p) => projectBedPoint(cam, p[0], p[1])!));
+    expect(focalFromHomography(h, 2000, 1500)! / f).toBeCloseTo(1, 6);
+    // Straight down, the constraint cannot decide f: no number rather than a wrong one.
+    const top = { ...lookAt([600, 500, 1400], [600, 500, 0]), fPx: f, cx: 2000, cy: 1500, k1: 0, k2: 0 };
+    const h2 = homographyDlt(plane, plane.map((p) => projectBedPoint(top, p[0], p[1])!));
+    expect(focalFromHomography(h2, 2000, 1500)).toBeNull();
+  });
+});
