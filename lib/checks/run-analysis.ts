@@ -155,7 +155,7 @@ function withHint(message: string, cornersGiven: boolean): string {
 }
 
 /** Re-fit after review: the check's stored (edited) detections → report; no vision. */
-export async function runCheckRefit(ctx: JobContext, deps: AnalysisDeps): Promise<void> {
+export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>): Promise<void> {
   const { check, pattern } = await loadInputs(ctx);
   const held = { jobId: ctx.job.id, token: ctx.job.lockToken };
   if (!check.detectionsJson) throw new PermanentJobError('This check has no detections to fit yet. Mark the square and the holes in review first.');
@@ -170,7 +170,7 @@ export async function runCheckRefit(ctx: JobContext, deps: AnalysisDeps): Promis
 }
 
 async function fitAndSave(
-  ctx: JobContext, deps: AnalysisDeps, checkId: string, pattern: Pattern, points: Points,
+  ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>, checkId: string, pattern: Pattern, points: Points,
   report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
 ) {
   report('fitting');
