@@ -8,11 +8,11 @@ import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
 import { checkStatusView, getCheck, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
+import { compareReports, type Comparison } from '@/lib/geometry';
 import { PointsSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from '@/lib/services/actor';
 import { type Storage, uploadMaxBytes } from '@/lib/storage';
-import { compareReports, type Comparison } from './compare';
 import { CornersSchema, intakePhoto, IntakeError } from './intake';
 
 /** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
@@ -150,7 +150,7 @@ export async function listChecks(db: Db, actor: Actor, bedId: string): Promise<C
   return listBedChecks(db, actor.workshopId, bedId);
 }
 
-/** `GET /api/checks/{a}/compare/{b}`: what changed from check a to check b (same bed). */
+/** `GET /api/checks/{a}/compare/{b}`: what changed from check a to check b (same bed), by the measurement core. */
 export async function compareChecks(db: Db, actor: Actor, a: string, b: string): Promise<{ before: string; after: string; comparison: Comparison }> {
   authorize(actor, 'workshop:read');
   const [ra, rb] = await Promise.all([getCheck(db, actor.workshopId, a), getCheck(db, actor.workshopId, b)]);
