@@ -221,3 +221,27 @@ export async function getLocalMail(id: string, options: { dir?: string } = {}): 
   const htmlWithInlineImages = typeof parsed.html === 'string' ? parsed.html : null;
   return { ...summary, attachments, htmlWithInlineImages, raw: raw.toString('utf8') };
 }
+
+const RUNNING = Symbol.for('gridproof.localSmtp');
+type GlobalWithSmtp = typeof globalThis & { [RUNNING]?: Promise<LocalSmtpServer | null> };
+
+/**
+ * Starts the development mail server once per process when mail is in local mode (no SMTP_HOST, not
+ * production); resolves null when it is not wanted or another process (the web app or the worker) already
+ * listens on the port. Safe to call from every start-up path and across dev hot reloads.
+ */
+export function ensureLocalSmtp(options: Omit<LocalSmtpOptions, 'port'> & { env?: Record<string, string | undefined> } = {}): Promise<LocalSmtpServer | null> {
+  const g = globalThis as GlobalWithSmtp;
+  g[RUNNING] ??= (async () => {
+    const env = options.env ?? process.env;
+    if (env.SMTP_HOST || env.NODE_ENV === 'production') return null;
+    const port = Number(env.LOCAL_SMTP_PORT) || DEFAULT_LOCAL_SMTP_PORT;
+    try {
+      return await startLocalSmtp({ ...options, port, dir: options.dir ?? env.LOCAL_MAIL_DIR });
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code === 'EADDRINUSE') return null;
+      throw err;
+    }
+  })();
+  return g[RUNNING];
+}

@@ -76,3 +76,22 @@ export async function deliverPendingMail(db: Db, transport: MailTransport, opts:
 export function queueMail(tx: DbOrTx, to: string, kind: MailKind, content: MailContent, workshopId?: string | null): Promise<string> {
   return enqueueMail(tx, { workshopId: workshopId ?? null, kind, to, subject: content.subject, text: content.text, html: content.html });
 }
+
+/**
+ * Delivers the outbox every `intervalMs` (default 5 s) until `signal` aborts; one pass at a time. Errors of a
+ * pass (the database busy, …) go to `onError` and the loop goes on. For the worker process.
+ */
+export async function runMailDelivery(db: Db, transport: MailTransport, opts: DeliverOptions & { intervalMs?: number; signal?: AbortSignal; onError?: (err: unknown) => void } = {}): Promise<void> {
+  const interval = opts.intervalMs ?? 5_000;
+  while (!opts.signal?.aborted) {
+    try {
+      await deliverPendingMail(db, transport, { from: opts.from, limit: opts.limit, maxAttempts: opts.maxAttempts });
+    } catch (err) {
+      opts.onError?.(err);
+    }
+    await new Promise<void>((ok) => {
+      const t = setTimeout(ok, interval);
+      opts.signal?.addEventListener('abort', () => { clearTimeout(t); ok(); }, { once: true });
+    });
+  }
+}

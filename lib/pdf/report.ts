@@ -332,10 +332,14 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     );
     if (flagged.length > maxRows) f.paragraph(`… and ${flagged.length - maxRows} more (see the report online).`, { color: MUTED });
   }
-  const missing = report.positions.filter((q) => q.verdict === 'missing');
+  const missing = report.positions.filter((q) => q.verdict === 'missing' && !q.hidden);
+  const hidden = report.positions.filter((q) => q.verdict === 'missing' && q.hidden);
   if (missing.length) {
     f.y -= 6;
     f.paragraph(`Not seen (${missing.length}): ${missing.slice(0, 120).map((q) => q.label).join(', ')}${missing.length > 120 ? ', …' : ''}`, { size: 8, color: MUTED });
+  }
+  if (hidden.length) {
+    f.paragraph(`Under the reference sheet, so not seen (${hidden.length}): ${hidden.slice(0, 60).map((q) => q.label).join(', ')}${hidden.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
 
   // Comments

@@ -8,8 +8,8 @@ import { SMTPServer } from 'smtp-server';
 import type { Db } from '@/db/client';
 import { claimMailAttempt, enqueueMail, getOutgoingMail, listOutgoingMail, MAIL_RETRY_AFTER_MS } from '@/db/queries/mail';
 import { mailConfigFromEnv } from '@/lib/mail/config';
-import { startLocalSmtp } from '@/lib/mail/local-smtp';
-import { deliverPendingMail } from '@/lib/mail/outbox';
+import { ensureLocalSmtp, listLocalMail, startLocalSmtp } from '@/lib/mail/local-smtp';
+import { deliverPendingMail, runMailDelivery } from '@/lib/mail/outbox';
 import { createMailer, type Mailer } from '@/lib/mail/transport';
 import { freePort, migratedDb, tempDir } from './helpers';
 
@@ -136,5 +136,46 @@ describe('outbox delivery', () => {
       }),
     ).rejects.toThrow('the invitation insert failed');
     expect((await listOutgoingMail(db, { workshopId })).length).toBe(before);
+  });
+});
+
+describe('mail delivery loop', () => {
+  it('delivers what is queued while it runs and stops when aborted', async () => {
+    const inbox = await startLocalSmtp({ port: 0, dir: `${dir}/inbox-loop` });
+    closers.push(() => inbox.close());
+    const m = mailerAt(inbox.port);
+    const { id } = await queueOne('loop@example.test');
+    const stop = new AbortController();
+    const loop = runMailDelivery(db, m.transport, { intervalMs: 20, signal: stop.signal });
+    for (let k = 0; k < 200 && (await getOutgoingMail(db, id))?.status !== 'sent'; k += 1) await new Promise((r) => setTimeout(r, 20));
+    stop.abort();
+    await loop;
+    expect((await getOutgoingMail(db, id))?.status).toBe('sent');
+    expect((await listLocalMail({ dir: `${dir}/inbox-loop` })).map((x) => x.to)).toEqual([['loop@example.test']]);
+  });
+});
+
+describe('local mail server start-up', () => {
+  it('is not started when a real SMTP server is configured or in production', async () => {
+    // ensureLocalSmtp decides once per process; clear its slot to check each case.
+    const slot = Symbol.for('gridproof.localSmtp');
+    const g = globalThis as unknown as Record<symbol, unknown>;
+    delete g[slot];
+    expect(await ensureLocalSmtp({ env: { SMTP_HOST: 'smtp.example.test' } })).toBeNull();
+    delete g[slot];
+    expect(await ensureLocalSmtp({ env: { NODE_ENV: 'production' } })).toBeNull();
+    delete g[slot];
+    // A port already taken by another process's server: no error, no second server.
+    const other = await startLocalSmtp({ port: 0, dir: `${dir}/inbox-other` });
+    closers.push(() => other.close());
+    expect(await ensureLocalSmtp({ env: { LOCAL_SMTP_PORT: String(other.port), LOCAL_MAIL_DIR: `${dir}/inbox-other` } })).toBeNull();
+    delete g[slot];
+    const port = await freePort();
+    const started = await ensureLocalSmtp({ env: { LOCAL_SMTP_PORT: String(port), LOCAL_MAIL_DIR: `${dir}/inbox-ensure` } });
+    expect(started?.port).toBe(port);
+    closers.push(() => started?.close());
+    // Started once per process.
+    expect(await ensureLocalSmtp({ env: { LOCAL_SMTP_PORT: String(port) } })).toBe(started);
+    delete g[slot];
   });
 });

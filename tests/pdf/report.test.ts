@@ -5,6 +5,10 @@
  */
 import { PDFDocument } from 'pdf-lib';
 import { describe, expect, it } from 'vitest';
+import { analyzePoints } from '@/lib/geometry/analyze';
+import { ReportSchema } from '@/lib/geometry/contract';
+import { presetById } from '@/lib/geometry/presets';
+import { makeScene } from '@/lib/geometry/synthetic';
 import { renderReportPdf } from '@/lib/pdf/report';
 import { bounds, readPage, type PageContent } from './pdf-reader';
 import { buildReport } from './report-fixture';
@@ -99,5 +103,21 @@ describe('report PDF', () => {
     const text = textOf(pages);
     expect(text).toContain('Werkstatt -> Nord ~ ?');
     expect(text).toContain(`page ${pages.length} of ${pages.length}`);
+  });
+});
+
+describe('report PDF from the measurement core', () => {
+  it('renders the report analyzePoints makes of a synthetic scene', async () => {
+    // A preset bed in strips, photographed by the core's own scene generator with panel shifts and one
+    // insert pushed 0.9 mm off; the report is whatever analyzePoints concludes.
+    const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
+    const scene = makeScene({ pattern, seed: 5, panelShiftMm: 0.3, extraDeviation: new Map([[7, [0.9, 0.2]]]) });
+    const report = ReportSchema.parse(analyzePoints(scene.points, pattern));
+    const pages = await allPages(await renderReportPdf(report, { workshopName: 'North Bench', paper: 'a4' }));
+    const text = textOf(pages);
+    for (const w of report.summary.sentence.split(' ')) expect(text).toContain(w.replace(/[−]/g, '-'));
+    for (const p of report.positions.filter((q) => q.verdict === 'out' || q.verdict === 'marginal')) expect(text).toContain(p.label);
+    for (const q of report.panels) expect(text).toContain(q.id);
+    for (const p of report.positions.filter((q) => q.verdict === 'missing')) expect(text).toContain(p.label);
   });
 });
