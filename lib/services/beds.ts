@@ -11,18 +11,19 @@ import { insertPatternRevision, listPatternRevisions } from '@/db/queries/patter
 import { PatternSchema, type Pattern } from '@/lib/geometry/contract';
 import { invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from './actor';
-import { findPreset } from './presets';
+import { buildPreset, PresetRefSchema, type PresetRef } from './presets';
 
-const PresetRef = z.object({ preset: z.string().min(1).max(80) }).strict();
-/** A pattern in a request: full JSON, or a preset reference. */
-export const PatternInputSchema = z.union([PresetRef, PatternSchema]);
+/** A pattern in a request: full JSON, or a preset reference with the bed's size. */
+export const PatternInputSchema = z.union([PresetRefSchema, PatternSchema]);
+/** `preset` at the top level: an id (default bed size) or a reference with sizes. */
+const TopPreset = z.union([z.string().min(1).max(80), PresetRefSchema]);
 
 export const BedCreateSchema = z
   .object({
     name: z.string().trim().min(1, 'Give the bed a name.').max(120),
     notes: z.string().trim().max(2000).optional(),
     pattern: PatternInputSchema.optional(),
-    preset: z.string().min(1).max(80).optional(),
+    preset: TopPreset.optional(),
   })
   .refine((b) => (b.pattern === undefined) !== (b.preset === undefined), { path: ['pattern'], message: 'Give either a pattern or a preset (one of them).' });
 export type BedCreateInput = z.infer<typeof BedCreateSchema>;
@@ -32,18 +33,19 @@ export const BedPatchSchema = z
     name: z.string().trim().min(1).max(120).optional(),
     notes: z.string().trim().max(2000).nullable().optional(),
     pattern: PatternInputSchema.optional(),
-    preset: z.string().min(1).max(80).optional(),
+    preset: TopPreset.optional(),
   })
   .refine((b) => !(b.pattern !== undefined && b.preset !== undefined), { path: ['pattern'], message: 'Give a pattern or a preset, not both.' });
 export type BedPatchInput = z.infer<typeof BedPatchSchema>;
 
 /** Turns a pattern input into a validated Pattern and the preset it came from. */
-export function resolvePattern(input: { pattern?: z.infer<typeof PatternInputSchema>; preset?: string }): { pattern: Pattern; presetId: string | null } {
-  const ref = input.preset ?? (input.pattern && 'preset' in input.pattern ? input.pattern.preset : undefined);
+export function resolvePattern(input: { pattern?: z.infer<typeof PatternInputSchema>; preset?: string | PresetRef }): { pattern: Pattern; presetId: string | null } {
+  const ref: PresetRef | undefined =
+    typeof input.preset === 'string' ? { preset: input.preset } : (input.preset ?? (input.pattern && 'preset' in input.pattern ? input.pattern : undefined));
   if (ref !== undefined) {
-    const found = findPreset(ref);
-    if (!found) throw invalidInput(`There is no preset "${ref}".`, { preset: 'Unknown preset.' });
-    return { pattern: found.pattern, presetId: found.id };
+    const built = buildPreset(ref);
+    if (!built) throw invalidInput(`There is no preset "${ref.preset}".`, { preset: 'Unknown preset.' });
+    return { pattern: built, presetId: ref.preset };
   }
   if (input.pattern && !('preset' in input.pattern)) return { pattern: input.pattern, presetId: null };
   throw invalidInput('Give a pattern or a preset.', { pattern: 'Required.' });
