@@ -14,7 +14,7 @@
  */
 import { closeDb, getDb } from '@/db/client';
 import { JOB_KINDS } from '@/db/queries/jobs';
-import { getStorage } from '@/lib/storage';
+import { getStorage, LocalStorage } from '@/lib/storage';
 import { runProbe } from './probe';
 import { jsonLog, startWorker, type JobHandler } from './run';
 
@@ -35,9 +35,15 @@ const handlers: Record<string, JobHandler> = {
 
 async function main() {
   const db = await getDb();
+  const storage = getStorage();
+  if (storage instanceof LocalStorage) {
+    // temp files of puts cut off by a crash (an hour old: no put in progress takes that long)
+    const swept = await storage.sweepTemp().catch(() => 0);
+    if (swept) jsonLog('storage.swept', { files: swept });
+  }
   const worker = startWorker({
     db,
-    storage: getStorage(),
+    storage,
     handlers,
     workerId: process.env.WORKER_ID || undefined,
     concurrency: intEnv('WORKER_CONCURRENCY', 1, 1),

@@ -4,7 +4,7 @@
  * failed put removes its temp file.
  */
 import { createReadStream } from 'node:fs';
-import { mkdir, readFile, rename, rm, stat } from 'node:fs/promises';
+import { mkdir, readdir, readFile, rename, rm, stat } from 'node:fs/promises';
 import { dirname, join, resolve } from 'node:path';
 import type { Readable } from 'node:stream';
 import { type OpenTemp, spoolToTempFile } from './spool';
@@ -75,5 +75,30 @@ export class LocalStorage implements Storage {
 
   async delete(key: string): Promise<void> {
     await rm(this.pathOf(key), { force: true });
+  }
+
+  /**
+   * Removes temp files left by a process that died in the middle of a put (older than `olderThanMs`, so a
+   * put in progress elsewhere is left alone). Returns how many were removed. Called when a worker starts.
+   */
+  async sweepTemp(olderThanMs = 60 * 60_000, now = Date.now()): Promise<number> {
+    let names: string[];
+    try {
+      names = await readdir(this.tmpDir);
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code === 'ENOENT') return 0;
+      throw e;
+    }
+    let removed = 0;
+    for (const name of names) {
+      if (!name.startsWith('.part-')) continue;
+      const path = join(this.tmpDir, name);
+      const s = await stat(path).catch(() => null);
+      if (s && now - s.mtimeMs >= olderThanMs) {
+        await rm(path, { force: true });
+        removed++;
+      }
+    }
+    return removed;
   }
 }

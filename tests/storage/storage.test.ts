@@ -3,6 +3,7 @@
  * registry, started here on a free loopback port). SHA-256 values are checked against node:crypto and the
  * FIPS 180-2 test vector for "abc" (ba7816bf…15ad).
  */
+import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { createWriteStream, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -125,6 +126,27 @@ describe('a full disk', () => {
       expect((err as StorageError).code).toBe('write-failed');
       expect((err as Error).message).toMatch(/ENOSPC|no space/i);
       expect(await storage.exists('photos/w1/full')).toBe(false);
+      expect(readdirSync(join(root, '.tmp'))).toEqual([]);
+    } finally {
+      rmSync(root, { recursive: true, force: true });
+    }
+  });
+});
+
+describe('a process killed in the middle of a put', () => {
+  it('shows no file under the key, and the sweep clears what it left behind', async () => {
+    const root = mkdtempSync(join(tmpdir(), 'gridproof-crash-'));
+    try {
+      const child = spawn(process.execPath, ['--import', 'tsx', 'tests/storage/crash-writer.ts', root], { cwd: process.cwd(), stdio: ['ignore', 'pipe', 'inherit'] });
+      await new Promise<void>((resolve) => child.stdout.on('data', (d: Buffer) => { if (d.toString().includes('writing')) resolve(); }));
+      child.kill('SIGKILL');
+      await new Promise((r) => child.on('exit', r));
+      const storage = new LocalStorage(root);
+      expect(await storage.exists('photos/w/crash')).toBe(false);
+      const left = readdirSync(join(root, '.tmp'));
+      expect(left.length).toBe(1);
+      expect(await storage.sweepTemp(60_000)).toBe(0); // too fresh: might be a put in progress
+      expect(await storage.sweepTemp(0)).toBe(1);
       expect(readdirSync(join(root, '.tmp'))).toEqual([]);
     } finally {
       rmSync(root, { recursive: true, force: true });
