@@ -23,10 +23,11 @@ import {
   stroke,
   fill,
 } from 'pdf-lib';
+import { z } from 'zod';
 import { MM_PER_IN } from '@/lib/geometry/contract';
 import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION, PAPER_MARGIN_FRACTION } from '@/lib/vision/target';
 import { wrapText } from './text';
-import { mmToPt, paperSizePt, type Paper } from './units';
+import { mmToPt, paperSizePt, PAPERS } from './units';
 
 export const TARGET_SIZES = ['100mm', '150mm', '4in'] as const;
 export type TargetSize = (typeof TARGET_SIZES)[number];
@@ -34,9 +35,13 @@ export type TargetSize = (typeof TARGET_SIZES)[number];
 /** Stated outer size of each printable target, mm (4 in = 101.6 mm exactly). */
 export const TARGET_SIZE_MM: Record<TargetSize, number> = { '100mm': 100, '150mm': 150, '4in': 4 * MM_PER_IN };
 
-export interface TargetPdfOptions {
-  size: TargetSize;
-  paper: Paper;
+/** The options as they arrive from a request (`?size=150mm&paper=a4`). */
+export const TargetPdfOptionsSchema = z.object({ size: z.enum(TARGET_SIZES), paper: z.enum(PAPERS) });
+export type TargetPdfOptions = z.infer<typeof TargetPdfOptionsSchema>;
+
+/** A download name such as `gridproof-target-150mm-a4.pdf`. */
+export function targetPdfFilename(options: TargetPdfOptions): string {
+  return `gridproof-target-${options.size}-${options.paper}.pdf`;
 }
 
 /** Where things were drawn on the page, pt (for callers that overlay or preview). */
@@ -110,7 +115,8 @@ function drawRuler(page: PDFPage, font: PDFFont, x: number, yMid: number, length
 }
 
 /** Renders the printable target (one page) and reports where the square is. */
-export async function renderTargetPdfWithLayout(options: TargetPdfOptions): Promise<{ bytes: Uint8Array; layout: TargetLayout }> {
+export async function renderTargetPdfWithLayout(input: TargetPdfOptions): Promise<{ bytes: Uint8Array; layout: TargetLayout }> {
+  const options = TargetPdfOptionsSchema.parse(input);
   const sizeMm = TARGET_SIZE_MM[options.size];
   const [pageW, pageH] = paperSizePt(options.paper);
   const doc = await PDFDocument.create();

@@ -250,3 +250,10 @@ describe('printable target PDF', () => {
     }
   });
 });
+
+describe('printable target options', () => {
+  it('refuses sizes and papers it does not print', async () => {
+    await expect(renderTargetPdf({ size: '120mm' as never, paper: 'a4' })).rejects.toThrow();
+    await expect(renderTargetPdf({ size: '150mm', paper: 'a3' as never })).rejects.toThrow();
+  });
+});
