@@ -83,12 +83,14 @@ export function reportMail(input: ReportMailInput): MailContent {
   const url = safeHttpUrl(i.linkUrl);
   const what = [i.bedName, i.checkTitle].filter((s): s is string => !!s && s.trim() !== '').join(' — ') || 'a bed check';
   const subject = oneLine(`${i.senderName} shared a bed check: ${what} (${VERDICT_WORDS[i.verdict].toLowerCase()})`);
+  // The sentence usually opens with the verdict itself; name it only when it does not.
+  const verdictLine = /^(pass|passes|passed|marginal|fail|fails|failed)\b/i.test(i.verdictSentence.trim()) ? i.verdictSentence : `${VERDICT_WORDS[i.verdict]}. ${i.verdictSentence}`;
   const expires = i.linkExpiresAt ? `The link works until ${formatUtc(i.linkExpiresAt)}.` : '';
 
   const text = [
     `${i.senderName} of the workshop "${i.workshopName}" shared a ${APP_NAME} bed check with you: ${what}.`,
     '',
-    `Verdict: ${VERDICT_WORDS[i.verdict]}. ${i.verdictSentence}`,
+    `Verdict: ${verdictLine}`,
     ...(i.note && i.note.trim() ? ['', `Note from ${i.senderName}:`, ...i.note.trim().split(/\r?\n/).map((l) => `  ${l}`)] : []),
     '',
     'Open the report (no account needed; read only):',
@@ -96,7 +98,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     ...(expires ? [expires] : []),
     '',
     i.map ? 'The deviation map is attached as an image.' : '',
-    '--',
+    '-- ',
     `${APP_NAME} checks CNC fixture beds from one photo. You get this message because ${i.senderName} entered your address; nothing else was shared with you.`,
   ].filter((l, k, all) => !(l === '' && all[k - 1] === '')).join('\n');
 
@@ -156,7 +158,7 @@ export function invitationMail(input: InvitationMailInput): MailContent {
     url,
     '',
     `The link works once and until ${expires}. If you did not expect it, ignore this message: nothing happens without you.`,
-    '--',
+    '-- ',
     `${APP_NAME} checks CNC fixture beds from one photo.`,
   ].join('\n');
   const bodyHtml = [
@@ -195,7 +197,7 @@ export function passwordResetMail(input: PasswordResetMailInput): MailContent {
     '',
     `The link works once and until ${expires}. Choosing a new password signs you out everywhere else.`,
     'If you did not ask for this, ignore the message: your password stays as it is.',
-    '--',
+    '-- ',
     `${APP_NAME} checks CNC fixture beds from one photo.`,
   ].join('\n');
   const bodyHtml = [
