@@ -6,3 +6,4 @@ export { reportMail, invitationMail, passwordResetMail, MAIL_KINDS, type MailCon
 export { deliverPendingMail, runMailDelivery, queueMail, type DeliverOptions, type DeliverResult } from './outbox';
 export { escapeHtml } from './html';
 export { renderDeviationMapSvg, renderDeviationMapPng, type MapImageOptions } from './map-image';
+export { reportMailFromReport, type ReportMailFromReportInput } from './compose';

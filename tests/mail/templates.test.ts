@@ -8,7 +8,9 @@
 import { describe, expect, it } from 'vitest';
 import { mailConfigFromEnv } from '@/lib/mail/config';
 import { escapeHtml } from '@/lib/mail/html';
+import { reportMailFromReport } from '@/lib/mail/compose';
 import { invitationMail, passwordResetMail, reportMail } from '@/lib/mail/templates';
+import { buildReport } from '../pdf/report-fixture';
 
 const hostile = '<img src=x onerror="alert(1)">\'`&';
 
@@ -56,6 +58,16 @@ describe('mail templates', () => {
     const svg = Buffer.from('<svg xmlns="http://www.w3.org/2000/svg" width="4" height="4"/>');
     const withSvg = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'pass', verdictSentence: 'ok', map: { content: svg, contentType: 'image/svg+xml' } });
     expect(withSvg.html).toContain(`src="data:image/svg+xml;base64,${svg.toString('base64')}"`);
+  });
+});
+
+describe('report mail from a report', () => {
+  it('takes the verdict sentence from the report and inlines its map as PNG', async () => {
+    const report = buildReport();
+    const m = await reportMailFromReport({ report, workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
+    expect(m.text).toContain(report.summary.sentence);
+    // PNG signature 89 50 4E 47 0D 0A 1A 0A (ISO/IEC 15948 §5.2) is "iVBORw0KGgo" in base64.
+    expect(m.html).toContain('src="data:image/png;base64,iVBORw0KGgo');
   });
 });
 
