@@ -32,8 +32,8 @@ export interface MailTransport {
   close?(): void;
 }
 
-/** A mail transport with its default sender. */
-export interface Mailer {
+/** A mail transport with its default sender; usable wherever a `MailTransport` is expected. */
+export interface Mailer extends MailTransport {
   transport: MailTransport;
   from: string;
   send(message: OutgoingMessage): Promise<{ messageId: string | null }>;
@@ -68,6 +68,7 @@ export function createMailer(config: MailConfig = mailConfigFromEnv()): Mailer {
   return {
     transport,
     from: config.from,
+    sendMail: transport.sendMail,
     async send(message) {
       const info = await transport.sendMail(toTransportMessage(message, config.from));
       return { messageId: info.messageId ?? null };

@@ -121,7 +121,7 @@ describe('mail over a real SMTP round trip', () => {
         userName: 'Ada', workshopName: 'North Bench <Shop>', resetUrl: 'https://gridproof.test/reset/xyz789', expiresAt: expires,
       }), workshopId);
     });
-    expect(await deliverPendingMail(db, mailer.transport)).toEqual({ sent: 2, retrying: 0, failed: 0 });
+    expect(await deliverPendingMail(db, mailer)).toEqual({ sent: 2, retrying: 0, failed: 0 });
     const got = received.slice(before);
     const invite = got.find((m) => m.to.includes('new.member@example.test'));
     const reset = got.find((m) => m.to.includes('ada@example.test'));
