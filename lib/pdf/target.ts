@@ -185,7 +185,7 @@ export async function renderTargetPdfWithLayout(input: TargetPdfOptions): Promis
   const cautionSize = 8;
   const caution = 'Before you reach onto the bed to lay down or pick up this sheet, switch the machine off and wait until the spindle has stopped. Follow the machine maker\'s manual and your workshop\'s safety rules; they come first.';
   const cautionLines = wrapText(regular, caution, cautionSize, textWidth - 48);
-  let cy = rulerMid - mmToPt(10.5);
+  let cy = rulerMid - mmToPt(12);
   page.drawText('Caution', { x: margin, y: cy, size: cautionSize + 1, font: bold, color: ink });
   cautionLines.forEach((line) => {
     page.drawText(line, { x: margin + 48, y: cy, size: cautionSize, font: regular, color: ink });
