@@ -16,7 +16,7 @@
  * Times are integer milliseconds since the Unix epoch (UTC). No sessions or cookies: the worker imports this.
  */
 import { randomBytes, randomUUID } from 'node:crypto';
-import { and, asc, eq, sql } from 'drizzle-orm';
+import { and, asc, eq, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { checks, jobs } from '@/db/schema';
 
@@ -119,6 +119,17 @@ function backoffBaseFromEnv(): number {
 }
 
 // ---------------------------------------------------------------------------------------------------------
+// Time
+
+/**
+ * "Now" for lease and due-time comparisons: the database's clock (ms) unless a test passes `now`. Judging leases
+ * by one clock, the database's, keeps workers on machines whose clocks disagree from stealing live leases.
+ */
+export function nowSql(now?: number): SQL {
+  return now === undefined ? sql`CAST(unixepoch('subsec') * 1000 AS INTEGER)` : sql`${now}`;
+}
+
+// ---------------------------------------------------------------------------------------------------------
 // Enqueue / read
 
 export interface EnqueueInput {
@@ -130,17 +141,17 @@ export interface EnqueueInput {
   runAt?: number;
 }
 
-/** Adds a job (inside the caller's transaction when given one). Returns the new row. */
-export async function enqueueJob(db: DbExecutor, input: EnqueueInput, now = Date.now()): Promise<Job> {
+/** Adds a job (inside the caller's transaction when given one), due at once by the database's clock unless `runAt`. */
+export async function enqueueJob(db: DbExecutor, input: EnqueueInput, now?: number): Promise<Job> {
   const [row] = await db.insert(jobs).values({
     id: randomUUID(),
     kind: input.kind,
     checkId: input.checkId ?? null,
     payloadJson: JSON.stringify(input.payload ?? {}),
     maxAttempts: input.maxAttempts ?? DEFAULT_MAX_ATTEMPTS,
-    runAt: input.runAt ?? now,
-    createdAt: now,
-    updatedAt: now,
+    runAt: input.runAt ?? nowSql(now),
+    createdAt: nowSql(now),
+    updatedAt: nowSql(now),
   }).returning();
   if (!row) throw new Error('enqueueJob: insert returned no row');
   return row;
@@ -188,7 +199,7 @@ export function newLockToken(): string {
  * with a new token, a new lease and one more attempt.
  */
 export async function claimJob(db: DbExecutor, opts: ClaimOptions): Promise<ClaimedJob | null> {
-  const now = opts.now ?? Date.now();
+  const now = nowSql(opts.now);
   const token = newLockToken();
   const rows = await withBusyRetry('claim a job', () =>
     db.update(jobs)
@@ -196,7 +207,7 @@ export async function claimJob(db: DbExecutor, opts: ClaimOptions): Promise<Clai
         status: 'running',
         lockToken: token,
         lockedBy: opts.workerId,
-        leaseExpiresAt: now + opts.leaseMs,
+        leaseExpiresAt: sql`${now} + ${opts.leaseMs}`,
         attempts: sql`${jobs.attempts} + 1`,
         updatedAt: now,
       })
@@ -212,10 +223,10 @@ export async function claimJob(db: DbExecutor, opts: ClaimOptions): Promise<Clai
 }
 
 /** Extends the lease of a job still held with `token`; false when the lease was lost (stop working on it). */
-export async function renewLease(db: DbExecutor, jobId: string, token: string, leaseMs: number, now = Date.now()): Promise<boolean> {
+export async function renewLease(db: DbExecutor, jobId: string, token: string, leaseMs: number, now?: number): Promise<boolean> {
   const rows = await withBusyRetry('renew a job lease', () =>
     db.update(jobs)
-      .set({ leaseExpiresAt: now + leaseMs, updatedAt: now })
+      .set({ leaseExpiresAt: sql`${nowSql(now)} + ${leaseMs}`, updatedAt: nowSql(now) })
       .where(and(eq(jobs.id, jobId), eq(jobs.lockToken, token), eq(jobs.status, 'running')))
       .returning({ id: jobs.id }), { db });
   return rows.length === 1;
@@ -274,10 +285,11 @@ export async function failJob(db: Db, jobId: string, token: string, input: FailI
       .where(and(eq(jobs.id, jobId), eq(jobs.lockToken, token), eq(jobs.status, 'running'))).limit(1);
     if (!job) return { outcome: 'lost' } as const;
     if (input.retryable && job.attempts < job.maxAttempts) {
-      const runAt = now + backoffMs(job.attempts, input.random, backoffBaseFromEnv());
-      await tx.update(jobs)
-        .set({ status: 'queued', runAt, lockToken: null, lockedBy: null, leaseExpiresAt: null, lastError: input.error, updatedAt: now })
-        .where(eq(jobs.id, jobId));
+      const delay = backoffMs(job.attempts, input.random, backoffBaseFromEnv());
+      const [row] = await tx.update(jobs)
+        .set({ status: 'queued', runAt: sql`${nowSql(input.now)} + ${delay}`, lockToken: null, lockedBy: null, leaseExpiresAt: null, lastError: input.error, updatedAt: now })
+        .where(eq(jobs.id, jobId)).returning({ runAt: jobs.runAt });
+      const runAt = row?.runAt ?? now + delay;
       if (job.checkId) {
         await tx.update(checks)
           .set({ status: 'queued', stage: `waiting to retry (attempt ${job.attempts + 1} of ${job.maxAttempts})`, progress: 0, updatedAt: now })
@@ -308,14 +320,14 @@ async function failJobRow(tx: DbExecutor, job: Job, message: string, lastError: 
  * Fails the jobs whose worker vanished (lease expired) on their last allowed attempt, so that they do not stay
  * "running" for ever. Returns how many were failed. Any worker may call it; it is idempotent.
  */
-export async function reapExhaustedJobs(db: Db, now = Date.now()): Promise<number> {
+export async function reapExhaustedJobs(db: Db, now?: number): Promise<number> {
   return withBusyRetry('fail abandoned jobs', () => db.transaction(async (tx) => {
     const rows = await tx.select().from(jobs)
-      .where(sql`${jobs.status} = 'running' AND ${jobs.leaseExpiresAt} < ${now} AND ${jobs.attempts} >= ${jobs.maxAttempts}`);
+      .where(sql`${jobs.status} = 'running' AND ${jobs.leaseExpiresAt} < ${nowSql(now)} AND ${jobs.attempts} >= ${jobs.maxAttempts}`);
     for (const job of rows) {
       const message = `The worker stopped in the middle of this analysis ${job.attempts} times (it may have run out of memory or been ` +
         'restarted). Try a smaller photo, or mark the reference square\'s corners by hand, and upload it again.';
-      await failJobRow(tx, job, message, job.lastError ?? 'lease expired on the last attempt', now);
+      await failJobRow(tx, job, message, job.lastError ?? 'lease expired on the last attempt', now ?? Date.now());
     }
     return rows.length;
   }), { db });

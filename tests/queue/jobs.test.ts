@@ -60,6 +60,19 @@ describe('claim', () => {
   });
 });
 
+describe('clock', () => {
+  it("judges due times and leases by the database's clock when no time is given", async () => {
+    const job = await enqueueJob(db, { kind: JOB_KINDS.probe });
+    const before = Date.now();
+    const c = await claimJob(db, { workerId: 'w', leaseMs: 5000 });
+    expect(c?.id).toBe(job.id);
+    // SQLite's unixepoch('subsec') and this process read the same system clock here
+    expect(Math.abs(c!.leaseExpiresAt! - (before + 5000))).toBeLessThan(1000);
+    expect(await renewLease(db, c!.id, c!.lockToken, 60_000)).toBe(true);
+    expect((await getJob(db, c!.id))!.leaseExpiresAt! - Date.now()).toBeGreaterThan(50_000);
+  });
+});
+
 describe('lease', () => {
   it('keeps a renewed job away from other claimers and frees it once the lease expires', async () => {
     await enqueueJob(db, { kind: JOB_KINDS.probe }, 0);
