@@ -30,6 +30,8 @@ export const STAGES = {
 export type Stage = keyof typeof STAGES;
 
 export interface DetectOptions {
+  /** The bed's nominal pattern (hole families and their diameters tell vision what to look for). */
+  pattern: Pattern;
   /** Measured side of the reference square, mm. */
   referenceMm: number;
   /** User-marked reference corners in image px, or null to find the square. */
@@ -136,7 +138,7 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   report('finding square');
   let points: Points;
   try {
-    points = await deps.detect(bytes, { referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction) });
+    points = await deps.detect(bytes, { pattern, referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction) });
   } catch (e) {
     if (deps.isInputError(e)) throw new PermanentJobError(withHint((e as Error).message, corners !== null), { cause: e });
     throw e;
