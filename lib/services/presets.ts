@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { PatternSchema, type Pattern } from '@/lib/geometry/contract';
-import { PRESETS as LOCAL_PRESETS, type Preset, type PresetSize } from './presets-local';
+import { PRESETS, type Preset, type PresetSize } from '@/lib/geometry';
 
 export type { Preset, PresetSize };
 
@@ -28,7 +28,7 @@ export const PresetRefSchema = z
 export type PresetRef = z.infer<typeof PresetRefSchema>;
 
 export function listPresets(): readonly Preset[] {
-  return LOCAL_PRESETS;
+  return PRESETS;
 }
 
 export function findPreset(id: string): Preset | undefined {
