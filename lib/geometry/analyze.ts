@@ -10,7 +10,7 @@ import { fitBed, predictPx, toLattice, type BedModel } from './bedfit';
 import { defaultFocalPx, focalFromHomography, type Lens } from './camera';
 import { assign, familiesForDiameter, initialImageToBed, type Detections } from './correspond';
 import { GeometryInputError } from './errors';
-import { fitHomography, homographyJacobian, type Pt } from './homography';
+import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { huberWeight, madSigma } from './robust';
@@ -93,11 +93,11 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   let pr = pairs(asg);
   if (pr.src.length < MIN_MATCHED) throw new GeometryInputError('holes', `only ${pr.src.length} holes matched the pattern; at least ${MIN_MATCHED} are needed`);
   // Robust homography bed → image (Huber IRLS), then reassign.
-  let H1 = fitHomography(pr.src, pr.dst);
+  let H1 = homographyDlt(pr.src, pr.dst);
   for (let it = 0; it < 2; it++) {
     const r = pr.src.map((s, k) => { const p = applyH(H1, s[0], s[1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); });
     const sg = Math.max(madSigma(r), 0.05);
-    H1 = fitHomography(pr.src, pr.dst, r.map((x) => huberWeight(x, 2 * sg)));
+    H1 = homographyDlt(pr.src, pr.dst, r.map((x) => huberWeight(x, 2 * sg)));
     const inv = mat3Inv(H1);
     mapAll((u, v) => applyH(inv, u, v));
     famOf = famOfWith((i) => localScale(inv, i), dTol);
@@ -126,13 +126,16 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     const f = lat.families[fi]!;
     return Math.min(0.3 * minPitch(fi), Math.max(1.0, 0.15 * f.family.holeDiameter, 4 * f.toleranceMm));
   };
-  for (let round = 0; round < 2; round++) {
+  for (let round = 0; round < 3; round++) {
     const m = fit.model;
     mapAll((u, v) => toLattice(m, u, v));
-    const s = localScaleModel(m, W / 2, Hh / 2);
-    famOf = famOfWith(() => s, dTol);
+    famOf = famOfWith((i) => localScaleModel(m, det.u[i]!, det.v[i]!), dTol);
+    const prev = asg.posOf;
     asg = assign(lat, bedXY, n, usable, famOf, tightGate, refOf(m));
-    if (pairs(asg).idx.length < MIN_MATCHED) throw new GeometryInputError('holes', `only ${pairs(asg).idx.length} holes matched the pattern; at least ${MIN_MATCHED} are needed`);
+    const k = pairs(asg).idx.length;
+    if (k < MIN_MATCHED) throw new GeometryInputError('holes', `only ${k} holes matched the pattern; at least ${MIN_MATCHED} are needed`);
+    // Stop once the assignment no longer changes (the first round always refits with the tight gate).
+    if (round > 0 && asg.posOf.every((p, i) => p === prev[i])) break;
     fit = runFit(asg, m);
   }
   const model = fit.model;

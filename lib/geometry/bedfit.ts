@@ -136,11 +136,15 @@ export function fitBed(inp: BedFitInput): BedModel {
     const D00 = d + 2 * xn * xn * dp, D01 = 2 * xn * yn * dp, D11 = d + 2 * yn * yn * dp;
     // d (uu, vv) / d (wx, wy) = 1/si; chain to d obs / d w
     const E00 = D00 / si, E01 = D01 / si, E11 = D11 / si;
-    const gw = [qx / den, qy / den, 1 / den];
+    const g0 = qx / den, g1 = qy / den, g2 = 1 / den;
     // wx depends on t0..2 and t6,7; wy on t3..5 and t6,7
-    let m = 0;
-    for (let i = 0; i < 3; i++) { cols[m] = i; J[m] = E00 * gw[i]!; J[13 + m] = E01 * gw[i]!; m++; }
-    for (let i = 0; i < 3; i++) { cols[m] = 3 + i; J[m] = E01 * gw[i]!; J[13 + m] = E11 * gw[i]!; m++; }
+    cols[0] = 0; J[0] = E00 * g0; J[13] = E01 * g0;
+    cols[1] = 1; J[1] = E00 * g1; J[14] = E01 * g1;
+    cols[2] = 2; J[2] = E00 * g2; J[15] = E01 * g2;
+    cols[3] = 3; J[3] = E01 * g0; J[16] = E11 * g0;
+    cols[4] = 4; J[4] = E01 * g1; J[17] = E11 * g1;
+    cols[5] = 5; J[5] = E01 * g2; J[18] = E11 * g2;
+    let m = 6;
     const g6x = (-wx * qx) / den, g6y = (-wy * qx) / den, g7x = (-wx * qy) / den, g7y = (-wy * qy) / den;
     cols[m] = 6; J[m] = E00 * g6x + E01 * g6y; J[13 + m] = E01 * g6x + E11 * g6y; m++;
     cols[m] = 7; J[m] = E00 * g7x + E01 * g7y; J[13 + m] = E01 * g7x + E11 * g7y; m++;
@@ -171,28 +175,34 @@ export function fitBed(inp: BedFitInput): BedModel {
     c += PRIOR_K * (t[8]! ** 2 + t[9]! ** 2);
     return c;
   };
+  const rc = new Float64Array(2), rb = new Float64Array(2);
   const cost = (t: Float64Array) => {
     let c = 0;
-    const r = new Float64Array(2);
+    const r = rc;
     for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); c += w[k]! * (r[0]! ** 2 + r[1]! ** 2); }
     return c + penalty(t);
+  };
+  const residuals = (t: Float64Array) => {
+    for (let k = 0; k < n; k++) { evalMatch(t, k, rc, false); res[2 * k] = rc[0]!; res[2 * k + 1] = rc[1]!; }
   };
   const jtj = new Float64Array(np * np), jtr = new Float64Array(np);
   const build = (t: Float64Array) => {
     jtj.fill(0); jtr.fill(0);
-    const r = new Float64Array(2);
+    const r = rb;
     for (let k = 0; k < n; k++) {
       const m = evalMatch(t, k, r, true);
       res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!;
       const wk = w[k]!;
       if (!(wk > 0)) continue;
+      // Upper triangle only (columns are in increasing order); mirrored below.
       for (let a = 0; a < m; a++) {
-        const ca = cols[a]!, ja0 = J[a]!, ja1 = J[13 + a]!;
-        jtr[ca]! += wk * (ja0 * r[0]! + ja1 * r[1]!);
+        const ca = cols[a]!, ja0 = wk * J[a]!, ja1 = wk * J[13 + a]!;
+        jtr[ca]! += ja0 * r[0]! + ja1 * r[1]!;
         const row = ca * np;
-        for (let bb = 0; bb < m; bb++) jtj[row + cols[bb]!]! += wk * (ja0 * J[bb]! + ja1 * J[13 + bb]!);
+        for (let bb = a; bb < m; bb++) jtj[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[13 + bb]!;
       }
     }
+    for (let i = 0; i < np; i++) for (let j = 0; j < i; j++) jtj[i * np + j] = jtj[j * np + i]!;
     if (fitted.length) {
       const P = fitted.length;
       for (let o = 0; o < 3; o++) {
@@ -228,15 +238,16 @@ export function fitBed(inp: BedFitInput): BedModel {
         if (c1 <= c0) { gain = c0 - c1; theta.set(tn); c0 = c1; lambda = Math.max(lambda / 10, 1e-12); accepted = true; break; }
         lambda *= 10;
       }
-      if (!accepted || gain < 1e-10 * c0) break;
+      if (!accepted || gain < 1e-7 * c0) break;
     }
   };
 
   // IRLS with Huber weights at 2 σ.
   let sigma = 1;
-  for (let outer = 0; outer < 3; outer++) {
+  const outerN = inp.warm ? 2 : 3;
+  for (let outer = 0; outer < outerN; outer++) {
     lm(outer === 0 ? 25 : 10);
-    build(theta);
+    residuals(theta);
     sigma = Math.max(madSigma(res), 1e-6);
     for (let k = 0; k < n; k++) w[k] = prior[k]! * huberWeight(Math.hypot(res[2 * k]!, res[2 * k + 1]!), 2 * sigma);
   }
