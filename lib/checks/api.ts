@@ -2,8 +2,6 @@
  * Check use cases for the route handlers: each takes the actor first, authorises, and scopes every read by
  * the actor's workshop (another workshop's bed or check is "not found", never "forbidden").
  */
-import { Readable } from 'node:stream';
-import type { ReadableStream as NodeReadableStream } from 'node:stream/web';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
@@ -12,8 +10,9 @@ import { compareReports, type Comparison } from '@/lib/geometry';
 import { PointsSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from '@/lib/services/actor';
-import { type Storage, uploadMaxBytes } from '@/lib/storage';
-import { CornersSchema, intakePhoto, IntakeError } from './intake';
+import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
+import { bedPatternForUpload, CornersSchema, discardUpload, IntakeError, queueCheck, storeUpload, type StoredUpload } from './intake';
+import { boundaryOf, MultipartError, readParts, readText } from './multipart';
 
 /** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -26,34 +25,6 @@ function toAppError(e: IntakeError): AppError {
     case 'empty': return new AppError('empty_file', 400, e.message, { photo: e.message });
     case 'not-an-image': return new AppError('unsupported_media_type', 415, e.message, { photo: e.message });
     case 'too-large': return new AppError('too_large', 413, e.message, { photo: e.message });
-  }
-}
-
-/** Reads a multipart upload with its size bounded while reading (a missing or false Content-Length too). */
-async function readMultipart(req: Request, maxBytes: number): Promise<FormData> {
-  const type = req.headers.get('content-type') ?? '';
-  if (!/^multipart\/form-data;/i.test(type)) {
-    throw new AppError('unsupported_media_type', 415, 'Send the photo as multipart/form-data with fields photo and referenceMm.');
-  }
-  const limit = maxBytes + ENVELOPE_BYTES;
-  const tooLarge = () => new AppError('too_large', 413, `The upload is larger than the limit of ${Math.round(maxBytes / (1024 * 1024))} MB. Take the photo at a lower resolution or export a smaller copy.`, { photo: 'Too large.' });
-  const declared = Number(req.headers.get('content-length'));
-  if (Number.isFinite(declared) && declared > limit) throw tooLarge();
-  if (!req.body) throw invalidInput('The upload is empty.', { photo: 'Choose a photo.' });
-  let seen = 0;
-  const bounded = req.body.pipeThrough(new TransformStream<Uint8Array, Uint8Array>({
-    transform(chunk, controller) {
-      seen += chunk.byteLength;
-      if (seen > limit) controller.error(tooLarge());
-      else controller.enqueue(chunk);
-    },
-  }));
-  try {
-    return await new Response(bounded, { headers: { 'content-type': type } }).formData();
-  } catch (e) {
-    if (e instanceof AppError) throw e;
-    if (seen > limit) throw tooLarge();
-    throw invalidInput('The upload could not be read as a form. Try again.', { photo: 'Could not read the upload.' });
   }
 }
 
@@ -78,42 +49,64 @@ export interface UploadAnswer {
   reused: boolean;
 }
 
-/** `POST /api/beds/{bedId}/checks`: multipart `photo`, `referenceMm`, optional `corners` (JSON), `title`. */
+/**
+ * `POST /api/beds/{bedId}/checks`: multipart `photo`, `referenceMm`, optional `corners` (JSON), `title`, in any
+ * order. The photo streams to storage as it arrives (hashed and limited on the way); the fields are checked
+ * once the form is read, and a refused upload leaves no stored file behind.
+ */
 export async function uploadCheck(db: Db, storage: Storage, actor: Actor, bedId: string, req: Request): Promise<UploadAnswer> {
   authorize(actor, 'photo:upload');
   authorize(actor, 'check:run');
   const maxBytes = uploadMaxBytes();
-  const bed = await getBed(db, actor.workshopId, bedId);
-  if (!bed) throw notFound('bed');
-  const form = await readMultipart(req, maxBytes);
-  const photo = form.get('photo');
-  if (!(photo instanceof File)) throw invalidInput('Choose a photo of the bed.', { photo: 'Required.' });
-  const fields = UploadFieldsSchema.safeParse({
-    referenceMm: form.get('referenceMm') ?? undefined,
-    corners: typeof form.get('corners') === 'string' ? form.get('corners') : undefined,
-    title: typeof form.get('title') === 'string' ? form.get('title') : undefined,
-  });
-  if (!fields.success) {
-    const f: Record<string, string> = {};
-    for (const i of fields.error.issues) f[String(i.path[0] ?? '_')] ??= i.message;
-    throw invalidInput('Some fields of the upload need attention.', f);
-  }
+  const boundary = boundaryOf(req.headers.get('content-type'));
+  if (!boundary) throw new AppError('unsupported_media_type', 415, 'Send the photo as multipart/form-data with fields photo and referenceMm.');
+  const tooLarge = () => new AppError('too_large', 413, `The upload is larger than the limit of ${formatBytes(maxBytes)}. Take the photo at a lower resolution or export a smaller copy.`, { photo: 'Too large.' });
+  const declared = Number(req.headers.get('content-length'));
+  if (Number.isFinite(declared) && declared > maxBytes + ENVELOPE_BYTES) throw tooLarge();
   try {
-    const r = await intakePhoto(db, storage, {
-      workshopId: actor.workshopId,
+    await bedPatternForUpload(db, actor.workshopId, bedId);
+  } catch (e) {
+    if (e instanceof IntakeError) throw toAppError(e);
+    throw e;
+  }
+  if (!req.body) throw invalidInput('The upload is empty.', { photo: 'Choose a photo.' });
+
+  const text: Record<string, string> = {};
+  let stored: StoredUpload | undefined;
+  let name: string | null = null;
+  try {
+    let parts = 0;
+    for await (const part of readParts(req.body as unknown as AsyncIterable<Uint8Array>, boundary)) {
+      if (++parts > 20) throw invalidInput('The form has too many parts.');
+      if (part.name === 'photo' && part.filename !== undefined && !stored) {
+        name = part.filename || null;
+        stored = await storeUpload(storage, actor.workshopId, part.body, maxBytes);
+      } else if (part.filename === undefined && ['referenceMm', 'corners', 'title'].includes(part.name)) {
+        text[part.name] = await readText(part, 4096);
+      }
+      // other parts are skipped unread
+    }
+    if (!stored) throw invalidInput('Choose a photo of the bed.', { photo: 'Required.' });
+    const fields = UploadFieldsSchema.safeParse(text);
+    if (!fields.success) {
+      const f: Record<string, string> = {};
+      for (const i of fields.error.issues) f[String(i.path[0] ?? '_')] ??= i.message;
+      throw invalidInput('Some fields of the upload need attention.', f);
+    }
+    const r = await queueCheck(db, storage, stored, {
       bedId,
       userId: actor.user.id,
-      source: Readable.fromWeb(photo.stream() as unknown as NodeReadableStream<Uint8Array>),
-      contentType: photo.type || null,
-      name: photo.name || null,
+      name,
       referenceMm: fields.data.referenceMm,
       corners: fields.data.corners,
       title: fields.data.title ?? null,
-      maxBytes,
     });
+    stored = undefined; // recorded (queueCheck cleans up itself when it fails)
     return { check: { id: r.check.id, status: r.check.status }, photo: { id: r.photo.id, duplicate: !r.photoCreated }, reused: r.reusedCheck };
   } catch (e) {
+    if (stored) await discardUpload(db, storage, stored);
     if (e instanceof IntakeError) throw toAppError(e);
+    if (e instanceof MultipartError) throw invalidInput(`The upload could not be read: ${e.message} Try again.`, { photo: e.message });
     throw e;
   }
 }

@@ -103,70 +103,110 @@ function notAnImage() {
   return new IntakeError('not-an-image', 415, 'This file is not a photo Gridproof can read. Upload a JPEG, PNG, WebP, TIFF or HEIC photo of the bed.');
 }
 
-/** Stores the photo and queues its check; see the module header. Throws `IntakeError` for a refused upload. */
-export async function intakePhoto(db: Db, storage: Storage, input: IntakeInput): Promise<IntakeResult> {
+/** A photo streamed to storage, not yet recorded in the database. */
+export interface StoredUpload {
+  workshopId: string;
+  key: string;
+  sha256: string;
+  size: number;
+  contentType: ImageType;
+}
+
+function validateFields(input: Pick<IntakeInput, 'referenceMm' | 'corners' | 'title'>) {
   const fields = IntakeFieldsSchema.safeParse({ referenceMm: input.referenceMm, corners: input.corners ?? null, title: input.title ?? null });
   if (!fields.success) {
     const f: Record<string, string> = {};
     for (const issue of fields.error.issues) f[String(issue.path[0] ?? 'form')] ??= issue.message;
     throw new IntakeError('bad-input', 400, 'Some fields of the upload have problems.', f);
   }
-  const bed = await getBed(db, input.workshopId, input.bedId);
+  return fields.data;
+}
+
+/** The bed's current pattern id; IntakeError when the bed is not the workshop's or has no pattern. */
+export async function bedPatternForUpload(db: Db, workshopId: string, bedId: string): Promise<string> {
+  const bed = await getBed(db, workshopId, bedId);
   if (!bed) throw new IntakeError('bed-not-found', 404, 'No such bed in this workshop.');
   if (!bed.currentPatternId) {
     throw new IntakeError('no-pattern', 409, 'This bed has no pattern yet. Describe its holes and panels first, then upload a photo.');
   }
-  const patternId = bed.currentPatternId;
-  const maxBytes = input.maxBytes ?? uploadMaxBytes();
+  return bed.currentPatternId;
+}
 
+/**
+ * Step 1: streams the photo to storage under `photos/<workshop>/<sha256>`, hashing and limiting it; refuses
+ * what is empty, not an image or too large (nothing stays stored then).
+ */
+export async function storeUpload(storage: Storage, workshopId: string, source: BlobSource, maxBytes = uploadMaxBytes()): Promise<StoredUpload> {
   let type: ImageType | undefined;
-  let put;
   try {
-    put = await storage.put(requireImage(input.source, (t) => { type = t; }), {
-      key: ({ sha256 }) => photoStorageKey(input.workshopId, sha256),
+    const put = await storage.put(requireImage(source, (t) => { type = t; }), {
+      key: ({ sha256 }) => photoStorageKey(workshopId, sha256),
       maxBytes,
-      contentType: undefined,
     });
+    return { workshopId, key: put.key, sha256: put.sha256, size: put.size, contentType: type ?? 'image/jpeg' };
   } catch (e) {
     if (e instanceof BlobTooLargeError) {
       throw new IntakeError('too-large', 413, `${e.message} Take the photo at a lower resolution or export a smaller copy.`);
     }
     throw e;
   }
-  const contentType = type ?? 'application/octet-stream';
-  const corners = fields.data.corners ?? null;
+}
 
+/** Removes a stored upload again unless a photo row points at it (another upload of the same photo). */
+export async function discardUpload(db: Db, storage: Storage, stored: StoredUpload): Promise<void> {
+  if (!(await isStorageKeyReferenced(db, stored.key).catch(() => true))) await storage.delete(stored.key).catch(() => undefined);
+}
+
+/**
+ * Step 2: in ONE transaction, finds or creates the photo row and creates the check with its job (or returns
+ * the same check for the same inputs). On failure the stored blob is discarded unless referenced.
+ */
+export async function queueCheck(
+  db: Db, storage: Storage, stored: StoredUpload,
+  input: Omit<IntakeInput, 'source' | 'contentType' | 'maxBytes' | 'workshopId'>,
+): Promise<IntakeResult> {
   try {
+    const fields = validateFields(input);
+    const patternId = await bedPatternForUpload(db, stored.workshopId, input.bedId);
+    const corners = fields.corners ?? null;
     return await withBusyRetry('save the upload', () => db.transaction(async (tx) => {
       const { photo, created } = await insertOrFindPhoto(tx, {
-        workshopId: input.workshopId,
+        workshopId: stored.workshopId,
         bedId: input.bedId,
-        sha256: put.sha256,
-        storageKey: put.key,
-        contentType,
-        byteSize: put.size,
+        sha256: stored.sha256,
+        storageKey: stored.key,
+        contentType: stored.contentType,
+        byteSize: stored.size,
         originalName: input.name?.slice(0, 255) ?? null,
         uploadedBy: input.userId,
       });
       const same = created ? undefined : await findSameCheck(tx, {
-        workshopId: input.workshopId, bedId: input.bedId, photoId: photo.id, patternId, referenceMm: fields.data.referenceMm, corners,
+        workshopId: stored.workshopId, bedId: input.bedId, photoId: photo.id, patternId, referenceMm: fields.referenceMm, corners,
       });
       if (same) return { check: same, job: null, photo, photoCreated: false, reusedCheck: true };
       const { check, job } = await insertCheckWithJob(tx, {
-        workshopId: input.workshopId,
+        workshopId: stored.workshopId,
         bedId: input.bedId,
         photoId: photo.id,
         patternId,
-        referenceMm: fields.data.referenceMm,
+        referenceMm: fields.referenceMm,
         corners,
-        title: fields.data.title ?? null,
+        title: fields.title ?? null,
         createdBy: input.userId,
       });
       return { check, job, photo, photoCreated: created, reusedCheck: false };
     }), { db });
   } catch (e) {
     // nothing in the database points at the blob: remove it so that no orphan stays in storage
-    if (!(await isStorageKeyReferenced(db, put.key).catch(() => true))) await storage.delete(put.key).catch(() => undefined);
+    await discardUpload(db, storage, stored);
     throw e;
   }
+}
+
+/** Stores the photo and queues its check; see the module header. Throws `IntakeError` for a refused upload. */
+export async function intakePhoto(db: Db, storage: Storage, input: IntakeInput): Promise<IntakeResult> {
+  validateFields(input);
+  await bedPatternForUpload(db, input.workshopId, input.bedId);
+  const stored = await storeUpload(storage, input.workshopId, input.source, input.maxBytes ?? uploadMaxBytes());
+  return queueCheck(db, storage, stored, input);
 }

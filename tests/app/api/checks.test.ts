@@ -146,6 +146,24 @@ describe('checks API', () => {
     expect(readdirSync(join(storeDir, '.tmp'))).toEqual([]);
   });
 
+  it('keeps nothing of an upload cut off half way through the photo', async () => {
+    const form = new FormData();
+    form.append('referenceMm', '150');
+    form.append('photo', new Blob([new Uint8Array(Buffer.concat([jpeg, Buffer.alloc(50_000, 9)]))], { type: 'image/jpeg' }), 'cut.jpg');
+    const whole = new Request('http://gridproof.test/', { method: 'POST', body: form });
+    const type = whole.headers.get('content-type')!;
+    const bytes = Buffer.from(await whole.arrayBuffer());
+    const cut = bytes.subarray(0, bytes.length - 20_000);
+    const before = readdirSync(join(storeDir, 'photos', owner.workshopId)).length;
+    const res = await uploadPost(new Request('http://gridproof.test/api/beds/x/checks', {
+      method: 'POST', headers: { cookie: machinistCookie, host: 'gridproof.test', 'content-type': type }, body: cut,
+    }), { params: Promise.resolve({ id: bedId }) });
+    expect(res.status).toBe(422);
+    expect(((await res.json()) as { error: { message: string } }).error.message).toMatch(/cut off/);
+    expect(readdirSync(join(storeDir, 'photos', owner.workshopId)).length).toBe(before);
+    expect(readdirSync(join(storeDir, '.tmp'))).toEqual([]);
+  });
+
   it('refuses a re-fit while the check is still queued, and a reviewer cannot re-fit', async () => {
     const detections = {
       image: { width: 80, height: 60 }, reference: { sizeMm: 150, corners: [[1, 1], [20, 1], [20, 20], [1, 20]] }, holes: [{ x: 30, y: 30, diameterPx: 4 }],
