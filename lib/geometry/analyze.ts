@@ -14,7 +14,7 @@ import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { huberWeight, madSigma } from './robust';
-import { latticeShape, type ShapeEstimate } from './shape';
+import { globalSigma, latticeShape, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
 import { bedVerdict, positionVerdict, panelCorrection } from './verdict';
@@ -150,14 +150,19 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const wide = assign(lat, bedXY, n, free, famTight, (f) => Math.min(0.3 * minPitch(f), 5), refOf(model));
   for (let i = 0; i < n; i++) { const p = wide.posOf[i]!; if (p >= 0 && asg.detOf[p]! < 0) { asg.posOf[i] = p; asg.detOf[p] = i; } }
 
-  // Shape from the square.
+  // Shape from the square; the focal length (EXIF, else from the metric homography when the view is oblique
+  // enough, else assumed) is needed only to correct for a thick reference sheet and to report the camera.
+  const cornerSigma = options.cornerSigmaPx ?? 0.1;
+  let shape: ShapeEstimate = latticeShape(model, corners, pts.reference.sizeMm, cornerSigma);
+  const metricH = mat3Mul(model.H, affineToMat3(invert2x2(shape.L)));
+  const fEst = pts.image.focalPx ? null : focalFromHomography(metricH, W / 2, Hh / 2);
+  const fOut = pts.image.focalPx ?? (fEst && fEst > 0.2 * Math.hypot(W, Hh) && fEst < 5 * Math.hypot(W, Hh) ? fEst : f0);
   const tMm = options.referenceThicknessMm ?? 0;
-  let sizeEff = pts.reference.sizeMm;
   if (tMm > 0) {
-    const distMm = model.lens.fPx * (pts.reference.sizeMm / sidePx);
-    sizeEff = (pts.reference.sizeMm * distMm) / Math.max(distMm - tMm, 1e-6);
+    // The sheet's top face is tMm nearer the camera than the bed, so it looks larger by D / (D − t).
+    const distMm = fOut * (pts.reference.sizeMm / sidePx);
+    shape = latticeShape(model, corners, (pts.reference.sizeMm * distMm) / Math.max(distMm - tMm, 1e-6), cornerSigma);
   }
-  const shape: ShapeEstimate = latticeShape(model, corners, sizeEff, options.cornerSigmaPx ?? 0.1);
   const maxSS = options.maxScaleSigma ?? 0.003, maxSq = (options.maxSquarenessSigmaDeg ?? 0.2) / DEG;
   const sig = shape.sigma;
   let observed = Number.isFinite(sig.scaleX) && Number.isFinite(sig.scaleY) && Number.isFinite(sig.squarenessRad) && sig.scaleX <= maxSS && sig.scaleY <= maxSS && sig.squarenessRad <= maxSq;
@@ -242,8 +247,12 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   }
 
   // Lattice terms: bed +X in the photo (counter-clockwise as seen) and the shape.
-  const c0 = applyH(model.H, pm.bed.width / 2, pm.bed.height / 2), c1 = applyH(model.H, pm.bed.width / 2 + 100, pm.bed.height / 2);
-  const rotationDeg = Math.atan2(-(c1[1] - c0[1]), c1[0] - c0[0]) * DEG;
+  const rotationOf = (h: Mat3) => {
+    const c0 = applyH(h, pm.bed.width / 2, pm.bed.height / 2), c1 = applyH(h, pm.bed.width / 2 + 100, pm.bed.height / 2);
+    return Math.atan2(-(c1[1] - c0[1]), c1[0] - c0[0]) * DEG;
+  };
+  const rotationDeg = rotationOf(model.H);
+  const rotationSigmaDeg = globalSigma(model, (h) => rotationOf(h));
   const lattice: Report['lattice'] = {
     rotationDeg,
     scaleX: observed ? shape.terms.scaleX : null,
@@ -252,15 +261,11 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     observed,
     ...(reason ? { reason } : {}),
     uncertainty: {
-      rotationDeg: Math.atan2(sigmaPx / Math.sqrt(Math.max(1, fit.idx.length)), Math.hypot(c1[0] - c0[0], c1[1] - c0[1]) * (pm.bed.width / 200)) * DEG,
+      rotationDeg: rotationSigmaDeg,
       scaleX: observed ? sig.scaleX : null, scaleY: observed ? sig.scaleY : null, squarenessDeg: observed ? sig.squarenessRad * DEG : null,
     },
   };
 
-  // Camera: focal length from EXIF, else from the metric homography when the view is oblique enough, else assumed.
-  const metricH = mat3Mul(model.H, affineToMat3(invert2x2(Ls)));
-  const fEst = pts.image.focalPx ? null : focalFromHomography(metricH, W / 2, Hh / 2);
-  const fOut = pts.image.focalPx ?? (fEst && fEst > 0.2 * Math.hypot(W, Hh) && fEst < 5 * Math.hypot(W, Hh) ? fEst : f0);
   const rk = fOut / model.lens.fPx;
   const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', principalPoint: { x: W / 2, y: Hh / 2 } };
 

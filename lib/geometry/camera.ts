@@ -55,8 +55,8 @@ export function lookAt(centreMm: [number, number, number], targetMm: [number, nu
   let y = norm3([-(up[0]! - dot * z[0]!), -(up[1]! - dot * z[1]!), -(up[2]! - dot * z[2]!)]);
   let x = cross(y, z);
   if (rollRad) {
-    const c = Math.cos(rollRad), s = Math.sin(rollRad);
-    // Counter-clockwise in the image (y down) is a rotation of the image axes by −roll about z.
+    // The bed turns counter-clockwise as seen when the image axes turn clockwise (as seen) about the view axis.
+    const c = Math.cos(rollRad), s = -Math.sin(rollRad);
     const x2 = x.map((a, i) => c * a - s * y[i]!), y2 = x.map((a, i) => s * a + c * y[i]!);
     x = x2; y = y2;
   }

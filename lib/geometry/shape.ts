@@ -84,3 +84,24 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
     cornerSigmaPx: sc, squareResidualPx: resPx, squareSidePx: side,
   };
 }
+
+/**
+ * 1σ of a scalar function of the fit's 10 global parameters (8 homography entries, k1, k2), by a numerical
+ * Jacobian and the fit's covariance. `f` receives the homography bed lattice frame → undistorted px.
+ */
+export function globalSigma(m: BedModel, f: (H: Mat3, k1: number, k2: number) => number): number {
+  const g0 = Float64Array.from([...m.hHat.subarray(0, 8), m.lens.k1, m.lens.k2]);
+  const Hof = (g: Float64Array) => mat3Inv(modelHinv(m, g));
+  const v0 = f(Hof(g0), g0[8]!, g0[9]!);
+  const J: number[] = [];
+  for (let p = 0; p < 10; p++) {
+    const sd = Math.sqrt(Math.max(m.cov[p * m.np + p]!, 0));
+    const step = sd > 0 && Number.isFinite(sd) ? sd * 1e-2 : 1e-9;
+    const g = Float64Array.from(g0);
+    g[p]! += step;
+    J.push((f(Hof(g), g[8]!, g[9]!) - v0) / step);
+  }
+  let s = 0;
+  for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) s += J[p]! * m.cov[p * m.np + q]! * J[q]!;
+  return Number.isFinite(s) ? Math.sqrt(Math.max(s, 0)) : Infinity;
+}

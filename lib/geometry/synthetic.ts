@@ -42,7 +42,7 @@ export interface SceneSpec {
   missingFraction?: number;
   spuriousFraction?: number;
   /** Reference square: size and centre (mm, bed frame) and turn (deg); default 150 mm near the front-left quarter. */
-  square?: { sizeMm: number; x: number; y: number; angleDeg: number };
+  square?: { sizeMm: number; x: number; y: number; angleDeg: number; /** Top face height above the bed, mm (sheet thickness). */ heightMm?: number };
   /** Explicit per-position extra deviations (mm), by position index. */
   extraDeviation?: Map<number, [number, number]>;
 }
@@ -123,7 +123,7 @@ export function makeScene(spec: SceneSpec): Scene {
   const start = Math.floor(rand() * 4);
   const corners = [0, 1, 2, 3].map((k) => {
     const [x, y] = sqBed[(start + k) % 4]!;
-    const p = projectBedPoint(camera, x, y)!;
+    const p = projectBedPoint(camera, x, y, sqs.heightMm ?? 0)!;
     return [p[0] + cn * gauss(), p[1] + cn * gauss()] as [number, number];
   }) as [[number, number], [number, number], [number, number], [number, number]];
 

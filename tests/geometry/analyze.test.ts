@@ -64,6 +64,8 @@ describe('analyzePoints on synthetic scenes', () => {
       for (const i of OUT.keys()) if (t.seen[i]) expect(r.positions[i]!.verdict).toBe('out');
       expect(r.summary.verdict).toBe('fail');
       expect(r.summary.sentence).toMatch(/^Fail: /);
+      // The bed's turn in the photo (4° counter-clockwise, plus a little from the tilt).
+      expect(Math.abs(r.lattice.rotationDeg - 4)).toBeLessThan(1.5);
       // Camera: distortion recovered.
       expect(r.camera.k1 / (t.camera.k1 * (r.camera.focalPx / t.camera.fPx) ** 2)).toBeGreaterThan(0.8);
     });
@@ -114,6 +116,21 @@ describe('analyzePoints on synthetic scenes', () => {
     const p1 = diff.panels.find((p) => p.id === 'S2')!;
     expect(p1.significant).toBe(true);
     expect(p1.dx).toBeGreaterThan(0.4);
+  });
+});
+
+describe('reference sheet thickness', () => {
+  it("corrects the scale for a sheet whose top face sits above the bed by its thickness", () => {
+    // A 1 mm sheet seen from about 1.45 m looks about 690 ppm larger than it would lying in the bed's plane.
+    const sp = { ...hard, extraDeviation: undefined, square: { ...hard.square!, heightMm: 1 }, cornerNoisePx: 0, seed: 3 };
+    const scene = makeScene(sp);
+    const plain = analyzePoints(scene.points, m6);
+    const fixed = analyzePoints(scene.points, m6, { referenceThicknessMm: 1 });
+    const dMm = scene.truth.camera.C[2];
+    const expected = 1 / (dMm - 1);
+    expect((fixed.lattice.scaleX! - plain.lattice.scaleX!) / plain.lattice.scaleX!).toBeCloseTo(expected, 4);
+    expect(Math.abs(fixed.lattice.scaleX! - scene.truth.scaleX)).toBeLessThan(1e-4);
+    expect(Math.abs(plain.lattice.scaleX! - scene.truth.scaleX)).toBeGreaterThan(4e-4);
   });
 });
 

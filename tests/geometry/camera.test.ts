@@ -1,16 +1,14 @@
-import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
+import { loadCv } from './opencv';
 import { distortPx, focalFromHomography, lookAt, projectBedPoint, undistortPx, type Lens } from '@/lib/geometry/camera';
 import { homographyDlt, type Pt } from '@/lib/geometry/homography';
-
-const require = createRequire(import.meta.url);
 
 describe('Brown–Conrady lens model', () => {
   it("maps ideal pixels to distorted ones as OpenCV's undistort does", () => {
     // Independent library: OpenCV 4.3 (opencv-wasm) cv.undistort. Undistorting an image whose pixel value is its own
     // x (or y) coordinate yields, at each ideal pixel, the distorted source coordinate OpenCV samples — its
     // Brown–Conrady forward map (bilinear interpolation of a linear ramp is exact up to OpenCV's 1/32 px tables).
-    const { cv } = require('opencv-wasm') as { cv: any };
+    const cv = loadCv();
     const W = 320, H = 240;
     const lens: Lens = { fPx: 300, cx: 160, cy: 120, k1: -0.2, k2: 0.05 };
     const K = cv.matFromArray(3, 3, cv.CV_64F, [lens.fPx, 0, lens.cx, 0, lens.fPx, lens.cy, 0, 0, 1]);

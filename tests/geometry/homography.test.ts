@@ -1,10 +1,8 @@
-import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
+import { loadCv } from './opencv';
 import { fitHomography, homographyDlt, type Pt } from '@/lib/geometry/homography';
 import { applyH } from '@/lib/geometry/linalg';
 import { mulberry32, normalFrom } from '@/lib/geometry/random';
-
-const require = createRequire(import.meta.url);
 
 describe('homography', () => {
   it("matches scikit-image's four-point rectification example", () => {
@@ -21,7 +19,7 @@ describe('homography', () => {
 
   it("agrees with opencv-wasm's findHomography on noisy points", () => {
     // Independent library: OpenCV 4.3 (opencv-wasm) findHomography, method 0 (least squares + LM refinement).
-    const { cv } = require('opencv-wasm') as { cv: any };
+    const cv = loadCv();
     const rand = mulberry32(7), g = normalFrom(rand);
     const truth = [1.2, 0.1, 30, -0.05, 1.1, 12, 2e-4, -1e-4, 1] as const;
     const src: Pt[] = [], dst: Pt[] = [];

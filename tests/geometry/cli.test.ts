@@ -1,0 +1,38 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { ReportSchema } from '@/lib/geometry/contract';
+
+const root = join(import.meta.dirname, '..', '..');
+const fixtures = join(root, 'tests', 'fixtures', 'geometry');
+const run = (...args: string[]) => spawnSync(join(root, 'node_modules', '.bin', 'tsx'), [join(root, 'lib', 'cli', 'analyze.ts'), ...args], { encoding: 'utf8', cwd: root });
+
+describe('analyze CLI', () => {
+  it('prints a valid report for the small-bed fixture and exits 0', () => {
+    const r = run('--points', join(fixtures, 'small-bed.points.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'));
+    expect(r.status).toBe(0);
+    const report = ReportSchema.parse(JSON.parse(r.stdout));
+    expect(report.summary.matched).toBeGreaterThan(60);
+    expect(report.positions[0]!.label).toBe('insert A1');
+  });
+
+  it('exits 2 with one line naming the field on bad input', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'gp-cli-'));
+    writeFileSync(join(dir, 'bad.json'), '{"image": ');
+    const bad = run('--points', join(dir, 'bad.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'));
+    expect(bad.status).toBe(2);
+    expect(bad.stderr.trim().split('\n')).toHaveLength(1);
+    expect(bad.stderr).toMatch(/points: .*not valid JSON/);
+    const pts = JSON.parse(readFileSync(join(fixtures, 'small-bed.points.json'), 'utf8'));
+    writeFileSync(join(dir, 'few.json'), JSON.stringify({ ...pts, holes: pts.holes.slice(0, 4) }));
+    const few = run('--points', join(dir, 'few.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'));
+    expect(few.status).toBe(2);
+    expect(few.stderr).toMatch(/^analyze: holes: /);
+    writeFileSync(join(dir, 'neg.json'), JSON.stringify({ ...pts, reference: { ...pts.reference, sizeMm: -5 } }));
+    const neg = run('--points', join(dir, 'neg.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'));
+    expect(neg.status).toBe(2);
+    expect(neg.stderr).toMatch(/^analyze: points\.reference\.sizeMm: /);
+  });
+});
