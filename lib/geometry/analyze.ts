@@ -81,12 +81,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const localScale = (h: Mat3, i: number) => { const j = homographyJacobian(h, det.u[i]!, det.v[i]!); return Math.sqrt(Math.abs(j[0] * j[3] - j[1] * j[2])); };
   let famOf = famOfWith((i) => localScale(sqInv, i), dTol);
 
-  const Hib0 = initialImageToBed(lat, det, usable, famOf, sqInv, sqH);
-  if (!Hib0) throw new GeometryInputError('holes', `fewer than ${MIN_MATCHED} holes could be matched to the pattern (no lattice found)`);
+  const init = initialImageToBed(lat, det, usable, famOf, sqInv, sqH);
+  if (!init) throw new GeometryInputError('holes', `fewer than ${MIN_MATCHED} holes could be matched to the pattern (no lattice found)`);
   const minPitch = (fi: number) => Math.min(lat.families[fi]!.family.pitch.x, lat.families[fi]!.family.pitch.y);
   const bedXY = new Float64Array(2 * n);
   const mapAll = (f: (u: number, v: number) => [number, number]) => { for (let i = 0; i < n; i++) { const [x, y] = f(det.u[i]!, det.v[i]!); bedXY[2 * i] = x; bedXY[2 * i + 1] = y; } };
 
+  const Hib0 = init.H;
   mapAll((u, v) => applyH(Hib0, u, v));
   let asg = assign(lat, bedXY, n, usable, famOf, (f) => 0.3 * minPitch(f));
   const pairs = (a: typeof asg) => { const src: Pt[] = [], dst: Pt[] = [], idx: number[] = []; for (let i = 0; i < n; i++) { const p = a.posOf[i]!; if (p >= 0) { src.push([lat.positions[p]!.x, lat.positions[p]!.y]); dst.push([det.u[i]!, det.v[i]!]); idx.push(i); } } return { src, dst, idx }; };
@@ -195,7 +196,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   for (let k = 0; k < fitW.length; k++) { cxm += fitX[2 * k]!; cym += fitX[2 * k + 1]!; }
   cxm /= Math.max(1, fitW.length); cym /= Math.max(1, fitW.length);
   const sigmaPx = Math.max(model.sigmaPx, 1e-4);
-  const hidden = new Uint8Array(P);
+  const hidden = new Uint8Array(P), notExpected = new Uint8Array(P);
   const positions: Report['positions'] = lat.positions.map((q, pos) => {
     const fam = lat.families[q.family]!;
     const panel = lat.panels[q.panel]!.implicit ? null : lat.panels[q.panel]!.id;
@@ -204,8 +205,10 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     if (d < 0) {
       const [pu, pv] = predictPx(model, q.x, q.y, q.panel, lat.panels);
       const hid = insideQuad(corners, pu, pv, 0.02 * sidePx);
+      const away = !(pu >= 0 && pv >= 0 && pu < W && pv < Hh);
       hidden[pos] = hid ? 1 : 0;
-      return { ...base, measured: null, deviation: null, uncertaintyMm: null, verdict: 'missing' as const, ...(hid ? { hidden: true } : {}) };
+      notExpected[pos] = hid || away ? 1 : 0;
+      return { ...base, measured: null, deviation: null, uncertaintyMm: null, verdict: 'missing' as const, ...(hid ? { hidden: true } : {}), ...(away ? { outOfView: true } : {}) };
     }
     const mx = mXY[2 * pos]! - rg.tx, my = mXY[2 * pos + 1]! - rg.ty;
     const x = rc * mx + rs * my, y = -rs * mx + rc * my;
@@ -272,9 +275,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const unmatched: Report['unmatched'] = [];
   for (let i = 0; i < n; i++) if (asg.posOf[i]! < 0) unmatched.push({ x: det.u[i]!, y: det.v[i]! });
 
-  const summary = bedVerdict(positions, panels, lat, hidden);
+  const warnings: string[] = [];
+  if (init.tiedShifts > 1) warnings.push(`the photo does not show where the lattice starts (${init.tiedShifts} whole-pitch placements fit equally well); labels assume the holes seen are centred on the pattern`);
+  if (reason) warnings.push(`lattice shape not observed: ${reason}`);
+  const summary = bedVerdict(positions, panels, lat, notExpected);
+  if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
-    version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary,
+    version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
     diagnostics: { residualSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
   } as Report;
 }

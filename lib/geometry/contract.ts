@@ -125,6 +125,8 @@ export const ReportPositionSchema = z.object({
   verdict: z.enum(VERDICTS),
   /** True when a missing position lies under the reference sheet (expected to be unseen). */
   hidden: z.boolean().optional(),
+  /** True when a missing position falls outside the photo. */
+  outOfView: z.boolean().optional(),
 });
 export type ReportPosition = z.infer<typeof ReportPositionSchema>;
 
@@ -175,5 +177,7 @@ export const ReportSchema = z.object({
     /** The verdict and its reasons in one sentence a machinist understands. */
     sentence: z.string(),
   }),
+  /** Things the reader should know that are not figures (ambiguous placement, unobserved terms…). */
+  warnings: z.array(z.string()).optional(),
 }).passthrough();
 export type Report = z.infer<typeof ReportSchema>;

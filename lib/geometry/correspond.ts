@@ -40,7 +40,9 @@ function circularMeanPeak(angles: number[], bins = 48): number {
  * Initial map image px → bed mm (a homography): square rectification, lattice turn, phase and whole-pitch shift.
  * `sq` maps the square frame (mm) to image px; `famOf[i]` lists the families detection i may belong to.
  */
-export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Array, famOf: number[][], sqInv: Mat3, sq: Mat3): Mat3 | null {
+export interface InitialMap { H: Mat3; /** Whole-pitch shifts that explain the detections about as well as the chosen one (1 = unique). */ tiedShifts: number }
+
+export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Array, famOf: number[][], sqInv: Mat3, sq: Mat3): InitialMap | null {
   const n = det.n;
   const sx = new Float64Array(n), sy = new Float64Array(n);
   for (let i = 0; i < n; i++) { const [x, y] = applyH(sqInv, det.u[i]!, det.v[i]!); sx[i] = x; sy[i] = y; }
@@ -109,17 +111,20 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   const maxCand = 2500;
   const kxL = kxs.length * kys.length > maxCand ? kxs.filter((_, i) => i % Math.ceil(kxs.length / 50) === 0) : kxs;
   const kyL = kxs.length * kys.length > maxCand ? kys.filter((_, i) => i % Math.ceil(kys.length / 50) === 0) : kys;
+  const scores: number[] = [];
   for (const kx of kxL) for (const ky of kyL) {
     const tx = tx0 + kx * F.pitch.x, ty = ty0 + ky * F.pitch.y;
     let score = 0;
     for (const i of sample) for (const f of famOf[i]!) { if (nearestNode(l, f, bx[i]! + tx, by[i]! + ty).dist < gate) { score++; break; } }
     const off = Math.hypot(kx - centreX, ky - centreY);
+    scores.push(score);
     if (score > best.score || (score === best.score && off < best.off)) best = { score, off, kx, ky };
   }
+  const tiedShifts = scores.filter((s) => s >= 0.98 * best.score).length;
   const tx = tx0 + best.kx * F.pitch.x, ty = ty0 + best.ky * F.pitch.y;
   // bed = Rot(−θ)·square + t ; image → square is sqInv.
   const rigid: Mat3 = [cs, -sn, tx, sn, cs, ty, 0, 0, 1];
-  return mat3Mul(rigid, sqInv);
+  return { H: mat3Mul(rigid, sqInv), tiedShifts };
 }
 
 export interface Assignment { posOf: Int32Array; detOf: Int32Array; distMm: Float64Array }

@@ -33,7 +33,8 @@ export function panelCornerShift(w: number, h: number, dx: number, dy: number, r
   return m;
 }
 
-export function bedVerdict(positions: Report['positions'], panels: Report['panels'], lat: Lattice, hidden: Uint8Array): Report['summary'] {
+/** Whole-bed summary; `notExpected` marks positions that could not be seen (under the sheet or outside the photo). */
+export function bedVerdict(positions: Report['positions'], panels: Report['panels'], lat: Lattice, notExpected: Uint8Array): Report['summary'] {
   const matched = positions.filter((p) => p.measured);
   const rs = matched.map((p) => p.deviation!.r);
   const rms = rs.length ? Math.sqrt(rs.reduce((s, r) => s + r * r, 0) / rs.length) : 0;
@@ -41,7 +42,7 @@ export function bedVerdict(positions: Report['positions'], panels: Report['panel
   const out = positions.filter((p) => p.verdict === 'out');
   const marginal = positions.filter((p) => p.verdict === 'marginal');
   const missing = positions.filter((p) => p.verdict === 'missing');
-  const hiddenN = hidden.reduce((a, b) => a + b, 0);
+  const hiddenN = notExpected.reduce((a, b) => a + b, 0);
   const unseen = missing.length - hiddenN;
   const expected = positions.length - hiddenN;
   const minTol = Math.min(...lat.families.map((f) => f.toleranceMm));

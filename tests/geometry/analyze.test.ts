@@ -119,6 +119,19 @@ describe('analyzePoints on synthetic scenes', () => {
   });
 });
 
+describe('partial views', () => {
+  it('warns when the photo does not show where the lattice starts, and does not count unseen columns against the bed', () => {
+    const scene = makeScene({ pattern: m6, seed: 6, tiltDeg: 6, centreNoisePx: 0.08, cornerNoisePx: 0.1 });
+    // The pattern says the lattice runs 12 columns further than the photo shows.
+    const wide = { ...m6, bed: { width: 1800, height: 1000 }, families: [{ ...m6.families[0]!, count: { x: m6.families[0]!.count.x + 12, y: m6.families[0]!.count.y } }], panels: m6.panels!.map((p) => ({ ...p, width: 1800 })) };
+    const r = analyzePoints(scene.points, wide);
+    expect(r.warnings?.some((w) => /does not show where the lattice starts/.test(w))).toBe(true);
+    expect(r.summary.sentence).toMatch(/labels are uncertain/);
+    expect(r.positions.filter((p) => p.outOfView).length).toBeGreaterThan(50);
+    expect(r.summary.matched).toBeGreaterThan(400);
+  });
+});
+
 describe('reference sheet thickness', () => {
   it("corrects the scale for a sheet whose top face sits above the bed by its thickness", () => {
     // A 1 mm sheet seen from about 1.45 m looks about 690 ppm larger than it would lying in the bed's plane.
