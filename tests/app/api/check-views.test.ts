@@ -1,0 +1,116 @@
+/**
+ * The report and review read routes (detail, photo display copy, export) through their real handlers, a real
+ * migrated SQLite file and a real local store. The photo carries EXIF written by sharp (an independent
+ * library) and is read back with exifr (another): the display copy must carry none of it.
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import exifr from 'exifr';
+import sharp from 'sharp';
+import { eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { POST as uploadPost } from '@/app/api/beds/[id]/checks/route';
+import { GET as detailGet } from '@/app/api/checks/[id]/detail/route';
+import { GET as photoGet } from '@/app/api/checks/[id]/photo/route';
+import { GET as exportGet } from '@/app/api/checks/[id]/export/route';
+import { checks } from '@/db/schema';
+import { startSession } from '@/lib/auth/session';
+import { analyzePoints } from '@/lib/geometry';
+import { makeScene } from '@/lib/geometry/synthetic';
+import { createBed } from '@/lib/services/beds';
+import type { Actor } from '@/lib/services/actor';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { SMALL_PATTERN } from '@/tests/checks/fixtures';
+
+let t: WebTestDb;
+let storeDir: string;
+let owner: Actor;
+let reviewerCookie: string;
+let otherCookie: string;
+let checkId: string;
+
+const cookieFor = async (a: Actor) => `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`;
+
+beforeAll(async () => {
+  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-views-store-'));
+  process.env.STORAGE_DIR = storeDir;
+  t = await useFreshDatabase();
+  owner = await newOwner(t.db, 'Views shop');
+  reviewerCookie = await cookieFor(await addMember(t.db, owner.workshopId, 'reviewer'));
+  otherCookie = await cookieFor(await newOwner(t.db, 'Other shop'));
+  const bedId = (await createBed(t.db, owner, { name: 'Router bed', pattern: SMALL_PATTERN })).id;
+  // 120 × 80 px landscape stored with EXIF orientation 6 (shown turned 90° clockwise) and a GPS position.
+  const jpeg = await sharp({ create: { width: 120, height: 80, channels: 3, background: { r: 90, g: 100, b: 110 } } })
+    .withExif({ IFD0: { Make: 'TestCam', Model: 'Serial 12345' }, IFD3: { GPSLatitudeRef: 'N', GPSLatitude: '51/1 30/1 0/1' } })
+    .withMetadata({ orientation: 6 })
+    .jpeg()
+    .toBuffer();
+  const before = await exifr.parse(jpeg, { gps: true, tiff: true });
+  expect(before?.Make).toBe('TestCam');
+  const form = new FormData();
+  form.append('photo', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), 'bed.jpg');
+  form.append('referenceMm', '150');
+  const res = await uploadPost(new Request('http://gridproof.test/api/beds/x/checks', { method: 'POST', headers: { cookie: await cookieFor(owner), host: 'gridproof.test' }, body: form }), { params: Promise.resolve({ id: bedId }) });
+  expect(res.status).toBe(202);
+  checkId = ((await res.json()) as { check: { id: string } }).check.id;
+});
+afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+
+describe('check read routes', () => {
+  it('serves members an upright display copy of the photo with no metadata', async () => {
+    const r = await photoGet(new Request(`http://gridproof.test/api/checks/${checkId}/photo`, { headers: { cookie: reviewerCookie, host: 'gridproof.test' } }), { params: Promise.resolve({ id: checkId }) });
+    expect(r.status).toBe(200);
+    expect(r.headers.get('content-type')).toBe('image/jpeg');
+    expect(r.headers.get('cache-control')).toContain('private');
+    const bytes = Buffer.from(await r.arrayBuffer());
+    const meta = await sharp(bytes).metadata();
+    // orientation 6 turned upright: 120 × 80 becomes 80 × 120
+    expect([meta.width, meta.height]).toEqual([80, 120]);
+    expect(meta.exif).toBeUndefined();
+    expect(meta.orientation).toBeUndefined();
+    expect(await exifr.parse(bytes, { gps: true, tiff: true })).toBeUndefined();
+    // answered again from the stored copy, revalidated by its ETag
+    const again = await photoGet(new Request(`http://gridproof.test/api/checks/${checkId}/photo`, { headers: { cookie: reviewerCookie, host: 'gridproof.test', 'if-none-match': r.headers.get('etag')! } }), { params: Promise.resolve({ id: checkId }) });
+    expect(again.status).toBe(304);
+  });
+
+  it('refuses the photo to anyone signed out and hides it from another workshop', async () => {
+    const anon = await call(photoGet, { params: { id: checkId } });
+    expect(anon.status).toBe(401);
+    const other = await call(photoGet, { cookie: otherCookie, params: { id: checkId } });
+    expect(other.status).toBe(404);
+    expect(other.json).toMatchObject({ error: { code: 'not_found' } });
+  });
+
+  it('gives the pattern in mm and no detections before the analysis', async () => {
+    const r = await call(detailGet, { cookie: reviewerCookie, params: { id: checkId } });
+    expect(r.status).toBe(200);
+    const d = r.json as { pattern: { units: string; bed: { width: number } }; detections: unknown; can: { review: boolean }; check: { bedName: string } };
+    expect(d.pattern.units).toBe('mm');
+    expect(d.pattern.bed.width).toBe(500);
+    expect(d.detections).toBeNull();
+    expect(d.can.review).toBe(false);
+    expect(d.check.bedName).toBe('Router bed');
+  });
+
+  it('exports 409 until there is a report, then CSV in the asked unit and the JSON report', async () => {
+    const early = await call(exportGet, { cookie: reviewerCookie, params: { id: checkId }, path: `/api/checks/${checkId}/export` });
+    expect(early.status).toBe(409);
+    const scene = makeScene({ pattern: SMALL_PATTERN, seed: 2, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 150, y: 330, angleDeg: 5 } });
+    const report = analyzePoints(scene.points, SMALL_PATTERN);
+    await t.db.update(checks).set({ status: 'done', reportJson: JSON.stringify(report), detectionsJson: JSON.stringify(scene.points) }).where(eq(checks.id, checkId));
+    const res = await exportGet(new Request(`http://gridproof.test/api/checks/${checkId}/export?format=csv&units=in`, { headers: { cookie: reviewerCookie, host: 'gridproof.test' } }), { params: Promise.resolve({ id: checkId }) });
+    expect(res.status).toBe(200);
+    expect(res.headers.get('content-type')).toMatch(/^text\/csv/);
+    expect(res.headers.get('content-disposition')).toMatch(/^attachment; filename="gridproof-router-bed-.*\.csv"$/);
+    const lines = (await res.text()).split('\r\n');
+    expect(lines[0]).toMatch(/^label,family,col,row,panel,nominal_x_in,/);
+    expect(lines).toHaveLength(report.positions.length + 2);
+    // the first dog sits at (100, 100) mm = (3.93701, 3.93701) in
+    expect(lines.find((l) => l.startsWith('dog A1,'))).toContain(',3.93701,3.93701,');
+    const js = await call(exportGet, { cookie: reviewerCookie, params: { id: checkId }, path: `/api/checks/${checkId}/export?format=json` });
+    expect(js.status).toBe(200);
+    expect(js.json).toMatchObject({ version: 1, units: 'mm', summary: { matched: report.summary.matched } });
+  });
+});
