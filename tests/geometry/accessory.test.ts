@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { accessoryFit, pinExcess, type AccessoryFitInput } from '@/lib/geometry/accessory';
+import { accessoryFit, boardFit, pinExcess, type AccessoryFitInput } from '@/lib/geometry/accessory';
+import type { Report } from '@/lib/geometry/contract';
 import { mulberry32 } from '@/lib/geometry/random';
 
 const twoPins = (hole2: { x: number; y: number }): AccessoryFitInput => ({
@@ -67,5 +68,23 @@ describe('accessory fit', () => {
       expect(-r.marginMm).toBeLessThanOrEqual(brute + 1e-7);
       expect(-r.marginMm).toBeGreaterThan(brute - 1e-3);
     }
+  });
+});
+
+describe('sacrificial board fit', () => {
+  const pos = (label: string, x: number, y: number, tol: number) => ({ family: 'h', col: 0, row: 0, label, panel: null, nominal: { x, y }, measured: { x, y }, deviation: { dx: 0, dy: 0, r: 0 }, uncertaintyMm: 0.01, toleranceMm: tol, verdict: 'in' as const });
+  const report = (ps: ReturnType<typeof pos>[]) => ({ positions: ps }) as unknown as Report;
+  it('is the accessory computation against the bed: a board shifted as a whole still fits, one stray hole binds', () => {
+    const bed = report([pos('A1', 0, 0, 0.2), pos('B1', 50, 0, 0.2), pos('A2', 0, 50, 0.2), pos('B2', 50, 50, 0.2)]);
+    const shifted = report([pos('A1', 0.4, 0.1, 0.2), pos('B1', 50.4, 0.1, 0.2), pos('A2', 0.4, 50.1, 0.2), pos('B2', 50.4, 50.1, 0.2)]);
+    const a = boardFit(shifted, bed);
+    expect(a.fits).toBe(true);
+    expect(a.marginMm).toBeCloseTo(0.2, 5);
+    // B2 drilled 0.6 mm off: the best placement splits the error; it binds.
+    const stray = report([pos('A1', 0, 0, 0.2), pos('B1', 50, 0, 0.2), pos('A2', 0, 50, 0.2), pos('B2', 50.6, 50, 0.2), pos('C9', 9, 9, 0.2)]);
+    const b = boardFit(stray, bed);
+    expect(b.fits).toBe(false);
+    expect(b.unpaired).toEqual(['C9']);
+    expect(b.pins.find((p) => p.label === 'B2')!.binding).toBe(true);
   });
 });

@@ -51,6 +51,16 @@ describe('analyzePoints on synthetic scenes', () => {
         expect(Math.abs(q.dx - tp[j]!.dx)).toBeLessThan(4 * q.uncertaintyMm + 0.01);
         expect(Math.abs(q.dy - tp[j]!.dy)).toBeLessThan(4 * q.uncertaintyMm + 0.01);
       });
+      // Steps at the seams between neighbouring strips: the difference of the two panels' moves at the seam.
+      expect(r.seams.length).toBe(lat.panels.length - 1);
+      for (const sm of r.seams) {
+        const a = lat.panels.findIndex((p) => p.id === sm.a), b = lat.panels.findIndex((p) => p.id === sm.b);
+        const A = lat.panels[a]!, B = lat.panels[b]!, ys = Math.max(A.y, B.y), xs = A.cx;
+        const at = (j: number, c: { cx: number; cy: number }) => [tp[j]!.dx - tp[j]!.rot * (ys - c.cy), tp[j]!.dy + tp[j]!.rot * (xs - c.cx)];
+        const ta = at(a, A), tb = at(b, B);
+        expect(Math.abs(sm.dx - (tb[0]! - ta[0]!))).toBeLessThan(4 * sm.uncertaintyMm + 0.005);
+        expect(Math.abs(sm.dy - (tb[1]! - ta[1]!))).toBeLessThan(4 * sm.uncertaintyMm + 0.005);
+      }
       // Verdicts right wherever the true deviation is clear of the tolerance.
       let checked = 0;
       r.positions.forEach((p, i) => {
