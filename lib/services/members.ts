@@ -1,6 +1,6 @@
 /**
  * Member use cases: list members and open invitations, invite (a link with a random token; only its
- * SHA-256 is stored; the link is shown once to copy — mail delivery is added by the mail module), change a
+ * SHA-256 is stored; the link is shown once to copy and mailed, the mail queued in the same transaction), change a
  * role, remove a member, revoke an invitation, accept one. A workshop always keeps at least one owner.
  */
 import { createHash, randomBytes } from 'node:crypto';
@@ -13,6 +13,7 @@ import { findUserByEmail, insertUser, toPublicUser, type PublicUser } from '@/db
 import { getWorkshop } from '@/db/queries/workshops';
 import { hashPassword, PasswordSchema } from '@/lib/auth/password';
 import { AppError, conflict, notFound } from '@/lib/http/errors';
+import { invitationMail, queueMail } from '@/lib/mail';
 import { authorize, ROLES, type Actor, type Role } from './actor';
 import { EmailSchema } from './auth';
 
@@ -44,6 +45,10 @@ export async function inviteMember(db: Db, actor: Actor, input: z.infer<typeof I
     throw conflict('This person is already a member.', { email: 'Already a member.' });
   }
   const token = randomBytes(32).toString('base64url');
+  const link = `${baseUrl.replace(/\/$/, '')}/invite/${token}`;
+  const expiresAt = Date.now() + INVITATION_TTL_MS;
+  const workshop = await getWorkshop(db, actor.workshopId);
+  const mail = invitationMail({ workshopName: workshop?.name ?? 'Workshop', inviterName: actor.user.name, role: input.role, acceptUrl: link, expiresAt });
   const invitation = await db.transaction(async (tx) => {
     const row = await insertInvitation(tx, {
       workshopId: actor.workshopId,
@@ -51,14 +56,16 @@ export async function inviteMember(db: Db, actor: Actor, input: z.infer<typeof I
       role: input.role,
       tokenHash: hashToken(token),
       invitedBy: actor.user.id,
-      expiresAt: Date.now() + INVITATION_TTL_MS,
+      expiresAt,
     });
+    // the invitation mail is written with the invitation: it exists exactly when the invitation does
+    await queueMail(tx, input.email, 'invitation', mail, actor.workshopId);
     await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'member.invite', targetType: 'invitation', targetId: row.id, detail: { email: input.email, role: input.role } });
     return row;
   });
   return {
     invitation: { id: invitation.id, email: invitation.email, role: invitation.role, createdAt: invitation.createdAt, expiresAt: invitation.expiresAt },
-    link: `${baseUrl.replace(/\/$/, '')}/invite/${token}`,
+    link,
   };
 }
 

@@ -1,0 +1,62 @@
+/**
+ * Loading a finished check for the sharing, comment, fit and PDF use cases, and the report as a stranger may
+ * see it. `publicReport` keeps only what the report page shows (verdict, positions, panels, seams, lattice,
+ * summary) and drops everything that comes from the photo rather than the bed: the camera (focal length,
+ * possibly from EXIF, and the principal point, which gives the image size), the detector's diagnostics, the
+ * unmatched detections (image pixels) and any field a later version adds.
+ */
+import type { Db } from '@/db/client';
+import { getBed } from '@/db/queries/beds';
+import { getCheck, type CheckRow } from '@/db/queries/checks';
+import { getPattern } from '@/db/queries/patterns';
+import { PatternSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
+import { patternToMm, type PatternMm } from '@/lib/geometry/units';
+import { AppError, notFound } from '@/lib/http/errors';
+
+export interface FinishedCheck {
+  check: CheckRow;
+  report: Report;
+  bedName: string;
+}
+
+/** A check of the workshop whose report is ready (done or needs review); 404 / 409 otherwise. */
+export async function loadFinishedCheck(db: Db, workshopId: string, checkId: string): Promise<FinishedCheck> {
+  const check = await getCheck(db, workshopId, checkId);
+  if (!check) throw notFound('check');
+  if (!check.reportJson || (check.status !== 'done' && check.status !== 'needs-review')) {
+    throw new AppError('not_ready', 409, `The check is ${check.status}; its report is ready once it is done.`);
+  }
+  const bed = await getBed(db, workshopId, check.bedId);
+  return { check, report: ReportSchema.parse(JSON.parse(check.reportJson)), bedName: bed?.name ?? 'Bed' };
+}
+
+/** The pattern (in mm) the check was measured against. */
+export async function loadCheckPattern(db: Db, check: CheckRow): Promise<PatternMm> {
+  const row = await getPattern(db, check.bedId, check.patternId);
+  if (!row) throw notFound('pattern');
+  return patternToMm(PatternSchema.parse(JSON.parse(row.json)));
+}
+
+/** The report without anything of the photo: what a share link serves. */
+export function publicReport(r: Report): Report {
+  return {
+    version: r.version,
+    units: r.units,
+    pattern: { name: r.pattern.name },
+    positions: r.positions.map((p) => ({
+      family: p.family, col: p.col, row: p.row, label: p.label, panel: p.panel, nominal: p.nominal, measured: p.measured,
+      deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}),
+    })),
+    unmatched: [],
+    panels: r.panels.map((q) => ({ id: q.id, dx: q.dx, dy: q.dy, rotationDeg: q.rotationDeg, positions: q.positions, uncertaintyMm: q.uncertaintyMm, ...(q.rotationUncertaintyDeg !== undefined ? { rotationUncertaintyDeg: q.rotationUncertaintyDeg } : {}), correction: q.correction })),
+    seams: r.seams.map((s) => ({ a: s.a, b: s.b, dx: s.dx, dy: s.dy, r: s.r, uncertaintyMm: s.uncertaintyMm })),
+    lattice: {
+      rotationDeg: r.lattice.rotationDeg, scaleX: r.lattice.scaleX, scaleY: r.lattice.scaleY, squarenessDeg: r.lattice.squarenessDeg,
+      observed: r.lattice.observed, ...(r.lattice.reason ? { reason: r.lattice.reason } : {}),
+      uncertainty: { rotationDeg: r.lattice.uncertainty.rotationDeg, scaleX: r.lattice.uncertainty.scaleX, scaleY: r.lattice.uncertainty.scaleY, squarenessDeg: r.lattice.uncertainty.squarenessDeg },
+    },
+    // The contract requires a camera; a shared report carries neutral values, not the photo's.
+    camera: { focalPx: 0, k1: 0, k2: 0 },
+    summary: { matched: r.summary.matched, missing: r.summary.missing, rmsMm: r.summary.rmsMm, maxMm: r.summary.maxMm, out: r.summary.out, marginal: r.summary.marginal, verdict: r.summary.verdict, sentence: r.summary.sentence },
+  };
+}

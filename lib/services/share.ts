@@ -1,0 +1,144 @@
+/**
+ * Share links: a read-only link to one check's report for someone without an account. The token is 32 random
+ * bytes (256 bits) in base64url; only its SHA-256 is stored, so the link is shown once, when made. A link
+ * expires (1–90 days) and can be revoked; each opening counts a view. Through a link one sees the report
+ * (without the photo's data: see publicReport), the bed's name, the check's title and time, and the check's
+ * comments — nothing else of the workshop.
+ *
+ * "Send to a helper": the link and the report mail (verdict, the sender's note, the deviation map) are
+ * written in one transaction, so the mail exists exactly when the link does.
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import { z } from 'zod';
+import type { Db } from '@/db/client';
+import { recordAudit } from '@/db/queries/audit';
+import { getCheckById } from '@/db/queries/checks';
+import { listComments, type CommentView } from '@/db/queries/comments';
+import * as q from '@/db/queries/share-links';
+import { getWorkshop } from '@/db/queries/workshops';
+import type { Report } from '@/lib/geometry/contract';
+import { AppError, notFound } from '@/lib/http/errors';
+import { queueMail, reportMailFromReport } from '@/lib/mail';
+import { authorize, type Actor } from './actor';
+import { EmailSchema } from './auth';
+import { loadFinishedCheck, publicReport } from './share-report';
+
+export const SHARE_DEFAULT_DAYS = 14;
+export const SHARE_MAX_DAYS = 90;
+const DAY_MS = 24 * 3600 * 1000;
+
+/** base64url of 32 bytes: 43 characters. */
+export const SHARE_TOKEN_PATTERN = /^[A-Za-z0-9_-]{43}$/;
+
+export const ShareCreateSchema = z.object({
+  expiresInDays: z.coerce.number().int('Whole days, please.').min(1).max(SHARE_MAX_DAYS).default(SHARE_DEFAULT_DAYS),
+});
+export const ShareSendSchema = ShareCreateSchema.extend({
+  email: EmailSchema,
+  note: z.string().trim().max(2000).optional(),
+});
+
+export const hashShareToken = (token: string): string => createHash('sha256').update(token).digest('hex');
+export const newShareToken = (): string => randomBytes(32).toString('base64url');
+export const shareUrl = (baseUrl: string, token: string): string => `${baseUrl.replace(/\/$/, '')}/s/${token}`;
+
+export type ShareLinkDto = { id: string; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean };
+
+function toDto(r: q.ShareLinkRow, now = Date.now()): ShareLinkDto {
+  return { id: r.id, createdAt: r.createdAt, expiresAt: r.expiresAt, revokedAt: r.revokedAt, viewCount: r.viewCount, lastViewedAt: r.lastViewedAt, live: !r.revokedAt && r.expiresAt > now };
+}
+
+/** `POST /api/checks/{id}/share`: a new link, its URL shown this once. Owner or machinist; report must be ready. */
+export async function createShareLink(db: Db, actor: Actor, checkId: string, input: z.infer<typeof ShareCreateSchema>, baseUrl: string) {
+  authorize(actor, 'workshop:read');
+  await loadFinishedCheck(db, actor.workshopId, checkId);
+  authorize(actor, 'share:manage');
+  const token = newShareToken();
+  const row = await db.transaction(async (tx) => {
+    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt: Date.now() + input.expiresInDays * DAY_MS });
+    await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'share.create', targetType: 'share_link', targetId: r.id, detail: { checkId, expiresInDays: input.expiresInDays } });
+    return r;
+  });
+  return { link: { id: row.id, url: shareUrl(baseUrl, token), expiresAt: row.expiresAt } };
+}
+
+/** `POST /api/checks/{id}/send`: a link and the report mail to a helper, in one transaction. */
+export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, input: z.infer<typeof ShareSendSchema>, baseUrl: string) {
+  authorize(actor, 'workshop:read');
+  const { check, report, bedName } = await loadFinishedCheck(db, actor.workshopId, checkId);
+  authorize(actor, 'share:manage');
+  const workshop = await getWorkshop(db, actor.workshopId);
+  const token = newShareToken();
+  const url = shareUrl(baseUrl, token);
+  const expiresAt = Date.now() + input.expiresInDays * DAY_MS;
+  const mail = await reportMailFromReport({
+    report: publicReport(report),
+    workshopName: workshop?.name ?? 'Workshop',
+    senderName: actor.user.name,
+    bedName,
+    checkTitle: check.title,
+    linkUrl: url,
+    linkExpiresAt: expiresAt,
+    note: input.note ?? null,
+  });
+  const row = await db.transaction(async (tx) => {
+    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt });
+    const mailId = await queueMail(tx, input.email, 'report', mail, actor.workshopId);
+    await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'share.send', targetType: 'share_link', targetId: r.id, detail: { checkId, to: input.email, mailId } });
+    return r;
+  });
+  return { link: { id: row.id, url, expiresAt: row.expiresAt }, sentTo: input.email };
+}
+
+/** `GET /api/checks/{id}/share`: the check's links (without tokens), newest first. */
+export async function listShareLinks(db: Db, actor: Actor, checkId: string): Promise<ShareLinkDto[]> {
+  authorize(actor, 'workshop:read');
+  const now = Date.now();
+  return (await q.listShareLinks(db, actor.workshopId, checkId)).map((r) => toDto(r, now));
+}
+
+/** `DELETE /api/share-links/{id}`: the link stops working at once. */
+export async function revokeShareLink(db: Db, actor: Actor, id: string): Promise<void> {
+  authorize(actor, 'workshop:read');
+  const row = await q.getShareLink(db, actor.workshopId, id);
+  if (!row) throw notFound('share link');
+  authorize(actor, 'share:manage');
+  await q.revokeShareLink(db, actor.workshopId, id);
+  await recordAudit(db, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'share.revoke', targetType: 'share_link', targetId: id });
+}
+
+export type SharedComment = Pick<CommentView, 'id' | 'positionLabel' | 'body' | 'createdAt'> & { authorName: string | null };
+
+/** What a share link shows. Nothing here identifies the photo or reaches the rest of the workshop. */
+export interface SharedReportView {
+  bedName: string;
+  checkTitle: string | null;
+  checkedAt: number | null;
+  expiresAt: number;
+  report: Report;
+  comments: SharedComment[];
+}
+
+const gone = () => new AppError('share_link_gone', 410, 'This link was revoked or has expired. Ask whoever sent it for a new one.');
+const unknown = () => new AppError('not_found', 404, 'No report is shared at this address.');
+
+/**
+ * Opens a shared report by its token: 404 for a malformed or unknown (tampered) token, 410 for a revoked or
+ * expired one. `countView` counts the opening.
+ */
+export async function openSharedReport(db: Db, token: string, opts: { countView?: boolean; now?: number } = {}): Promise<SharedReportView> {
+  if (!SHARE_TOKEN_PATTERN.test(token)) throw unknown();
+  const now = opts.now ?? Date.now();
+  const hash = hashShareToken(token);
+  const link = await q.findLiveShareLink(db, hash, now);
+  if (!link) {
+    if (await q.findShareLinkByTokenHash(db, hash)) throw gone();
+    throw unknown();
+  }
+  const check = await getCheckById(db, link.checkId);
+  if (!check || check.workshopId !== link.workshopId) throw unknown();
+  const { report, bedName } = await loadFinishedCheck(db, link.workshopId, link.checkId).catch(() => { throw unknown(); });
+  if (opts.countView) await q.countShareLinkView(db, link.id, now);
+  const comments = (await listComments(db, link.workshopId, link.checkId)).map((c) => ({ id: c.id, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt, authorName: c.authorName }));
+  return { bedName, checkTitle: check.title, checkedAt: check.finishedAt ?? check.createdAt, expiresAt: link.expiresAt, report: publicReport(report), comments };
+}
