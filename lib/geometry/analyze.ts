@@ -13,7 +13,7 @@ import { GeometryInputError } from './errors';
 import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
-import { huberWeight, madSigma } from './robust';
+import { huberWeight, madSigma, median } from './robust';
 import { globalSigma, latticeShape, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
@@ -73,13 +73,19 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const usable = new Uint8Array(n);
   for (let i = 0; i < n; i++) usable[i] = insideQuad(corners, det.u[i]!, det.v[i]!, 0.02 * sidePx) ? 0 : 1;
 
+  // A detector may size holes consistently large or small (an insert's rim, a chamfer): `kappa` is the ratio of
+  // detected to nominal diameter, found from the first matches when too few detections fit the nominal sizes.
+  let kappa = 1;
   const famOfWith = (imageToBedScale: (i: number) => number, tol: number) => {
     const out: number[][] = [];
-    for (let i = 0; i < n; i++) out.push(usable[i] ? familiesForDiameter(lat, det.dPx[i]! * imageToBedScale(i), tol) : []);
+    for (let i = 0; i < n; i++) out.push(usable[i] ? familiesForDiameter(lat, (det.dPx[i]! * imageToBedScale(i)) / kappa, tol) : []);
     return out;
   };
   const localScale = (h: Mat3, i: number) => { const j = homographyJacobian(h, det.u[i]!, det.v[i]!); return Math.sqrt(Math.abs(j[0] * j[3] - j[1] * j[2])); };
   let famOf = famOfWith((i) => localScale(sqInv, i), dTol);
+  const nUsable = usable.reduce((a, b) => a + b, 0);
+  const sizedWide = famOf.filter((f) => f.length).length < 0.3 * nUsable;
+  if (sizedWide) famOf = famOfWith((i) => localScale(sqInv, i), 1.0);
 
   const init = initialImageToBed(lat, det, usable, famOf, sqInv, sqH);
   if (!init) throw new GeometryInputError('holes', `fewer than ${MIN_MATCHED} holes could be matched to the pattern (no lattice found)`);
@@ -93,6 +99,10 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const pairs = (a: typeof asg) => { const src: Pt[] = [], dst: Pt[] = [], idx: number[] = []; for (let i = 0; i < n; i++) { const p = a.posOf[i]!; if (p >= 0) { src.push([lat.positions[p]!.x, lat.positions[p]!.y]); dst.push([det.u[i]!, det.v[i]!]); idx.push(i); } } return { src, dst, idx }; };
   let pr = pairs(asg);
   if (pr.src.length < MIN_MATCHED) throw new GeometryInputError('holes', `only ${pr.src.length} holes matched the pattern; at least ${MIN_MATCHED} are needed`);
+  if (sizedWide) {
+    const ratios = pr.idx.map((i) => (det.dPx[i]! * localScale(sqInv, i)) / lat.families[lat.positions[asg.posOf[i]!]!.family]!.family.holeDiameter);
+    kappa = median(ratios);
+  }
   // Robust homography bed → image (Huber IRLS), then reassign.
   let H1 = homographyDlt(pr.src, pr.dst);
   for (let it = 0; it < 2; it++) {
@@ -282,7 +292,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
-    diagnostics: { residualSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
+    diagnostics: { diameterRatio: kappa, residualSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
   } as Report;
 }
 

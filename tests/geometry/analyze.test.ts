@@ -129,6 +129,17 @@ describe('analyzePoints on synthetic scenes', () => {
   });
 });
 
+describe('detected sizes', () => {
+  it('learns a detector that sizes every hole 1.7× too large, and still matches no spurious point', () => {
+    const scene = makeScene({ ...hard, extraDeviation: undefined, seed: 8 });
+    const big = { ...scene.points, holes: scene.points.holes.map((h) => ({ ...h, diameterPx: h.diameterPx * 1.7 })) };
+    const r = analyzePoints(big, m6);
+    expect(r.summary.matched).toBeGreaterThan(0.95 * scene.truth.seen.reduce((a, b) => a + b, 0));
+    r.positions.forEach((p, i) => { if (p.measured) expect(scene.truth.seen[i]).toBe(1); });
+    expect((r as unknown as { diagnostics: { diameterRatio: number } }).diagnostics.diameterRatio).toBeCloseTo(1.7, 1);
+  });
+});
+
 describe('partial views', () => {
   it('warns when the photo does not show where the lattice starts, and does not count unseen columns against the bed', () => {
     const scene = makeScene({ pattern: m6, seed: 6, tiltDeg: 6, centreNoisePx: 0.08, cornerNoisePx: 0.1 });
