@@ -5,13 +5,16 @@
  */
 import bcrypt from 'bcryptjs';
 import { z } from 'zod';
+import { isCommonPassword, PASSWORD_MIN_LENGTH, PASSWORD_PROBLEM_MESSAGES } from '@/lib/security/password-policy';
 
 export const BCRYPT_COST = 11;
 
 export const PasswordSchema = z
   .string()
-  .min(10, 'Use at least 10 characters.')
-  .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'Use at most 72 bytes (bcrypt reads no more).');
+  .min(PASSWORD_MIN_LENGTH, PASSWORD_PROBLEM_MESSAGES['too-short'])
+  .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'Use at most 72 bytes (bcrypt reads no more).')
+  // the common-password check of lib/security/password-policy.ts (shipped list, runs, swaps)
+  .refine((p) => !isCommonPassword(p), PASSWORD_PROBLEM_MESSAGES.common);
 
 // A hash of a random string, made once per process; compared against when no user matches.
 let dummyHash: Promise<string> | undefined;

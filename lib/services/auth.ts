@@ -7,11 +7,12 @@ import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
 import { insertMembership, listUserWorkshops } from '@/db/queries/memberships';
-import { hitRateLimit } from '@/db/queries/rate-limits';
-import { findUserByEmail, insertUser, normaliseEmail, toPublicUser, type PublicUser } from '@/db/queries/users';
+import { findUserByEmail, insertUser, toPublicUser, type PublicUser } from '@/db/queries/users';
 import { insertWorkshop } from '@/db/queries/workshops';
 import { hashPassword, PasswordSchema, verifyPassword } from '@/lib/auth/password';
 import { AppError, conflict } from '@/lib/http/errors';
+import { isCommonPassword, PASSWORD_PROBLEM_MESSAGES } from '@/lib/security/password-policy';
+import { assertSignInAllowed, assertSignUpAllowed, SIGN_IN_PER_ACCOUNT } from '@/lib/security/rate-limit';
 
 export const EmailSchema = z.string().trim().toLowerCase().pipe(z.email('Enter an e-mail address.').max(254));
 
@@ -20,7 +21,7 @@ export const SignUpSchema = z.object({
   password: PasswordSchema,
   name: z.string().trim().min(1, 'Enter your name.').max(100),
   workshopName: z.string().trim().min(1, 'Name your workshop.').max(100),
-});
+}).refine((v) => !isCommonPassword(v.password, { email: v.email, name: v.name }), { path: ['password'], message: PASSWORD_PROBLEM_MESSAGES.common });
 export type SignUpInput = z.infer<typeof SignUpSchema>;
 
 export const SignInSchema = z.object({
@@ -30,10 +31,11 @@ export const SignInSchema = z.object({
 export type SignInInput = z.infer<typeof SignInSchema>;
 
 /** Sign-in attempts allowed per e-mail address per window. */
-export const SIGN_IN_LIMIT = 20;
-export const SIGN_IN_WINDOW_MS = 15 * 60 * 1000;
+export const SIGN_IN_LIMIT = SIGN_IN_PER_ACCOUNT.limit;
+export const SIGN_IN_WINDOW_MS = SIGN_IN_PER_ACCOUNT.windowMs;
 
 export async function signUp(db: Db, input: SignUpInput, meta: { ip?: string | null } = {}): Promise<{ user: PublicUser; workshopId: string }> {
+  await assertSignUpAllowed(db, meta.ip);
   if (await findUserByEmail(db, input.email)) throw conflict('An account with this e-mail address exists; sign in instead.', { email: 'Already registered.' });
   const passwordHash = await hashPassword(input.password);
   try {
@@ -51,11 +53,8 @@ export async function signUp(db: Db, input: SignUpInput, meta: { ip?: string | n
 }
 
 export async function signIn(db: Db, input: SignInInput, meta: { ip?: string | null } = {}): Promise<{ user: PublicUser; workshopId: string | null }> {
-  const limit = await hitRateLimit(db, `sign-in:${normaliseEmail(input.email)}`, SIGN_IN_WINDOW_MS);
-  if (limit.count > SIGN_IN_LIMIT) {
-    const minutes = Math.max(1, Math.ceil((limit.resetAt - Date.now()) / 60000));
-    throw new AppError('rate_limited', 429, `Too many sign-in attempts for this address. Try again in ${minutes} min.`);
-  }
+  // per account and per client address, shared by every web instance (lib/security/rate-limit.ts)
+  await assertSignInAllowed(db, { email: input.email, ip: meta.ip });
   const user = await findUserByEmail(db, input.email);
   const ok = await verifyPassword(input.password, user?.passwordHash);
   if (!user || !ok) throw new AppError('bad_credentials', 401, 'That e-mail address and password do not match an account.');

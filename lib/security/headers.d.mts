@@ -1,0 +1,3 @@
+/** Types of lib/security/headers.mjs (see its header). */
+export declare function contentSecurityPolicy(opts: { production: boolean }): string;
+export declare function securityHeaders(opts: { production: boolean }): { key: string; value: string }[];
