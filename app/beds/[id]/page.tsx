@@ -1,0 +1,106 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { getDb } from '@/db/client';
+import { AppShell } from '@/components/AppShell';
+import { BedActions } from '@/components/BedActions';
+import { SafetyNote } from '@/components/SafetyNote';
+import { Verdict } from '@/components/Verdict';
+import { requireActor } from '@/lib/auth/session';
+import { AppError } from '@/lib/http/errors';
+import { can } from '@/lib/services/actor';
+import { getBed } from '@/lib/services/beds';
+
+export const metadata: Metadata = { title: 'Bed' };
+
+const fmt = (n: number | null | undefined, digits = 2) => (n === null || n === undefined ? '—' : n.toFixed(digits));
+const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+
+export default async function BedPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const { actor, auth } = await requireActor();
+  let data: Awaited<ReturnType<typeof getBed>>;
+  try {
+    data = await getBed(await getDb(), actor, id);
+  } catch (err) {
+    if (err instanceof AppError && err.status === 404) notFound();
+    throw err;
+  }
+  const { bed, checks, revisions } = data;
+  const p = bed.pattern;
+  return (
+    <AppShell auth={auth}>
+      <div className="flex flex-col gap-6">
+        <p><Link href="/" className="underline">← All beds</Link></p>
+        <div className="flex flex-wrap items-center gap-3">
+          <h1 className="text-3xl font-bold">{bed.name}</h1>
+          <Verdict status={bed.lastCheck?.status} verdict={bed.lastCheck?.verdict} />
+        </div>
+        {bed.notes && <p className="text-muted">{bed.notes}</p>}
+
+        <section className="panel flex flex-col gap-3" aria-label="Pattern">
+          <h2 className="text-xl font-bold">Pattern</h2>
+          {p ? (
+            <>
+              <p>
+                <strong>{p.name}</strong> — bed {p.bed.width} × {p.bed.height} {p.units}, {p.positions} positions
+                {p.panels > 0 ? `, ${p.panels} panels` : ''}. Revision {bed.patternRevision}
+                {bed.presetId ? ` (from preset ${bed.presetId})` : ''}.
+              </p>
+              <div className="overflow-x-auto">
+                <table className="w-full text-left">
+                  <thead>
+                    <tr className="border-b-2 border-line">
+                      <th className="py-2 pr-4">Family</th><th className="pr-4">Kind</th><th className="pr-4">Hole ⌀</th><th className="pr-4">Pitch X × Y</th><th className="pr-4">Grid</th><th>Fit</th>
+                    </tr>
+                  </thead>
+                  <tbody className="font-mono text-base">
+                    {p.families.map((f) => (
+                      <tr key={f.id} className="border-b border-line">
+                        <td className="py-2 pr-4">{f.label}</td><td className="pr-4">{f.kind}</td><td className="pr-4">{f.holeDiameter}</td>
+                        <td className="pr-4">{f.pitch.x} × {f.pitch.y}</td><td className="pr-4">{f.count.x} × {f.count.y}</td><td>{f.fit}</td>
+                      </tr>
+                    ))}
+                  </tbody>
+                </table>
+              </div>
+              <p className="text-sm text-muted">Sizes in {p.units}. Bed frame: origin at the front-left corner, X to the right, Y away from you.</p>
+            </>
+          ) : (
+            <p>This bed has no valid pattern; save one before checking.</p>
+          )}
+          {revisions.length > 1 && <p className="text-sm text-muted">{revisions.length} pattern revisions saved; checks keep the revision they were measured against.</p>}
+        </section>
+
+        <section className="panel flex flex-col gap-3" aria-label="Checks">
+          <h2 className="text-xl font-bold">Checks</h2>
+          {checks.length === 0 ? (
+            <p>No checks yet. Lay the reference square on the bed with the machine off, take one photo from straight above, and upload it here when photo checks are switched on.</p>
+          ) : (
+            <div className="overflow-x-auto">
+              <table className="w-full text-left">
+                <thead>
+                  <tr className="border-b-2 border-line"><th className="py-2 pr-4">When</th><th className="pr-4">Result</th><th className="pr-4">RMS, mm</th><th className="pr-4">Worst, mm</th><th>Out</th></tr>
+                </thead>
+                <tbody>
+                  {checks.map((c) => (
+                    <tr key={c.id} className="border-b border-line">
+                      <td className="py-2 pr-4">{c.title ? <strong>{c.title}<br /></strong> : null}{when(c.createdAt)}</td>
+                      <td className="pr-4"><Verdict status={c.status} verdict={c.verdict} /></td>
+                      <td className="pr-4 font-mono">{fmt(c.rmsMm)}</td>
+                      <td className="pr-4 font-mono">{fmt(c.maxMm)}</td>
+                      <td className="font-mono">{c.outCount ?? '—'}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          )}
+        </section>
+
+        <BedActions bedId={bed.id} name={bed.name} notes={bed.notes} canEdit={can(actor, 'bed:write')} canDelete={can(actor, 'bed:delete')} />
+        <SafetyNote />
+      </div>
+    </AppShell>
+  );
+}

@@ -1,0 +1,52 @@
+/** The frame of every signed-in page: brand, workshop, navigation, theme and sign-out. */
+import Link from 'next/link';
+import type { ReactNode } from 'react';
+import type { Auth } from '@/lib/auth/session';
+import { ROLE_LABELS } from '@/lib/services/actor';
+import { SignOutButton } from './SignOutButton';
+import { ThemeToggle } from './ThemeToggle';
+import { WorkshopSwitch } from './WorkshopSwitch';
+
+export function Brand() {
+  return (
+    <Link href="/" className="flex items-center gap-2 text-xl font-bold no-underline">
+      <svg width="28" height="28" viewBox="0 0 28 28" aria-hidden="true">
+        <rect x="1.5" y="1.5" width="25" height="25" rx="4" fill="none" stroke="currentColor" strokeWidth="3" />
+        {[8, 14, 20].map((x) => [8, 14, 20].map((y) => <circle key={`${x}-${y}`} cx={x} cy={y} r="2" fill="currentColor" />))}
+      </svg>
+      Gridproof
+    </Link>
+  );
+}
+
+export function AppShell({ auth, children }: { auth: Auth; children: ReactNode }) {
+  const actor = auth.actor;
+  return (
+    <div className="mx-auto flex min-h-dvh max-w-5xl flex-col px-4">
+      <header className="flex flex-wrap items-center gap-x-6 gap-y-3 border-b-2 border-line py-4">
+        <Brand />
+        {actor && <WorkshopSwitch current={actor.workshopId} workshops={auth.workshops} />}
+        <nav aria-label="Main" className="flex gap-2">
+          <Link href="/" className="btn btn-quiet">
+            Beds
+          </Link>
+          <Link href="/members" className="btn btn-quiet">
+            Members
+          </Link>
+        </nav>
+        <div className="ml-auto flex flex-wrap items-center gap-2">
+          <span className="text-muted text-sm">
+            {auth.user.name}
+            {actor ? ` · ${ROLE_LABELS[actor.role].name}` : ''}
+          </span>
+          <ThemeToggle />
+          <SignOutButton />
+        </div>
+      </header>
+      <main className="flex-1 py-6">{children}</main>
+      <footer className="border-t border-line py-4 text-sm text-muted">
+        Gridproof measures from a photo; it does not replace a machine maker&apos;s checks. Machine off before you reach onto the bed.
+      </footer>
+    </div>
+  );
+}

@@ -1,0 +1,11 @@
+'use client';
+/** Client-side providers: one TanStack Query client for reading and changing data through the API. */
+import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { useState, type ReactNode } from 'react';
+
+export function Providers({ children }: { children: ReactNode }) {
+  const [client] = useState(
+    () => new QueryClient({ defaultOptions: { queries: { staleTime: 10_000, retry: 1, refetchOnWindowFocus: true }, mutations: { retry: 0 } } }),
+  );
+  return <QueryClientProvider client={client}>{children}</QueryClientProvider>;
+}

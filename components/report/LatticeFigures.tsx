@@ -1,0 +1,33 @@
+/** The lattice's global scale and squareness with their 1σ uncertainty, or why they were not observed. */
+import type { Report } from '@/lib/geometry/contract';
+import { formatPpm, scaleOver, type LengthUnit } from '@/lib/report/units';
+
+export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { report: Report; unit: LengthUnit; bedWidthMm: number | null; bedHeightMm: number | null }) {
+  const l = report.lattice;
+  const u = l.uncertainty;
+  const rows: { name: string; value: string; plain: string }[] = [];
+  if (l.observed && l.scaleX !== null && l.scaleY !== null && l.squarenessDeg !== null) {
+    const wx = bedWidthMm ?? 1000, wy = bedHeightMm ?? 1000;
+    rows.push({ name: 'Scale along X', value: `${formatPpm(l.scaleX)} ± ${Math.round((u.scaleX ?? 0) * 1e6)} ppm`, plain: `${scaleOver(l.scaleX, wx, unit)} over ${bedWidthMm ? 'the bed’s width' : '1 m'}` });
+    rows.push({ name: 'Scale along Y', value: `${formatPpm(l.scaleY)} ± ${Math.round((u.scaleY ?? 0) * 1e6)} ppm`, plain: `${scaleOver(l.scaleY, wy, unit)} over ${bedHeightMm ? 'the bed’s depth' : '1 m'}` });
+    rows.push({ name: 'Squareness', value: `${l.squarenessDeg >= 0 ? '+' : '−'}${Math.abs(l.squarenessDeg).toFixed(3)}° ± ${(u.squarenessDeg ?? 0).toFixed(3)}°`, plain: `the X and Y rows meet at ${(90 - l.squarenessDeg).toFixed(3)}°` });
+  }
+  return (
+    <div className="flex flex-col gap-2" data-testid="lattice">
+      {rows.length ? (
+        <dl className="grid grid-cols-1 gap-3 sm:grid-cols-3">
+          {rows.map((r) => (
+            <div key={r.name} className="rounded-lg border border-line p-3">
+              <dt className="font-bold">{r.name}</dt>
+              <dd className="font-mono text-lg">{r.value}</dd>
+              <dd className="text-sm text-muted">{r.plain}</dd>
+            </div>
+          ))}
+        </dl>
+      ) : (
+        <p><strong>Scale and squareness: not observed.</strong> {l.reason ? `Why: ${l.reason}.` : 'This photo cannot tell them apart from the camera’s view.'}</p>
+      )}
+      <p className="text-sm text-muted">Bed turned {l.rotationDeg.toFixed(2)}° in the photo{u.rotationDeg !== null ? ` (± ${u.rotationDeg.toFixed(3)}°)` : ''}; uncertainties are one standard deviation. Positions’ deviations are measured after the best rigid placement of the whole lattice.</p>
+    </div>
+  );
+}

@@ -1,0 +1,128 @@
+/**
+ * `npm start`: the whole product on one machine.
+ *   1. checks the configuration (SESSION_SECRET, PORT, APP_URL) and stops with a clear message if it is wrong;
+ *   2. builds the web app (`next build`) if .next is missing or older than the sources;
+ *   3. migrates the database (DATABASE_URL, default file:data/gridproof.db);
+ *   4. in demo mode (DEMO_MODE, default 1 here) seeds the demo workshop into an empty database;
+ *   5. runs `next start -p ${PORT:-3000}` and the analysis worker (`tsx workers/worker.ts`, if present) side by
+ *      side, forwarding SIGINT/SIGTERM to both, and exits when either of them exits (stopping the other).
+ * `ensureBuilt()` is also used by the browser tests' global setup.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { existsSync, readdirSync, statSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { z } from 'zod';
+
+export const ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
+const NEXT_BIN = join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next');
+const TSX_BIN = join(ROOT, 'node_modules', '.bin', 'tsx');
+
+/** What the built app depends on; a change in any of these makes .next stale. */
+const SOURCES = ['app', 'components', 'lib', 'db', 'public', 'next.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json'];
+
+function newestMtime(path: string): number {
+  if (!existsSync(path)) return 0;
+  const st = statSync(path);
+  if (!st.isDirectory()) return st.mtimeMs;
+  let newest = st.mtimeMs;
+  for (const entry of readdirSync(path)) {
+    if (entry === 'node_modules' || entry.startsWith('.')) continue;
+    newest = Math.max(newest, newestMtime(join(path, entry)));
+  }
+  return newest;
+}
+
+/** True when .next has no finished build or a source is newer than it. */
+export function buildIsStale(root = ROOT): boolean {
+  const buildId = join(root, '.next', 'BUILD_ID');
+  if (!existsSync(buildId)) return true;
+  const built = statSync(buildId).mtimeMs;
+  return SOURCES.some((s) => newestMtime(join(root, s)) > built);
+}
+
+/** Runs `next build` when needed; returns how long it took (0 when the build was fresh), ms. */
+export function ensureBuilt(root = ROOT, log: (s: string) => void = (s) => console.log(s)): number {
+  if (!buildIsStale(root)) return 0;
+  log('[gridproof] building the web app (next build)…');
+  const t0 = Date.now();
+  const r = spawnSync(process.execPath, [NEXT_BIN, 'build'], { cwd: root, stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production', NEXT_TELEMETRY_DISABLED: '1' } });
+  if (r.status !== 0) throw new Error(`next build failed (exit ${r.status ?? r.signal})`);
+  return Date.now() - t0;
+}
+
+const EnvSchema = z.object({
+  PORT: z.coerce.number().int().min(1).max(65535).default(3000),
+  APP_URL: z.url().optional(),
+  DEMO_MODE: z.enum(['0', '1', 'true', 'false']).default('1'),
+});
+
+async function main() {
+  const parsed = EnvSchema.safeParse({ ...process.env, APP_URL: process.env.APP_URL || undefined, PORT: process.env.PORT || undefined, DEMO_MODE: process.env.DEMO_MODE || undefined });
+  if (!parsed.success) {
+    for (const i of parsed.error.issues) console.error(`[gridproof] ${i.path.join('.')}: ${i.message}`);
+    process.exit(2);
+  }
+  const env = parsed.data;
+  process.env.DEMO_MODE = env.DEMO_MODE;
+  Object.assign(process.env, { NODE_ENV: 'production' });
+  const { loadSessionSecret, isDemoMode } = await import('@/lib/auth/secret');
+  try {
+    loadSessionSecret();
+  } catch (err) {
+    console.error(`[gridproof] ${(err as Error).message}`);
+    process.exit(2);
+  }
+
+  ensureBuilt();
+
+  const { closeDb, getDb, migrateDb } = await import('@/db/client');
+  const db = await getDb();
+  await migrateDb(db);
+  if (isDemoMode()) {
+    const { seedDemo } = await import('@/lib/services/demo');
+    const r = await seedDemo(db);
+    if (r.seeded) console.log('[gridproof] seeded the demo workshop (logins on the sign-in page)');
+  }
+  await closeDb();
+
+  const children: ChildProcess[] = [];
+  const childEnv = { ...process.env, NEXT_TELEMETRY_DISABLED: '1' };
+  const web = spawn(process.execPath, [NEXT_BIN, 'start', '-p', String(env.PORT)], { cwd: ROOT, stdio: 'inherit', env: childEnv });
+  children.push(web);
+  const workerFile = join(ROOT, 'workers', 'worker.ts');
+  if (existsSync(workerFile)) children.push(spawn(TSX_BIN, [workerFile], { cwd: ROOT, stdio: 'inherit', env: childEnv }));
+  else console.log('[gridproof] no workers/worker.ts: serving without the analysis worker');
+  console.log(`[gridproof] serving on ${env.APP_URL ?? `http://localhost:${env.PORT}`}${isDemoMode() ? ' (demo mode)' : ''}`);
+
+  let stopping = false;
+  const stopAll = (signal: NodeJS.Signals) => {
+    for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill(signal);
+  };
+  for (const sig of ['SIGINT', 'SIGTERM'] as const) {
+    process.on(sig, () => {
+      stopping = true;
+      stopAll(sig);
+    });
+  }
+  await new Promise<void>((done) => {
+    for (const c of children) {
+      c.on('exit', (code, signal) => {
+        if (!stopping) {
+          console.error(`[gridproof] ${c === web ? 'web server' : 'worker'} exited (${code ?? signal}); stopping`);
+          stopping = true;
+          process.exitCode = code ?? 1;
+          stopAll('SIGTERM');
+        }
+        if (children.every((k) => k.exitCode !== null || k.signalCode !== null)) done();
+      });
+    }
+  });
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  main().catch((err: unknown) => {
+    console.error('[gridproof] start failed:', err);
+    process.exit(1);
+  });
+}
