@@ -280,7 +280,8 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   };
 
   const rk = fOut / model.lens.fPx;
-  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', principalPoint: { x: W / 2, y: Hh / 2 } };
+  const sdK = (i: number) => Math.sqrt(Math.max(0, model.cov[i * model.np + i]!));
+  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, uncertainty: { k1: sdK(8) * rk * rk, k2: sdK(9) * rk ** 4 }, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', principalPoint: { x: W / 2, y: Hh / 2 } };
 
   const unmatched: Report['unmatched'] = [];
   for (let i = 0; i < n; i++) if (asg.posOf[i]! < 0) unmatched.push({ x: det.u[i]!, y: det.v[i]! });
