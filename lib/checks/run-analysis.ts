@@ -140,7 +140,8 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   try {
     points = await deps.detect(bytes, { pattern, referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction) });
   } catch (e) {
-    if (deps.isInputError(e)) throw new PermanentJobError(withHint((e as Error).message, corners !== null), { cause: e });
+    // vision's input errors already say what to do (another photo, mark the corners)
+    if (deps.isInputError(e)) throw new PermanentJobError((e as Error).message, { cause: e });
     throw e;
   }
   points = PointsSchema.parse(points);
