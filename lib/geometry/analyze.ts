@@ -27,6 +27,11 @@ export interface AnalyzeOptions {
   diameterTolerance?: number;
   /** Thickness of the reference sheet, mm: its top face sits this far above the bed (default 0). */
   referenceThicknessMm?: number;
+  /**
+   * 1σ precision of a detected hole centre, px, if the detector knows it. Without it the fit's residual scatter is
+   * used, which also holds the holes' own scatter and so errs on the cautious side.
+   */
+  centreSigmaPx?: number;
   /** Fit Brown–Conrady k1, k2 (default true). */
   fitDistortion?: boolean;
   /** Least-accurate shape terms still reported as observed: 1σ of scale (default 0.003) and squareness (° , 0.2). */
@@ -205,7 +210,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   let cxm = 0, cym = 0;
   for (let k = 0; k < fitW.length; k++) { cxm += fitX[2 * k]!; cym += fitX[2 * k + 1]!; }
   cxm /= Math.max(1, fitW.length); cym /= Math.max(1, fitW.length);
-  const sigmaPx = Math.max(model.sigmaPx, 1e-4);
+  const sigmaPx = Math.max(options.centreSigmaPx ?? model.sigmaPx, 1e-4);
   const hidden = new Uint8Array(P), notExpected = new Uint8Array(P);
   const positions: Report['positions'] = lat.positions.map((q, pos) => {
     const fam = lat.families[q.family]!;
@@ -293,7 +298,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
-    diagnostics: { diameterRatio: kappa, residualSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
+    diagnostics: { diameterRatio: kappa, residualSigmaPx: model.sigmaPx, centreSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
   } as Report;
 }
 

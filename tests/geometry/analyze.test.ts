@@ -140,6 +140,18 @@ describe('detected sizes', () => {
   });
 });
 
+describe('centre precision', () => {
+  it("uses the detector's stated centre precision instead of the residual scatter, which holds the holes' own scatter", () => {
+    const small = preset('m6-50').size({ bedWidthMm: 800, bedHeightMm: 600 });
+    const scene = makeScene({ pattern: small, seed: 12, tiltDeg: 5, holeSigmaMm: 0.08, centreNoisePx: 0.08, cornerNoisePx: 0.05, square: { sizeMm: 300, x: 300, y: 250, angleDeg: 4 } });
+    const plain = analyzePoints(scene.points, small);
+    const told = analyzePoints(scene.points, small, { centreSigmaPx: 0.08 });
+    const med = (r: typeof plain) => { const u = r.positions.filter((p) => p.uncertaintyMm !== null).map((p) => p.uncertaintyMm!).sort((a, b) => a - b); return u[u.length >> 1]!; };
+    expect(med(told)).toBeLessThan(0.8 * med(plain));
+    expect(told.summary.marginal).toBeLessThanOrEqual(plain.summary.marginal);
+  });
+});
+
 describe('partial views', () => {
   it('warns when the photo does not show where the lattice starts, and does not count unseen columns against the bed', () => {
     const scene = makeScene({ pattern: m6, seed: 6, tiltDeg: 6, centreNoisePx: 0.08, cornerNoisePx: 0.1 });
