@@ -104,11 +104,11 @@ describe('backup and restore', () => {
 
   it('runs from the command line, and restore will not replace a database without --force', async () => {
     const out = join(work, 'b4');
-    const env = { ...process.env, STORAGE_DIR: storage.root, NODE_ENV: 'test' };
+    const env: NodeJS.ProcessEnv = { ...process.env, STORAGE_DIR: storage.root };
     const b = await run('npx', ['tsx', 'lib/cli/backup.ts', '--out', out], { env, cwd: process.cwd() });
     expect(JSON.parse(b.stdout)).toMatchObject({ ok: true, photos: 2 });
     const targetDb = join(work, 'r4', 'gridproof.db');
-    const renv = { ...env, DATABASE_URL: `file:${targetDb}`, STORAGE_DIR: join(work, 'r4-store') };
+    const renv: NodeJS.ProcessEnv = { ...env, DATABASE_URL: `file:${targetDb}`, STORAGE_DIR: join(work, 'r4-store') };
     const r = await run('npx', ['tsx', 'lib/cli/restore.ts', '--from', out], { env: renv });
     expect(JSON.parse(r.stdout)).toMatchObject({ ok: true, photos: 2 });
     const again = await run('npx', ['tsx', 'lib/cli/restore.ts', '--from', out], { env: renv }).catch((e: { code: number; stderr: string }) => e);
