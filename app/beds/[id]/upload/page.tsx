@@ -1,0 +1,40 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { getDb } from '@/db/client';
+import { AppShell } from '@/components/AppShell';
+import { UploadForm } from '@/components/upload/UploadForm';
+import { requireActor } from '@/lib/auth/session';
+import { AppError } from '@/lib/http/errors';
+import { can } from '@/lib/services/actor';
+import { getBed, listBeds } from '@/lib/services/beds';
+import { uploadMaxBytes } from '@/lib/storage';
+
+export const metadata: Metadata = { title: 'Upload a photo' };
+
+export default async function UploadPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const { actor, auth } = await requireActor();
+  const db = await getDb();
+  let bed: Awaited<ReturnType<typeof getBed>>['bed'];
+  try {
+    bed = (await getBed(db, actor, id)).bed;
+  } catch (err) {
+    if (err instanceof AppError && err.status === 404) notFound();
+    throw err;
+  }
+  const beds = (await listBeds(db, actor)).map((b) => ({ id: b.id, name: b.name, hasPattern: b.pattern !== null }));
+  return (
+    <AppShell auth={auth}>
+      <div className="flex flex-col gap-6">
+        <p><Link href={`/beds/${id}`} className="underline">← {bed.name}</Link></p>
+        <h1 className="text-3xl font-bold">Check {bed.name} from a photo</h1>
+        {can(actor, 'photo:upload') ? (
+          <UploadForm beds={beds} bedId={id} userUnits={actor.user.units} maxBytes={uploadMaxBytes()} />
+        ) : (
+          <p className="panel">Your role in this workshop reads reports; an owner or a machinist uploads photos.</p>
+        )}
+      </div>
+    </AppShell>
+  );
+}
