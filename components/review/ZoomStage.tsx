@@ -7,6 +7,7 @@
  */
 import { useCallback, useEffect, useRef, useState, type ReactNode } from 'react';
 
+
 export interface View { x: number; y: number; w: number; h: number }
 export interface StageApi {
   /** Screen (client) px → image px. */
@@ -22,11 +23,11 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
   heightPx: number;
   href: string | null;
   children: (api: StageApi) => ReactNode;
-  onTap?: (p: { x: number; y: number }, target: EventTarget | null) => void;
+  onTap?: (p: { x: number; y: number }, api: StageApi) => void;
   label: string;
   className?: string;
 }) {
-  const svgRef = useRef<SVGSVGElement>(null);
+  const [svgEl, setSvgEl] = useState<SVGSVGElement | null>(null);
   const full: View = { x: 0, y: 0, w: widthPx, h: heightPx };
   const [view, setView] = useState<View>(full);
   const [boxW, setBoxW] = useState(800);
@@ -34,22 +35,22 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
   const gesture = useRef<{ startView: View; start: Map<number, { x: number; y: number }>; moved: boolean; target: EventTarget | null } | null>(null);
 
   useEffect(() => {
-    const el = svgRef.current;
+    const el = svgEl;
     if (!el) return;
     const ro = new ResizeObserver(() => setBoxW(el.getBoundingClientRect().width || 800));
     ro.observe(el);
     return () => ro.disconnect();
-  }, []);
+  }, [svgEl]);
 
   const toImage = useCallback((cx: number, cy: number) => {
-    const el = svgRef.current;
+    const el = svgEl;
     if (!el) return { x: 0, y: 0 };
     const r = el.getBoundingClientRect();
     // preserveAspectRatio="xMidYMid meet": uniform scale, centred
     const s = Math.min(r.width / view.w, r.height / view.h);
     const ox = r.left + (r.width - view.w * s) / 2, oy = r.top + (r.height - view.h * s) / 2;
     return { x: view.x + (cx - ox) / s, y: view.y + (cy - oy) / s };
-  }, [view]);
+  }, [view, svgEl]);
 
   const clamp = useCallback((v: View): View => {
     const w = Math.min(Math.max(v.w, widthPx / 40), widthPx * 1.2);
@@ -68,7 +69,7 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
   }, [clamp]);
 
   useEffect(() => {
-    const el = svgRef.current;
+    const el = svgEl;
     if (!el) return;
     const onWheel = (e: WheelEvent) => {
       e.preventDefault();
@@ -76,11 +77,11 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
     };
     el.addEventListener('wheel', onWheel, { passive: false });
     return () => el.removeEventListener('wheel', onWheel);
-  }, [toImage, zoomAt]);
+  }, [toImage, zoomAt, svgEl]);
 
   const onPointerDown = (e: React.PointerEvent<SVGSVGElement>) => {
     if ((e.target as Element).closest('[data-drag]')) return; // handles drag themselves
-    svgRef.current?.setPointerCapture(e.pointerId);
+    svgEl?.setPointerCapture(e.pointerId);
     pointers.current.set(e.pointerId, { x: e.clientX, y: e.clientY });
     gesture.current = { startView: view, start: new Map(pointers.current), moved: false, target: e.target };
   };
@@ -88,7 +89,7 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
     if (!pointers.current.has(e.pointerId) || !gesture.current) return;
     pointers.current.set(e.pointerId, { x: e.clientX, y: e.clientY });
     const g = gesture.current;
-    const el = svgRef.current!;
+    const el = e.currentTarget;
     const r = el.getBoundingClientRect();
     const s = Math.min(r.width / g.startView.w, r.height / g.startView.h);
     const pts = [...pointers.current.values()];
@@ -115,7 +116,7 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
     const g = gesture.current;
     const wasSingle = pointers.current.size === 1;
     pointers.current.delete(e.pointerId);
-    if (g && wasSingle && !g.moved && onTap) onTap(toImage(e.clientX, e.clientY), g.target);
+    if (g && wasSingle && !g.moved && onTap) onTap(toImage(e.clientX, e.clientY), { toImage, pxPerScreen: view.w / Math.max(1, boxW) });
     if (pointers.current.size === 0) gesture.current = null;
     else gesture.current = { startView: view, start: new Map(pointers.current), moved: true, target: null };
   };
@@ -131,7 +132,7 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
         <span className="self-center text-sm text-muted">{Math.round((widthPx / view.w) * 100)} % · drag to move, pinch or wheel to zoom</span>
       </div>
       <svg
-        ref={svgRef}
+        ref={setSvgEl}
         viewBox={`${view.x} ${view.y} ${view.w} ${view.h}`}
         preserveAspectRatio="xMidYMid meet"
         className="gp-touch-none block w-full rounded-lg border border-line bg-black"

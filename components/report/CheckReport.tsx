@@ -1,0 +1,199 @@
+'use client';
+/**
+ * The report of one finished check, read through the API (`/api/checks/{id}/report` and `/detail`): the
+ * verdict in one sentence, the deviation map, every position, the panels and their moves, the lattice's scale
+ * and squareness, a histogram, the photo with its overlay, exports and a print sheet. All lengths arrive in mm
+ * and are converted only where shown, to the user's unit.
+ */
+import './report.css';
+import Link from 'next/link';
+import { useMemo, useState } from 'react';
+import { useQuery } from '@tanstack/react-query';
+import { api, errorText } from '@/components/api';
+import type { PatternMm } from '@/lib/geometry';
+import type { Points, Report } from '@/lib/geometry/contract';
+import { photoOverlay } from '@/lib/report/overlay';
+import { MARK_ORDER, type Mark } from '@/lib/report/palette';
+import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
+import { ZoomStage } from '@/components/review/ZoomStage';
+import { BedMap, EXAGGERATIONS, autoExaggeration, type MapItem } from './BedMap';
+import { DeviationHistogram } from './DeviationHistogram';
+import { LatticeFigures } from './LatticeFigures';
+import { MarkChip } from './Mark';
+import { PanelsTable } from './PanelsTable';
+import { PhotoMarks, type PhotoMark } from './PhotoMarks';
+import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
+
+export interface CheckDetail {
+  check: { id: string; bedId: string; bedName: string; title: string | null; status: string; stage: string | null; error: string | null; referenceMm: number; createdAt: number; finishedAt: number | null; edited: { byId: string | null; byName: string | null; at: number; edits: unknown } | null };
+  pattern: PatternMm | null;
+  patternRevision: number | null;
+  detections: Points | null;
+  photo: { available: boolean; widthPx: number | null; heightPx: number | null };
+  can: { review: boolean };
+  units: LengthUnit;
+}
+
+const VERDICT_BOX: Record<Report['summary']['verdict'], string> = {
+  pass: 'border-pass bg-pass-bg text-pass',
+  marginal: 'border-warn bg-warn-bg text-warn',
+  fail: 'border-fail bg-fail-bg text-fail',
+};
+const VERDICT_WORD: Record<Report['summary']['verdict'], string> = { pass: 'Pass', marginal: 'Marginal', fail: 'Fail' };
+
+export function useCheckDetail(checkId: string) {
+  return useQuery({ queryKey: ['check-detail', checkId], queryFn: () => api<CheckDetail>(`/api/checks/${checkId}/detail`) });
+}
+
+export function CheckReport({ checkId }: { checkId: string }) {
+  const report = useQuery({ queryKey: ['check-report', checkId], queryFn: () => api<Report>(`/api/checks/${checkId}/report`) });
+  const detail = useCheckDetail(checkId);
+  if (report.isPending || detail.isPending) return <p className="panel" aria-busy="true">Loading the report…</p>;
+  if (report.isError) return <p className="panel field-error" role="alert">{errorText(report.error)}</p>;
+  if (detail.isError) return <p className="panel field-error" role="alert">{errorText(detail.error)}</p>;
+  return <ReportView report={report.data} detail={detail.data} />;
+}
+
+export function ReportView({ report, detail }: { report: Report; detail: CheckDetail }) {
+  const [unit, setUnit] = useState<LengthUnit>(detail.units);
+  const [selected, setSelected] = useState<string | null>(null);
+  const [exag, setExag] = useState<number | 'auto'>('auto');
+  const [verdictFilter] = useState<VerdictFilter>('all');
+  const id = detail.check.id;
+  const s = report.summary;
+
+  const geometry = useMemo(() => mapGeometry(detail.pattern ? ({ ...report, pattern: detail.pattern } as unknown as Report) : report), [report, detail.pattern]);
+  const spacing = useMemo(() => nearestSpacing(report.positions), [report]);
+  const autoX = autoExaggeration(s.maxMm, spacing);
+  const exaggeration = exag === 'auto' ? autoX : exag;
+  const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
+  const items: MapItem[] = useMemo(() => report.positions.map((p) => ({
+    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: p.verdict,
+    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen${p.hidden ? ' (under the reference square)' : ''}`,
+  })), [report, unit]);
+  const rows = useMemo(() => positionRows(report), [report]);
+  const counts = useMemo(() => {
+    const c: Record<Mark, number> = { in: 0, marginal: 0, out: 0, missing: 0, unmatched: report.unmatched.length };
+    for (const p of report.positions) c[p.verdict]++;
+    return c;
+  }, [report]);
+  const overlay = useMemo(() => (detail.detections ? photoOverlay(report, detail.detections) : null), [report, detail.detections]);
+  const photoMarks: PhotoMark[] = useMemo(() => {
+    if (!detail.detections || !overlay) return [];
+    const out: PhotoMark[] = detail.detections.holes.map((h, i) => {
+      const pos = overlay.detectionPosition[i]!;
+      const p = pos >= 0 ? report.positions[pos]! : null;
+      return { key: `d${i}`, x: h.x, y: h.y, diameterPx: h.diameterPx, mark: overlay.detectionVerdict[i]!, title: p ? `${p.label} — ${p.verdict}${p.deviation ? `, ${formatLength(p.deviation.r, unit)} off` : ''}` : 'detected hole that matches no position' };
+    });
+    report.positions.forEach((p, i) => {
+      const px = overlay.positionPx[i];
+      if (!p.measured && px && !p.hidden) out.push({ key: `m${i}`, x: px.x, y: px.y, mark: 'missing', title: `${p.label}: expected here, not seen` });
+    });
+    return out;
+  }, [detail.detections, overlay, report, unit]);
+
+  const when = new Date(detail.check.finishedAt ?? detail.check.createdAt).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+  return (
+    <article className="flex flex-col gap-6" data-testid="check-report">
+      <section className={`rounded-xl border-4 p-5 ${VERDICT_BOX[s.verdict]}`} aria-label="Verdict">
+        <p className="text-sm font-bold uppercase tracking-wide">{detail.check.bedName}{detail.check.title ? ` · ${detail.check.title}` : ''} · {when}</p>
+        <h2 className="mt-1 text-3xl font-bold">{VERDICT_WORD[s.verdict]}</h2>
+        <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{s.sentence}</p>
+      </section>
+
+      <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
+        {[
+          ['Measured', `${s.matched}`],
+          ['Out', `${s.out}`],
+          ['Marginal', `${s.marginal}`],
+          ['Not seen', `${s.missing}`],
+          ['RMS off', formatLength(s.rmsMm, unit)],
+          ['Largest', formatLength(s.maxMm, unit)],
+        ].map(([k, v]) => (
+          <div key={k} className="panel !p-3"><dt className="text-sm text-muted">{k}</dt><dd className="font-mono text-2xl font-bold">{v}</dd></div>
+        ))}
+      </dl>
+
+      {(report.warnings?.length ?? 0) > 0 && (
+        <ul className="panel list-disc pl-8" aria-label="Notes">{report.warnings!.map((w) => <li key={w}>{w}</li>)}</ul>
+      )}
+      {detail.check.edited && (
+        <p className="text-muted">Fitted after review: detections edited by {detail.check.edited.byName ?? 'a former member'} on {new Date(detail.check.edited.at).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' })}.</p>
+      )}
+
+      <div className="no-print flex flex-wrap items-end gap-3">
+        <fieldset className="flex gap-2" aria-label="Units">
+          <legend className="sr-only">Units</legend>
+          {(['mm', 'in'] as const).map((u) => (
+            <button key={u} type="button" className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-pressed={unit === u} onClick={() => setUnit(u)}>{u === 'mm' ? 'mm' : 'inch'}</button>
+          ))}
+        </fieldset>
+        <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=csv&units=${unit}`} download data-testid="export-csv">CSV</a>
+        <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=json`} download>JSON</a>
+        <button type="button" className="btn btn-quiet" onClick={() => window.print()}>Print</button>
+        {detail.can.review && <Link className="btn btn-quiet" href={`/checks/${id}/review`} data-testid="open-review">Review detections</Link>}
+        <Link className="btn btn-quiet" href={`/beds/${detail.check.bedId}/history`}>Bed history</Link>
+      </div>
+
+      <section className="panel flex flex-col gap-3" aria-labelledby="map-h">
+        <div className="flex flex-wrap items-end justify-between gap-3">
+          <h2 id="map-h" className="text-xl font-bold">Deviation map</h2>
+          <label className="field no-print">
+            <span className="text-sm">Arrow exaggeration</span>
+            <select className="input" value={String(exag)} onChange={(e) => setExag(e.target.value === 'auto' ? 'auto' : Number(e.target.value))}>
+              <option value="auto">Automatic (× {autoX.toLocaleString('en')})</option>
+              {EXAGGERATIONS.map((x) => <option key={x} value={x}>× {x.toLocaleString('en')}</option>)}
+            </select>
+          </label>
+        </div>
+        <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
+          {MARK_ORDER.filter((m) => m !== 'unmatched').map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
+        </div>
+        <BedMap
+          widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY}
+          panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))}
+          items={items} spacingMm={spacing} exaggeration={exaggeration} unit={unit}
+          selected={selected} onSelect={setSelected}
+          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; arrows show each position's deviation × ${exaggeration}.`}
+        />
+        {selected && <p className="font-bold" aria-live="polite">{items.find((i) => i.key === selected)?.title}</p>}
+      </section>
+
+      <section className="panel flex flex-col gap-3" aria-labelledby="pos-h">
+        <h2 id="pos-h" className="text-xl font-bold">Every position</h2>
+        <PositionsTable rows={rows} unit={unit} selected={selected} onSelect={setSelected} initialVerdict={verdictFilter} />
+      </section>
+
+      <section className="panel flex flex-col gap-3" aria-labelledby="pan-h">
+        <h2 id="pan-h" className="text-xl font-bold">Panels and the moves that put them back</h2>
+        <PanelsTable report={report} unit={unit} />
+      </section>
+
+      <section className="panel flex flex-col gap-3" aria-labelledby="lat-h">
+        <h2 id="lat-h" className="text-xl font-bold">Lattice scale and squareness</h2>
+        <LatticeFigures report={report} unit={unit} bedWidthMm={detail.pattern?.bed.width ?? null} bedHeightMm={detail.pattern?.bed.height ?? null} />
+      </section>
+
+      <section className="panel flex flex-col gap-3" aria-labelledby="hist-h">
+        <h2 id="hist-h" className="text-xl font-bold">How far off</h2>
+        <DeviationHistogram report={report} unit={unit} />
+      </section>
+
+      <section className="panel print-break flex flex-col gap-3" aria-labelledby="photo-h">
+        <h2 id="photo-h" className="text-xl font-bold">The photo, with what was found</h2>
+        {detail.photo.available && detail.detections ? (
+          <>
+            <div className="flex flex-wrap gap-x-4 gap-y-1">{MARK_ORDER.map((m) => <MarkChip key={m} mark={m} />)}<span className="text-sm text-muted">dashed yellow: the reference square</span></div>
+            <ZoomStage widthPx={detail.detections.image.width} heightPx={detail.detections.image.height} href={`/api/checks/${id}/photo`} label="The uploaded photo with each detected hole marked by its verdict">
+              {({ pxPerScreen }) => <PhotoMarks corners={detail.detections!.reference.corners} marks={photoMarks} pxPerScreen={pxPerScreen} />}
+            </ZoomStage>
+          </>
+        ) : (
+          <p>The photo is not available for this check.</p>
+        )}
+      </section>
+      <p className="print-only text-sm">Gridproof measures from a photo; it does not replace the machine maker’s checks. Machine off before you reach onto the bed.</p>
+    </article>
+  );
+}
