@@ -1,0 +1,310 @@
+/**
+ * Finding hole centres. Candidates: dark blobs of the reduced image (opencv-wasm adaptive threshold, external
+ * contours, moments), kept when their size, mapped onto the bed plane through the square's homography, fits a
+ * family and they are round enough. Each candidate is then refined at full resolution in a small window resampled
+ * onto the bed plane (so a hole is a circle in mm, free of perspective), by one of two measured methods:
+ * - 'centroid': intensity-weighted centroid with weights ramping from 1 (darker than 35 % of the way from the
+ *   hole's level to the surround's) to 0 (past 75 %), inside a disc a few px wider than the hole;
+ * - 'edge': sub-pixel edge points where rays from the centre cross the mid level, with a robust circle fit.
+ * The centre is mapped back to original image px through the same homography.
+ *
+ * Frames: image px (origin top-left, +y down, pixel centres at integers); bed plane = the reference square's frame,
+ * mm (see target.ts). `H` maps the square frame (mm) to image px.
+ */
+import { getCv, matFromGrey, type CvMat } from './cv';
+import { applyH, invertH, localScale, type H3 } from './homography';
+import { sampleGrey } from './square';
+
+export type CentreMethod = 'centroid' | 'edge';
+
+export interface FamilySize {
+  id: string;
+  diameterMm: number;
+}
+
+export interface HoleDetection {
+  /** Centre in image px. */
+  x: number;
+  y: number;
+  diameterPx: number;
+  diameterMm: number;
+  /** In [0, 1]. */
+  confidence: number;
+  family: string;
+  /** Centre in the square's frame, mm. */
+  planeMm: [number, number];
+  /** Hole-to-surround contrast, grey levels (0–255 scale). */
+  contrast: number;
+}
+
+export interface HoleSearch {
+  method?: CentreMethod;
+  /** Convex polygon in the square frame (mm) where holes are not sought (the target sheet). */
+  exclude?: [number, number][];
+  /** Relative size tolerance for a family (default 0.22). */
+  sizeTolerance?: number;
+}
+
+function insidePoly(poly: [number, number][], x: number, y: number): boolean {
+  let inside = false;
+  for (let i = 0, j = poly.length - 1; i < poly.length; j = i++) {
+    const [xi, yi] = poly[i]!;
+    const [xj, yj] = poly[j]!;
+    if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) inside = !inside;
+  }
+  return inside;
+}
+
+function median(a: number[]): number {
+  const s = [...a].sort((x, y) => x - y);
+  return s[Math.floor(s.length / 2)] ?? 0;
+}
+
+/** Kåsa algebraic circle fit: centre and radius through points (least squares on x² + y² + Dx + Ey + F = 0). */
+export function fitCircle(pts: [number, number][]): { cx: number; cy: number; r: number } | null {
+  const n = pts.length;
+  if (n < 5) return null;
+  let mx = 0;
+  let my = 0;
+  for (const p of pts) {
+    mx += p[0];
+    my += p[1];
+  }
+  mx /= n;
+  my /= n;
+  let suu = 0, suv = 0, svv = 0, suuu = 0, svvv = 0, suvv = 0, svuu = 0;
+  for (const p of pts) {
+    const u = p[0] - mx;
+    const v = p[1] - my;
+    suu += u * u;
+    suv += u * v;
+    svv += v * v;
+    suuu += u * u * u;
+    svvv += v * v * v;
+    suvv += u * v * v;
+    svuu += v * u * u;
+  }
+  const a = 0.5 * (suuu + suvv);
+  const b = 0.5 * (svvv + svuu);
+  const det = suu * svv - suv * suv;
+  if (Math.abs(det) < 1e-12) return null;
+  const uc = (a * svv - b * suv) / det;
+  const vc = (b * suu - a * suv) / det;
+  const r = Math.sqrt(uc * uc + vc * vc + (suu + svv) / n);
+  return { cx: uc + mx, cy: vc + my, r };
+}
+
+interface Refined {
+  cx: number;
+  cy: number;
+  diameterMm: number;
+  contrast: number;
+  roundness: number;
+  coverage: number;
+}
+
+/** Refines one hole on the bed plane. Returns null when it is not a dark round hole. */
+export function refineHole(grey: Float32Array, w: number, h: number, H: H3, x0: number, y0: number, rMm: number, method: CentreMethod): Refined | null {
+  const s = localScale(H, x0, y0);
+  const d = 1 / s; // mm per image px here
+  const at = (x: number, y: number) => {
+    const p = applyH(H, x, y);
+    return sampleGrey(grey, w, h, p[0], p[1]);
+  };
+  let cx = x0;
+  let cy = y0;
+  let Lin = 0;
+  let Lout = 0;
+  let r = rMm;
+  const levels = () => {
+    const inn: number[] = [];
+    for (const f of [0, 0.25, 0.45]) for (let k = 0; k < (f === 0 ? 1 : 16); k++) inn.push(at(cx + f * r * Math.cos((k * Math.PI) / 8), cy + f * r * Math.sin((k * Math.PI) / 8)));
+    const out: number[] = [];
+    for (const e of [2.5, 3.5, 4.5]) for (let k = 0; k < 32; k++) out.push(at(cx + (r + e * d) * Math.cos((k * Math.PI) / 16), cy + (r + e * d) * Math.sin((k * Math.PI) / 16)));
+    Lin = median(inn);
+    Lout = median(out);
+  };
+  // edge points by rays: where the profile first climbs through the mid level near the expected radius
+  const rays = (K: number) => {
+    const mid = (Lin + Lout) / 2;
+    const pts: [number, number][] = [];
+    const step = 0.25 * d;
+    const rho0 = Math.max(0.3 * r, r - 5 * d);
+    const rho1 = r + 5 * d;
+    for (let k = 0; k < K; k++) {
+      const th = (2 * Math.PI * k) / K;
+      const c = Math.cos(th);
+      const sn = Math.sin(th);
+      let prev = at(cx + rho0 * c, cy + rho0 * sn);
+      let best = -1;
+      let bestDist = Infinity;
+      for (let rho = rho0 + step; rho <= rho1 + 1e-9; rho += step) {
+        const v = at(cx + rho * c, cy + rho * sn);
+        if (prev < mid && v >= mid) {
+          const t = rho - step + (step * (mid - prev)) / (v - prev);
+          if (Math.abs(t - r) < bestDist) {
+            bestDist = Math.abs(t - r);
+            best = t;
+          }
+        }
+        prev = v;
+      }
+      if (best > 0) pts.push([cx + best * c, cy + best * sn]);
+    }
+    return pts;
+  };
+  let fitRes = 0;
+  let coverage = 0;
+  let diameterMm = 2 * r;
+  for (let iter = 0; iter < 4; iter++) {
+    levels();
+    if (Lout - Lin < 10) return null;
+    const K = 48;
+    let pts = rays(K);
+    coverage = pts.length / K;
+    if (coverage < 0.6) return null;
+    let c = fitCircle(pts);
+    if (!c) return null;
+    let res = pts.map((p) => Math.abs(Math.hypot(p[0] - c!.cx, p[1] - c!.cy) - c!.r));
+    const mad = median(res) * 1.4826 + 0.05 * d;
+    const keep = pts.filter((_, i) => res[i]! < 3 * mad);
+    if (keep.length >= 0.6 * K) {
+      pts = keep;
+      c = fitCircle(pts) ?? c;
+      res = pts.map((p) => Math.abs(Math.hypot(p[0] - c!.cx, p[1] - c!.cy) - c!.r));
+    }
+    fitRes = Math.sqrt(res.reduce((a, b) => a + b * b, 0) / res.length);
+    if (Math.hypot(c.cx - x0, c.cy - y0) > rMm * 0.8 || c.r < 0.5 * rMm || c.r > 1.6 * rMm) return null;
+    let nx = c.cx;
+    let ny = c.cy;
+    r = c.r;
+    diameterMm = 2 * c.r;
+    if (method === 'centroid') {
+      const lo = Lin + 0.35 * (Lout - Lin);
+      const hi = Lin + 0.75 * (Lout - Lin);
+      const R = r + 3.5 * d;
+      const N = Math.ceil(R / d);
+      let sw = 0;
+      let sx = 0;
+      let sy = 0;
+      for (let j = -N; j <= N; j++)
+        for (let i = -N; i <= N; i++) {
+          const px = i * d;
+          const py = j * d;
+          if (px * px + py * py > R * R) continue;
+          const v = at(cx + px, cy + py);
+          const wgt = v <= lo ? 1 : v >= hi ? 0 : (hi - v) / (hi - lo);
+          sw += wgt;
+          sx += wgt * px;
+          sy += wgt * py;
+        }
+      if (sw <= 0) return null;
+      nx = cx + sx / sw;
+      ny = cy + sy / sw;
+      diameterMm = 2 * Math.sqrt((sw * d * d) / Math.PI);
+    }
+    const moved = Math.hypot(nx - cx, ny - cy);
+    cx = nx;
+    cy = ny;
+    if (moved < 0.005 * d && iter >= 1) break;
+  }
+  return { cx, cy, diameterMm, contrast: Lout - Lin, roundness: fitRes / r, coverage };
+}
+
+/**
+ * Finds holes. `small` is the grey image reduced by `factor`; H maps the square frame (mm) to full image px.
+ */
+export async function findHoles(
+  grey: Float32Array,
+  w: number,
+  h: number,
+  small: { data: Uint8Array; width: number; height: number },
+  factor: number,
+  H: H3,
+  families: FamilySize[],
+  search: HoleSearch = {},
+): Promise<HoleDetection[]> {
+  const method = search.method ?? 'centroid';
+  const tol = search.sizeTolerance ?? 0.22;
+  const Hi = invertH(H);
+  const { cv } = await getCv();
+  const centre = applyH(Hi, w / 2, h / 2);
+  const s0 = localScale(H, centre[0], centre[1]);
+  const maxD = Math.max(...families.map((f) => f.diameterMm));
+  const block = Math.max(11, Math.round((2.6 * maxD * s0) / factor)) | 1;
+  const src = matFromGrey(cv, small.data, small.width, small.height);
+  const bin = new cv.Mat() as CvMat;
+  const contours = new cv.MatVector() as { size(): number; get(i: number): CvMat; delete(): void };
+  const hier = new cv.Mat() as CvMat;
+  const cands: { x: number; y: number; fam: FamilySize }[] = [];
+  try {
+    cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, 8);
+    cv.findContours(bin, contours, hier, cv.RETR_EXTERNAL, cv.CHAIN_APPROX_NONE);
+    const n = contours.size();
+    const minD = Math.min(...families.map((f) => f.diameterMm));
+    const minArea = Math.max(4, 0.25 * Math.PI * ((minD * s0 * 0.35) / factor) ** 2);
+    for (let i = 0; i < n; i++) {
+      const c = contours.get(i);
+      try {
+        const m = cv.moments(c, false) as { m00: number; m10: number; m01: number };
+        const area = m.m00;
+        if (area < minArea) continue;
+        const u = (m.m10 / m.m00) * factor + (factor - 1) / 2;
+        const v = (m.m01 / m.m00) * factor + (factor - 1) / 2;
+        const b = applyH(Hi, u, v);
+        if (search.exclude && insidePoly(search.exclude, b[0], b[1])) continue;
+        const sl = localScale(H, b[0], b[1]) / factor;
+        const peri = cv.arcLength(c, true) as number;
+        const circ = (4 * Math.PI * area) / (peri * peri);
+        if (circ < 0.5) continue;
+        // equivalent diameter in mm; a contour's polygon area misses about half a pixel rim
+        const dMm = (2 * Math.sqrt(area / Math.PI) + 1) / sl;
+        let best: FamilySize | undefined;
+        let bestErr = Infinity;
+        for (const f of families) {
+          const e = Math.abs(dMm / f.diameterMm - 1);
+          if (e < bestErr) {
+            bestErr = e;
+            best = f;
+          }
+        }
+        if (best && bestErr < 0.5) cands.push({ x: b[0], y: b[1], fam: best });
+      } finally {
+        c.delete();
+      }
+    }
+  } finally {
+    src.delete();
+    bin.delete();
+    contours.delete();
+    hier.delete();
+  }
+  const out: HoleDetection[] = [];
+  for (const c of cands) {
+    const r = refineHole(grey, w, h, H, c.x, c.y, c.fam.diameterMm / 2, method);
+    if (!r) continue;
+    if (r.roundness > 0.08) continue;
+    let fam: FamilySize | undefined;
+    let err = Infinity;
+    for (const f of families) {
+      const e = Math.abs(r.diameterMm / f.diameterMm - 1);
+      if (e < err) {
+        err = e;
+        fam = f;
+      }
+    }
+    if (!fam || err > tol) continue;
+    const p = applyH(H, r.cx, r.cy);
+    const s = localScale(H, r.cx, r.cy);
+    const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (tol * 1.5)) * r.coverage;
+    out.push({ x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast });
+  }
+  // one detection per hole: keep the most confident of any that overlap
+  out.sort((a, b) => b.confidence - a.confidence);
+  const kept: HoleDetection[] = [];
+  for (const d of out) {
+    if (kept.some((k) => Math.hypot(k.planeMm[0] - d.planeMm[0], k.planeMm[1] - d.planeMm[1]) < 0.5 * Math.min(k.diameterMm, d.diameterMm))) continue;
+    kept.push(d);
+  }
+  return kept;
+}

@@ -1,0 +1,114 @@
+/**
+ * Photo → hole centres: the worker's eyes. `detectFromImage` reads the uploaded bytes, finds the reference square
+ * (or takes the user's corners) and every hole, and returns them in the measurement core's Points format
+ * (image px, origin top-left, +y down). `analyzeImage` adds the fit and returns the Report.
+ */
+import type { Pattern, Points } from '@/lib/geometry/contract';
+import { VisionInputError } from './errors';
+import { homographyFrom4, type H3 } from './homography';
+import { findHoles, type CentreMethod, type FamilySize, type HoleDetection } from './holes';
+import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
+import { findSquare, type Corners } from './square';
+import { PAPER_MARGIN_FRACTION, targetCornersMm } from './target';
+
+export { VisionInputError, type VisionErrorCode } from './errors';
+export { DEFAULT_MAX_PIXELS } from './load';
+
+/** Stages reported through `onStage`, in order. */
+export type VisionStage = 'reading photo' | 'finding square' | 'finding holes' | 'fitting';
+
+/** Fewest holes the fit can work with. */
+export const MIN_HOLES = 4;
+
+export interface DetectOptions {
+  /** Outer size of the reference square, mm. */
+  referenceMm: number;
+  /** The square's four corners in image px (in order around it), overriding the search. */
+  corners?: [[number, number], [number, number], [number, number], [number, number]];
+  /** Decompression-bomb limit, px (default 50 MP). */
+  maxPixels?: number;
+  onStage?: (stage: VisionStage) => void;
+  /** Centre refinement (default 'centroid', the better one measured by the bench). */
+  method?: CentreMethod;
+}
+
+export interface DetectMeta {
+  width: number;
+  height: number;
+  /** EXIF orientation of the file (1–8), applied before detection. */
+  orientation: number;
+  focalPx?: number;
+  bitDepth: 8 | 16;
+  format: string;
+  /** How the square was obtained and, for Gridproof's target, whether its orientation mark was seen. */
+  square: { source: 'detected' | 'given'; kind?: 'target' | 'square'; markFound?: boolean; edgeRmsPx?: number };
+  /** Factor of the reduced image for the candidate passes. */
+  reduction: number;
+  /** Grey channel mix (R, G, B weights). */
+  mix: [number, number, number];
+  detections: (HoleDetection & { family: string })[];
+  timingsMs: Record<string, number>;
+}
+
+function familySizes(pattern: Pattern): FamilySize[] {
+  const k = pattern.units === 'in' ? 25.4 : 1;
+  return pattern.families.map((f) => ({ id: f.id, diameterMm: f.holeDiameter * k }));
+}
+
+/** Detects the square and the holes of `pattern` in a photo. Throws VisionInputError for inputs to change. */
+export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: DetectOptions): Promise<{ points: Points; meta: DetectMeta }> {
+  const t: Record<string, number> = {};
+  let t0 = performance.now();
+  const lap = (k: string) => {
+    const n = performance.now();
+    t[k] = Math.round((n - t0) * 10) / 10;
+    t0 = n;
+  };
+  opts.onStage?.('reading photo');
+  const photo = await loadPhoto(bytes, { maxPixels: opts.maxPixels ?? DEFAULT_MAX_PIXELS });
+  const { grey, width: w, height: h } = photo;
+  const factor = Math.max(1, Math.ceil(Math.max(w, h) / 1500));
+  const small = reduce(grey, w, h, factor);
+  lap('load');
+
+  opts.onStage?.('finding square');
+  let corners: Corners;
+  let square: DetectMeta['square'];
+  if (opts.corners) {
+    corners = opts.corners;
+    square = { source: 'given' };
+  } else {
+    const sq = await findSquare(grey, w, h, small, factor);
+    if (!sq) {
+      throw new VisionInputError('no-square', 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
+    }
+    corners = sq.corners;
+    square = { source: 'detected', kind: sq.kind, markFound: sq.markFound, edgeRmsPx: Math.round(sq.edgeRmsPx * 1000) / 1000 };
+  }
+  const S = opts.referenceMm;
+  let H: H3;
+  try {
+    H = homographyFrom4(targetCornersMm(S), corners);
+  } catch {
+    throw new VisionInputError('no-square', 'The four corners given do not form a quadrilateral. Mark them in order around the square.');
+  }
+  lap('square');
+
+  opts.onStage?.('finding holes');
+  const m = PAPER_MARGIN_FRACTION * S;
+  const exclude: [number, number][] = [[-m, -m], [S + m, -m], [S + m, S + m], [-m, S + m]];
+  const dets = await findHoles(grey, w, h, small, factor, H, familySizes(pattern), { method: opts.method ?? 'centroid', ...(square.source === 'detected' ? { exclude } : {}) });
+  lap('holes');
+  if (dets.length < MIN_HOLES) {
+    throw new VisionInputError('too-few-holes', `Only ${dets.length} hole${dets.length === 1 ? ' was' : 's were'} found; at least ${MIN_HOLES} are needed. Check that the pattern's hole sizes are right, the bed is swept clean and evenly lit, and the photo is sharp.`);
+  }
+  const points: Points = {
+    image: { width: w, height: h, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) },
+    reference: { sizeMm: S, corners: corners.map((c) => [c[0], c[1]]) as Points['reference']['corners'] },
+    holes: dets.map((d) => ({ x: d.x, y: d.y, diameterPx: d.diameterPx, confidence: d.confidence })),
+  };
+  return {
+    points,
+    meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, timingsMs: t },
+  };
+}
