@@ -321,9 +321,12 @@ async function failJobRow(tx: DbExecutor, job: Job, message: string, lastError: 
  * "running" for ever. Returns how many were failed. Any worker may call it; it is idempotent.
  */
 export async function reapExhaustedJobs(db: Db, now?: number): Promise<number> {
+  const abandoned = sql`${jobs.status} = 'running' AND ${jobs.leaseExpiresAt} < ${nowSql(now)} AND ${jobs.attempts} >= ${jobs.maxAttempts}`;
+  // a plain read first: most of the time there is nothing to do, and no write lock is taken for nothing
+  const [any] = await db.select({ id: jobs.id }).from(jobs).where(abandoned).limit(1);
+  if (!any) return 0;
   return withBusyRetry('fail abandoned jobs', () => db.transaction(async (tx) => {
-    const rows = await tx.select().from(jobs)
-      .where(sql`${jobs.status} = 'running' AND ${jobs.leaseExpiresAt} < ${nowSql(now)} AND ${jobs.attempts} >= ${jobs.maxAttempts}`);
+    const rows = await tx.select().from(jobs).where(abandoned);
     for (const job of rows) {
       const message = `The worker stopped in the middle of this analysis ${job.attempts} times (it may have run out of memory or been ` +
         'restarted). Try a smaller photo, or mark the reference square\'s corners by hand, and upload it again.';
