@@ -274,34 +274,51 @@ function golden(f: (x: number) => number, a: number, b: number, iters: number): 
   return { x, v: f(x) };
 }
 
-/** Least largest pin excess, mm (−margin), over shifts and turns within ±searchDeg. */
+/**
+ * Least largest pin excess, mm (−margin), over shifts and turns within ±searchDeg. The turn is searched by
+ * golden section around the least-squares turn (Kabsch: the angle of Σ oₖ × qₖ over Σ oₖ · qₖ, centred),
+ * clipped to the range; for each turn the shift by nested golden sections.
+ */
 export function quickMinimaxExcess(offsets: { x: number; y: number; c: number }[], targets: { x: number; y: number }[], at: { x: number; y: number }, turnDeg: number, searchDeg = 1): number {
   const n = offsets.length;
-  const qx = new Float64Array(n), qy = new Float64Array(n);
+  const qx = new Float64Array(n), qy = new Float64Array(n), cc = new Float64Array(n);
+  for (let k = 0; k < n; k++) cc[k] = offsets[k]!.c;
+  const cmax = Math.max(...cc);
+  const base = (turnDeg * Math.PI) / 180;
+  const g = (tx: number, ty: number) => {
+    let m = -Infinity;
+    for (let k = 0; k < n; k++) { const v = Math.hypot(tx - qx[k]!, ty - qy[k]!) - cc[k]!; if (v > m) m = v; }
+    return m;
+  };
   const atTheta = (th: number) => {
-    const a = (turnDeg * Math.PI) / 180 + th, c = Math.cos(a), s = Math.sin(a);
-    let lo = Infinity, hi = -Infinity, cmax = 0;
+    const c = Math.cos(base + th), s = Math.sin(base + th);
+    let lo = Infinity, hi = -Infinity;
     for (let k = 0; k < n; k++) {
       const o = offsets[k]!, h = targets[k]!;
-      qx[k] = h.x - (at.x + c * o.x - s * o.y);
-      qy[k] = h.y - (at.y + s * o.x + c * o.y);
-      lo = Math.min(lo, qx[k]!, qy[k]!); hi = Math.max(hi, qx[k]!, qy[k]!); cmax = Math.max(cmax, o.c);
+      const x = h.x - (at.x + c * o.x - s * o.y), y = h.y - (at.y + s * o.x + c * o.y);
+      qx[k] = x; qy[k] = y;
+      if (x < lo) lo = x; if (y < lo) lo = y; if (x > hi) hi = x; if (y > hi) hi = y;
     }
-    const g = (tx: number, ty: number) => { let m = -Infinity; for (let k = 0; k < n; k++) m = Math.max(m, Math.hypot(tx - qx[k]!, ty - qy[k]!) - offsets[k]!.c); return m; };
     const a0 = lo - cmax - 1, a1 = hi + cmax + 1;
-    return golden((tx) => golden((ty) => g(tx, ty), a0, a1, 32).v, a0, a1, 32).v;
+    return golden((tx) => golden((ty) => g(tx, ty), a0, a1, 26).v, a0, a1, 26).v;
   };
   if (n === 1) return atTheta(0);
-  const range = (searchDeg * Math.PI) / 180, steps = 8;
-  let best = { th: 0, v: atTheta(0) };
-  for (let i = 0; i <= steps; i++) {
-    const th = -range + (2 * range * i) / steps;
-    const v = atTheta(th);
-    if (v < best.v) best = { th, v };
+  // least-squares turn of the offsets (turned by `turnDeg`) onto the targets, both centred
+  let ox = 0, oy = 0, hx = 0, hy = 0;
+  const cb = Math.cos(base), sb = Math.sin(base);
+  const ro = offsets.map((o) => ({ x: at.x + cb * o.x - sb * o.y, y: at.y + sb * o.x + cb * o.y }));
+  for (let k = 0; k < n; k++) { ox += ro[k]!.x; oy += ro[k]!.y; hx += targets[k]!.x; hy += targets[k]!.y; }
+  ox /= n; oy /= n; hx /= n; hy /= n;
+  let cross = 0, dot = 0;
+  for (let k = 0; k < n; k++) {
+    const ax = ro[k]!.x - ox, ay = ro[k]!.y - oy, bx = targets[k]!.x - hx, by = targets[k]!.y - hy;
+    cross += ax * by - ay * bx; dot += ax * bx + ay * by;
   }
-  const h = (2 * range) / steps;
-  const r = golden(atTheta, best.th - h, best.th + h, 16);
-  return Math.min(best.v, r.v);
+  const range = (searchDeg * Math.PI) / 180;
+  const th0 = Math.max(-range, Math.min(range, Math.atan2(cross, dot)));
+  const h = Math.max(range / 4, 1e-6);
+  const r = golden(atTheta, Math.max(-range, th0 - h), Math.min(range, th0 + h), 14);
+  return Math.min(atTheta(th0), r.v);
 }
 
 export interface MapCell {
