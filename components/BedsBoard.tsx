@@ -51,6 +51,11 @@ export function BedsBoard({ initialBeds, canCreate, presets }: { initialBeds: Be
           ))}
         </ul>
       )}
+      {canCreate && (
+        <p>
+          <Link href="/beds/new" className="btn btn-quiet">Set up a bed in detail: families, panels, T-track</Link>
+        </p>
+      )}
       {canCreate && <NewBedForm presets={presets} />}
     </div>
   );

@@ -37,6 +37,12 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
           <Verdict status={bed.lastCheck?.status} verdict={bed.lastCheck?.verdict} />
         </div>
         {bed.notes && <p className="text-muted">{bed.notes}</p>}
+        {can(actor, 'bed:write') && (
+          <div className="flex flex-wrap gap-3">
+            {p && <Link href={`/beds/${bed.id}/upload`} className="btn">Check from a photo</Link>}
+            <Link href={`/beds/${bed.id}/setup`} className="btn btn-quiet">{p ? 'Edit the pattern' : 'Set up the pattern'}</Link>
+          </div>
+        )}
 
         <section className="panel flex flex-col gap-3" aria-label="Pattern">
           <h2 className="text-xl font-bold">Pattern</h2>
@@ -75,7 +81,7 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
         <section className="panel flex flex-col gap-3" aria-label="Checks">
           <h2 className="text-xl font-bold">Checks</h2>
           {checks.length === 0 ? (
-            <p>No checks yet. Lay the reference square on the bed with the machine off, take one photo from straight above, and upload it here when photo checks are switched on.</p>
+            <p>No checks yet. Lay the reference square on the bed with the machine off, take one photo from straight above, and upload it with “Check from a photo”.</p>
           ) : (
             <div className="overflow-x-auto">
               <table className="w-full text-left">
@@ -85,7 +91,7 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
                 <tbody>
                   {checks.map((c) => (
                     <tr key={c.id} className="border-b border-line">
-                      <td className="py-2 pr-4">{c.title ? <strong>{c.title}<br /></strong> : null}{when(c.createdAt)}</td>
+                      <td className="py-2 pr-4"><Link href={`/checks/${c.id}`} className="underline">{c.title ? <strong>{c.title}<br /></strong> : null}{when(c.createdAt)}</Link></td>
                       <td className="pr-4"><Verdict status={c.status} verdict={c.verdict} /></td>
                       <td className="pr-4 font-mono">{fmt(c.rmsMm)}</td>
                       <td className="pr-4 font-mono">{fmt(c.maxMm)}</td>
