@@ -16,10 +16,16 @@ import {
 import { authorize, type Actor } from './actor';
 import { loadCheckPattern, loadFinishedCheck } from './share-report';
 
-export const AccessoryCreateSchema = z.union([
-  z.object({ name: z.string().trim().min(1).max(120), preset: z.string().min(1).max(60), params: z.record(z.string(), z.unknown()).default({}) }),
-  z.object({ name: z.string().trim().min(1).max(120), spec: AccessorySpecSchema }),
-]);
+export const AccessoryCreateSchema = z
+  .object({
+    name: z.string().trim().min(1, 'Name the accessory.').max(120),
+    /** One of ACCESSORY_PRESETS with its settings … */
+    preset: z.string().min(1).max(60).optional(),
+    params: z.record(z.string(), z.unknown()).default({}),
+    /** … or pins given by hand. */
+    spec: AccessorySpecSchema.optional(),
+  })
+  .refine((a) => (a.preset === undefined) !== (a.spec === undefined), { path: ['preset'], message: 'Give either a preset or the pins (one of them).' });
 export const AccessoryPatchSchema = z.object({ name: z.string().trim().min(1).max(120).optional(), spec: AccessorySpecSchema.optional() });
 
 const Turn = z.coerce.number().refine((t): t is (typeof TURNS)[number] => (TURNS as readonly number[]).includes(t), 'Turn by 0, 90, 180 or 270 degrees.');
@@ -73,7 +79,7 @@ function buildFromPreset(presetId: string, params: Record<string, unknown>): Acc
 
 export async function createAccessory(db: Db, actor: Actor, input: z.infer<typeof AccessoryCreateSchema>): Promise<AccessoryDto> {
   authorize(actor, 'accessory:write');
-  const { spec, presetId } = 'preset' in input ? { spec: buildFromPreset(input.preset, input.params), presetId: input.preset } : { spec: input.spec, presetId: null };
+  const { spec, presetId } = input.preset !== undefined ? { spec: buildFromPreset(input.preset, input.params), presetId: input.preset } : { spec: input.spec!, presetId: null };
   const row = await db.transaction(async (tx) => {
     const r = await q.insertAccessory(tx, { workshopId: actor.workshopId, name: input.name, presetId, specJson: JSON.stringify(spec), createdBy: actor.user.id });
     await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'accessory.create', targetType: 'accessory', targetId: r.id, detail: { presetId } });
