@@ -1,0 +1,27 @@
+/**
+ * A bed's checks as a time series for the trend chart: finished checks only, oldest first, lengths converted
+ * from mm to the display unit here (at display).
+ */
+import { fromMm, type LengthUnit } from '@/lib/report/units';
+
+export interface HistoryRow {
+  id: string;
+  bedId: string;
+  title: string | null;
+  status: string;
+  verdict: string | null;
+  rmsMm: number | null;
+  maxMm: number | null;
+  outCount: number | null;
+  createdAt: number;
+  finishedAt: number | null;
+}
+
+export interface TrendPoint { id: string; t: number; rms: number | null; max: number | null; out: number | null; verdict: string | null; title: string | null }
+
+export function trendSeries(rows: readonly HistoryRow[], unit: LengthUnit): TrendPoint[] {
+  return rows
+    .filter((r) => (r.status === 'done' || r.status === 'needs-review') && r.rmsMm !== null)
+    .map((r) => ({ id: r.id, t: r.finishedAt ?? r.createdAt, rms: r.rmsMm === null ? null : fromMm(r.rmsMm, unit), max: r.maxMm === null ? null : fromMm(r.maxMm, unit), out: r.outCount, verdict: r.verdict, title: r.title }))
+    .sort((a, b) => a.t - b.t);
+}
