@@ -232,14 +232,28 @@ export async function findHoles(
   const s0 = localScale(H, centre[0], centre[1]);
   const maxD = Math.max(...families.map((f) => f.diameterMm));
   const block = Math.max(11, Math.round((2.6 * maxD * s0) / factor)) | 1;
-  const src = matFromGrey(cv, small.data, small.width, small.height);
+  // Bright things (the paper sheet, flanges, chips) would raise the local mean and make the surface next to them
+  // read as dark: clip the image just above the surface's level (its median) before the adaptive threshold.
+  const hist = new Uint32Array(256);
+  for (let i = 0; i < small.data.length; i += 7) hist[small.data[i]!]!++;
+  let acc = 0;
+  let med = 255;
+  const half = hist.reduce((a, b) => a + b, 0) / 2;
+  for (let v = 0; v < 256; v++) if ((acc += hist[v]!) >= half) {
+    med = v;
+    break;
+  }
+  const clip = Math.min(255, Math.round(med * 1.12 + 4));
+  const clipped = new Uint8Array(small.data.length);
+  for (let i = 0; i < clipped.length; i++) clipped[i] = Math.min(clip, small.data[i]!);
+  const src = matFromGrey(cv, clipped, small.width, small.height);
   const bin = new cv.Mat() as CvMat;
   const contours = new cv.MatVector() as { size(): number; get(i: number): CvMat; delete(): void };
   const hier = new cv.Mat() as CvMat;
   const cands: { x: number; y: number; fam: FamilySize }[] = [];
   try {
     cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, 8);
-    cv.findContours(bin, contours, hier, cv.RETR_EXTERNAL, cv.CHAIN_APPROX_NONE);
+    cv.findContours(bin, contours, hier, cv.RETR_LIST, cv.CHAIN_APPROX_NONE);
     const n = contours.size();
     const minD = Math.min(...families.map((f) => f.diameterMm));
     const minArea = Math.max(4, 0.25 * Math.PI * ((minD * s0 * 0.35) / factor) ** 2);

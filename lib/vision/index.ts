@@ -3,13 +3,14 @@
  * (or takes the user's corners) and every hole, and returns them in the measurement core's Points format
  * (image px, origin top-left, +y down). `analyzeImage` adds the fit and returns the Report.
  */
-import type { Pattern, Points } from '@/lib/geometry/contract';
+import { analyzePoints, type AnalyzeOptions } from '@/lib/geometry';
+import type { Pattern, Points, Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
 import { homographyFrom4, type H3 } from './homography';
 import { findHoles, type CentreMethod, type FamilySize, type HoleDetection } from './holes';
 import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
 import { findSquare, type Corners } from './square';
-import { PAPER_MARGIN_FRACTION, targetCornersMm } from './target';
+import { targetCornersMm } from './target';
 
 export { VisionInputError, type VisionErrorCode } from './errors';
 export { DEFAULT_MAX_PIXELS } from './load';
@@ -95,7 +96,8 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   lap('square');
 
   opts.onStage?.('finding holes');
-  const m = PAPER_MARGIN_FRACTION * S;
+  // the sheet itself hides what lies under it; only the printed square is kept out of the search
+  const m = 0.02 * S;
   const exclude: [number, number][] = [[-m, -m], [S + m, -m], [S + m, S + m], [-m, S + m]];
   const dets = await findHoles(grey, w, h, small, factor, H, familySizes(pattern), { method: opts.method ?? 'centroid', ...(square.source === 'detected' ? { exclude } : {}) });
   lap('holes');
@@ -111,4 +113,21 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     points,
     meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, timingsMs: t },
   };
+}
+
+/**
+ * Detects and fits: the photo's report (bed frame, mm). Throws VisionInputError for photos to retake and the
+ * geometry core's GeometryInputError for a pattern or detections it cannot fit.
+ */
+export async function analyzeImage(
+  bytes: Buffer,
+  pattern: Pattern,
+  opts: DetectOptions & { analyze?: AnalyzeOptions },
+): Promise<{ report: Report; points: Points; meta: DetectMeta }> {
+  const { points, meta } = await detectFromImage(bytes, pattern, opts);
+  opts.onStage?.('fitting');
+  const t = performance.now();
+  const report = analyzePoints(points, pattern, opts.analyze ?? {});
+  meta.timingsMs.fit = Math.round((performance.now() - t) * 10) / 10;
+  return { report, points, meta };
 }
