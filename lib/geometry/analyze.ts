@@ -285,8 +285,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   };
 
   const rk = fOut / model.lens.fPx;
+  // Camera tilt from straight down: the bed normal in the camera frame, r1 × r2 of K⁻¹ H (metric).
+  const kc = (j: number) => [(metricH[j]! - (W / 2) * metricH[6 + j]!) / fOut, (metricH[3 + j]! - (Hh / 2) * metricH[6 + j]!) / fOut, metricH[6 + j]!];
+  const r1 = kc(0), r2 = kc(1);
+  const r3 = [r1[1]! * r2[2]! - r1[2]! * r2[1]!, r1[2]! * r2[0]! - r1[0]! * r2[2]!, r1[0]! * r2[1]! - r1[1]! * r2[0]!];
+  const tiltDeg = Math.acos(Math.min(1, Math.abs(r3[2]!) / Math.hypot(r3[0]!, r3[1]!, r3[2]!))) * DEG;
   const sdK = (i: number) => Math.sqrt(Math.max(0, model.cov[i * model.np + i]!));
-  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, uncertainty: { k1: sdK(8) * rk * rk, k2: sdK(9) * rk ** 4 }, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', principalPoint: { x: W / 2, y: Hh / 2 } };
+  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, uncertainty: { k1: sdK(8) * rk * rk, k2: sdK(9) * rk ** 4 }, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', tiltDeg, principalPoint: { x: W / 2, y: Hh / 2 } };
 
   const unmatched: Report['unmatched'] = [];
   for (let i = 0; i < n; i++) if (asg.posOf[i]! < 0) unmatched.push({ x: det.u[i]!, y: det.v[i]! });

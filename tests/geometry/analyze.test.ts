@@ -76,7 +76,8 @@ describe('analyzePoints on synthetic scenes', () => {
       expect(r.summary.sentence).toMatch(/^Fail: /);
       // The bed's turn in the photo (4° counter-clockwise, plus a little from the tilt).
       expect(Math.abs(r.lattice.rotationDeg - 4)).toBeLessThan(1.5);
-      // Camera: distortion recovered.
+      // Camera: tilt from straight down (12°) and distortion recovered.
+      expect(Math.abs((r.camera as unknown as { tiltDeg: number }).tiltDeg - 12)).toBeLessThan(1.5);
       expect(r.camera.k1 / (t.camera.k1 * (r.camera.focalPx / t.camera.fPx) ** 2)).toBeGreaterThan(0.8);
     });
   }
