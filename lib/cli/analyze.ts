@@ -26,6 +26,12 @@ function readJson(path: string, what: string): unknown {
 }
 
 const args = process.argv.slice(2);
+if (args.includes('--image')) {
+  // photo mode lives in lib/vision (detection, then the same fit)
+  const { runImageMode } = await import('../vision/cli');
+  await runImageMode(args, fail);
+  process.exit(0);
+}
 const pointsPath = argValue(args, '--points'), patternPath = argValue(args, '--pattern');
 if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX]');
 const sigmaArg = argValue(args, '--corner-sigma');
