@@ -154,7 +154,15 @@ export async function compareChecks(db: Db, actor: Actor, a: string, b: string):
 }
 
 export const RefitBodySchema = z.object({
-  detections: PointsSchema,
+  detections: PointsSchema.superRefine((d, ctx) => {
+    // every point must lie on the photo (image px, origin top-left): a point off it cannot be a detection
+    const off = (x: number, y: number) => x < 0 || y < 0 || x > d.image.width || y > d.image.height;
+    d.reference.corners.forEach(([x, y], i) => {
+      if (off(x, y)) ctx.addIssue({ code: 'custom', path: ['reference', 'corners', i], message: `Corner ${i + 1} is outside the ${d.image.width} × ${d.image.height} px photo.` });
+    });
+    const i = d.holes.findIndex((h) => off(h.x, h.y));
+    if (i >= 0) ctx.addIssue({ code: 'custom', path: ['holes', i], message: `Hole ${i + 1} at (${Math.round(d.holes[i]!.x)}, ${Math.round(d.holes[i]!.y)}) px is outside the ${d.image.width} × ${d.image.height} px photo.` });
+  }),
   edits: z.unknown().optional(),
 });
 
