@@ -30,6 +30,7 @@ function intEnv(name: string, fallback: number, min = 0): number {
 
 const handlers: Record<string, JobHandler> = {
   [JOB_KINDS.probe]: runProbe,
+  [JOB_KINDS.analyze]: async (ctx) => (await import('@/lib/checks/pipeline')).analyzeCheck(ctx),
   [JOB_KINDS.refit]: async (ctx) => (await import('@/lib/checks/fit')).refitCheck(ctx),
 };
 
