@@ -6,7 +6,7 @@ import { SafetyNote } from '@/components/SafetyNote';
 import { ThemeToggle } from '@/components/ThemeToggle';
 import { currentAuth } from '@/lib/auth/session';
 import { isDemoMode } from '@/lib/auth/secret';
-import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
+import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 
 export const metadata: Metadata = { title: 'Sign in' };
 

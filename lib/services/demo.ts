@@ -10,16 +10,10 @@ import { insertMembership } from '@/db/queries/memberships';
 import { insertUser } from '@/db/queries/users';
 import { countWorkshops, insertWorkshop } from '@/db/queries/workshops';
 import { hashPassword } from '@/lib/auth/password';
-import type { Role } from './actor';
 import { createBed } from './beds';
+import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from './demo-accounts';
 
-export const DEMO_WORKSHOP_NAME = 'Cedar Row Workshop';
-/** Shown on the sign-in page in demo mode; never use these outside a demo. */
-export const DEMO_PASSWORD = 'cedar-row-demo';
-export const DEMO_LOGINS: { email: string; name: string; role: Role; who: string }[] = [
-  { email: 'wren@cedarrow.example', name: 'Wren', role: 'owner', who: 'owner, keeps the router' },
-  { email: 'juno@cedarrow.example', name: 'Juno', role: 'reviewer', who: 'finisher, reviews reports' },
-];
+export { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME };
 
 /** Seeds the demo workshop if the database has no workshop at all; returns whether it did. */
 export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: string }> {

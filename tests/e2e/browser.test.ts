@@ -1,0 +1,111 @@
+/**
+ * The app in Debian's chromium (playwright-core, no browser download): sign up, sign out, sign in; a
+ * reviewer sees no way to add a bed and the server refuses one posted from the page; another workshop's
+ * bed page is a 404.
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
+import { Client, E2E_PASSWORD, e2eEmail } from './client';
+
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+const baseUrl = inject('baseUrl');
+let profile: string;
+let ctx: BrowserContext;
+
+beforeAll(async () => {
+  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
+  ctx = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
+    viewport: { width: 412, height: 900 }, // a phone held in the shop
+  });
+});
+afterAll(async () => {
+  await ctx?.close();
+  rmSync(profile, { recursive: true, force: true });
+});
+
+async function freshPage(): Promise<Page> {
+  await ctx.clearCookies();
+  return ctx.newPage();
+}
+
+async function signIn(page: Page, email: string, password: string) {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+describe('in the browser', () => {
+  it('signs up, signs out and signs in again', async () => {
+    const page = await freshPage();
+    const email = e2eEmail('browser');
+    await page.goto(`${baseUrl}/sign-up`);
+    await page.getByLabel('Your name').fill('Bench Hand');
+    await page.getByLabel('E-mail').fill(email);
+    await page.getByLabel('Password').fill(E2E_PASSWORD);
+    await page.getByLabel('Workshop name').fill('Quayside Frames');
+    await page.getByRole('button', { name: 'Create workshop' }).click();
+    await page.waitForURL(`${baseUrl}/`);
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toContain('Quayside Frames');
+    expect(await page.getByText('No beds yet').isVisible()).toBe(true);
+
+    await page.getByRole('button', { name: 'Sign out' }).click();
+    await page.waitForURL(/\/sign-in\?signed-out=1$/);
+    expect(await page.getByText('You are signed out.').isVisible()).toBe(true);
+    await page.goto(`${baseUrl}/`);
+    await page.waitForURL(`${baseUrl}/sign-in`);
+
+    await signIn(page, email, E2E_PASSWORD);
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toContain('Quayside Frames');
+    await page.close();
+  });
+
+  it('shows the demo logins and wrong-password message on the sign-in page', async () => {
+    const page = await freshPage();
+    await page.goto(`${baseUrl}/sign-in`);
+    for (const l of DEMO_LOGINS) expect(await page.getByText(l.email).isVisible()).toBe(true);
+    await page.getByLabel('E-mail').fill(DEMO_LOGINS[0]!.email);
+    await page.getByLabel('Password').fill('not the password');
+    await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await expect.poll(() => page.getByRole('alert').textContent()).toMatch(/do not match/);
+    await page.close();
+  });
+
+  it('gives a reviewer no bed form, and the server refuses a bed posted from the page', async () => {
+    const reviewer = DEMO_LOGINS.find((l) => l.role === 'reviewer')!;
+    const page = await freshPage();
+    await signIn(page, reviewer.email, DEMO_PASSWORD);
+    await expect.poll(() => page.getByRole('list', { name: 'Beds' }).isVisible()).toBe(true);
+    expect(await page.getByRole('form', { name: 'Add a bed' }).count()).toBe(0);
+    const status = await page.evaluate(async () => {
+      const res = await fetch('/api/beds', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ name: 'Sneaky', preset: 'm6-50' }) });
+      return res.status;
+    });
+    expect(status).toBe(403);
+    await page.close();
+  });
+
+  it("shows a 404 page for another workshop's bed", async () => {
+    const owner = new Client();
+    await owner.req('POST', '/api/auth/sign-in', { email: DEMO_LOGINS[0]!.email, password: DEMO_PASSWORD });
+    const bedId = ((await owner.req('GET', '/api/beds')).json as { beds: { id: string }[] }).beds[0]!.id;
+
+    const page = await freshPage();
+    const email = e2eEmail('outsider');
+    const api = new Client();
+    expect((await api.req('POST', '/api/auth/sign-up', { email, password: E2E_PASSWORD, name: 'Outsider', workshopName: 'Other Yard' })).status).toBe(201);
+    await signIn(page, email, E2E_PASSWORD);
+    const res = await page.goto(`${baseUrl}/beds/${bedId}`);
+    expect(res?.status()).toBe(404);
+    expect(await page.getByRole('heading', { name: 'Not found' }).isVisible()).toBe(true);
+    await page.close();
+  });
+});
