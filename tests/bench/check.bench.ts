@@ -4,7 +4,8 @@
  * processes on one database file.
  * - idle: one worker, photos one after the other → median and worst time from upload to a finished check;
  * - burst: `burst` photos queued at once with two workers → all finished, none twice, wall time.
- * Run: npx tsx tests/bench/check.bench.ts [photos=5] [burst=4] [width=4000] [height=3000]
+ * Run: npx tsx tests/bench/check.bench.ts [photos=5] [burst=4] [width=4000] [height=3000] [supersample=2]
+ * (the renderer's edge supersampling; 2 keeps rendering the photos quick, it does not touch the timed path)
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -21,7 +22,7 @@ import type { Pattern } from '@/lib/geometry/contract';
 import { LocalStorage } from '@/lib/storage';
 import { synthesize } from '@/lib/vision/render';
 
-const [photosN = 5, burstN = 4, width = 4000, height = 3000] = process.argv.slice(2).map(Number);
+const [photosN = 5, burstN = 4, width = 4000, height = 3000, supersample = 2] = process.argv.slice(2).map(Number);
 const root = fileURLToPath(new URL('../..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'gridproof-bench-check-'));
 const url = `file:${join(dir, 'bench.db')}`;
@@ -45,7 +46,7 @@ await db.insert(patterns).values({ id: patternId, bedId, revision: 1, json: JSON
 await db.update(beds).set({ currentPatternId: patternId }).where(eq(beds.id, bedId));
 
 const rendered = [];
-for (let i = 0; i < Math.max(photosN, burstN); i++) rendered.push(await synthesize(pattern, { seed: 100 + i, width, height }));
+for (let i = 0; i < Math.max(photosN, burstN); i++) rendered.push(await synthesize(pattern, { seed: 100 + i, width, height, supersample }));
 
 function startWorker(id: string): Promise<ChildProcess> {
   const p = spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], {
@@ -95,7 +96,7 @@ await Promise.all([stop(w1), stop(w2)]);
 
 console.log(JSON.stringify({
   bench: 'check',
-  photo: { width, height, megapixels: +(width * height / 1e6).toFixed(1), bytes: median(rendered.map((r) => r.jpeg.length)) },
+  photo: { width, height, supersample, megapixels: +(width * height / 1e6).toFixed(1), bytes: median(rendered.map((r) => r.jpeg.length)) },
   idle: { photos: photosN, medianMs: Math.round(median(idle)), worstMs: Math.round(Math.max(...idle)), statuses },
   burst: {
     photos: burstN, workers: 2, wallMs: Math.round(burstMs), statuses: burstStatuses,
