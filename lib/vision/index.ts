@@ -3,7 +3,7 @@
  * (or takes the user's corners) and every hole, and returns them in the measurement core's Points format
  * (image px, origin top-left, +y down). `analyzeImage` adds the fit and returns the Report.
  */
-import { analyzePoints, type AnalyzeOptions } from '@/lib/geometry';
+import type { AnalyzeOptions } from '@/lib/geometry';
 import type { Pattern, Points, Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
 import { homographyFrom4, type H3 } from './homography';
@@ -127,6 +127,8 @@ export async function analyzeImage(
   const { points, meta } = await detectFromImage(bytes, pattern, opts);
   opts.onStage?.('fitting');
   const t = performance.now();
+  // loaded on first use: detection alone does not need the measurement core
+  const { analyzePoints } = await import('@/lib/geometry');
   const report = analyzePoints(points, pattern, opts.analyze ?? {});
   meta.timingsMs.fit = Math.round((performance.now() - t) * 10) / 10;
   return { report, points, meta };
