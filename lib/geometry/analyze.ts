@@ -13,7 +13,7 @@ import { GeometryInputError } from './errors';
 import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
-import { huberWeight, madSigma, median } from './robust';
+import { huberWeight, madSigma, median, ransac } from './robust';
 import { globalSigma, latticeShape, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
@@ -108,8 +108,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     const ratios = pr.idx.map((i) => (det.dPx[i]! * localScale(sqInv, i)) / lat.families[lat.positions[asg.posOf[i]!]!.family]!.family.holeDiameter);
     kappa = median(ratios);
   }
-  // Robust homography bed → image (Huber IRLS), then reassign.
-  let H1 = homographyDlt(pr.src, pr.dst);
+  // Robust homography bed → image: RANSAC on the first pairs (a wrong phase in part of the photo cannot pull
+  // it), then Huber IRLS, then reassign.
+  const pxPerMm = 1 / Math.max(1e-9, median(pr.idx.map((i) => localScale(sqInv, i))));
+  const gatePx = 0.15 * Math.min(...lat.families.map((_, f) => minPitch(f))) * pxPerMm;
+  const consensus = ransac(pr.src.length, 4, (ix) => { try { return homographyDlt(ix.map((k) => pr.src[k]!), ix.map((k) => pr.dst[k]!)); } catch { return null; } },
+    (h, k) => { const p = applyH(h, pr.src[k]![0], pr.src[k]![1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); }, gatePx, { iterations: 60, seed: 1 });
+  let H1 = consensus && consensus.inliers.length >= MIN_MATCHED ? homographyDlt(consensus.inliers.map((k) => pr.src[k]!), consensus.inliers.map((k) => pr.dst[k]!)) : homographyDlt(pr.src, pr.dst);
   for (let it = 0; it < 2; it++) {
     const r = pr.src.map((s, k) => { const p = applyH(H1, s[0], s[1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); });
     const sg = Math.max(madSigma(r), 0.05);

@@ -105,7 +105,7 @@ describe('analyzePoints on synthetic scenes', () => {
   });
 
   it('says the shape is not observed when the reference square is too small to separate it from perspective', () => {
-    const scene = makeScene({ pattern: m6, seed: 4, tiltDeg: 10, centreNoisePx: 0.08, cornerNoisePx: 0.3, square: { sizeMm: 25, x: 300, y: 300, angleDeg: 3 } });
+    const scene = makeScene({ pattern: m6, seed: 4, tiltDeg: 10, centreNoisePx: 0.08, cornerNoisePx: 0.3, square: { sizeMm: 12, x: 300, y: 300, angleDeg: 3 } });
     const r = analyzePoints(scene.points, m6);
     expect(r.lattice.observed).toBe(false);
     expect(r.lattice.scaleX).toBeNull();

@@ -47,3 +47,26 @@ describe('affine decomposition', () => {
     expect(decomposeAffine(a.L).squarenessRad).toBeCloseTo(-Math.atan(0.01), 12);
   });
 });
+
+describe('RANSAC', () => {
+  it('finds the homography of 70 % inliers among gross outliers (seeded)', async () => {
+    const { ransac } = await import('@/lib/geometry/robust');
+    const { homographyDlt } = await import('@/lib/geometry/homography');
+    const { applyH } = await import('@/lib/geometry/linalg');
+    const { mulberry32 } = await import('@/lib/geometry/random');
+    const rand = mulberry32(3);
+    const H = [1.1, 0.05, 20, -0.03, 0.95, 5, 1e-4, 5e-5, 1] as const;
+    const src: [number, number][] = [], dst: [number, number][] = [];
+    for (let i = 0; i < 100; i++) {
+      const x = rand() * 500, y = rand() * 400;
+      src.push([x, y]);
+      dst.push(i % 10 < 7 ? applyH([...H], x, y) : [rand() * 600, rand() * 500]);
+    }
+    const r = ransac(100, 4, (ix) => homographyDlt(ix.map((k) => src[k]!), ix.map((k) => dst[k]!)), (h, k) => {
+      const p = applyH(h, src[k]![0], src[k]![1]);
+      return Math.hypot(p[0] - dst[k]![0], p[1] - dst[k]![1]);
+    }, 0.5, { iterations: 200, seed: 5 })!;
+    expect(r.inliers.length).toBe(70);
+    expect(r.inliers.every((k) => k % 10 < 7)).toBe(true);
+  });
+});
