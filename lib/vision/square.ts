@@ -165,12 +165,17 @@ export function refineCorners(grey: Float32Array, w: number, h: number, quad: Co
           }
         }
         if (best < 3 || best > nProf - 4) continue;
-        const gm = prof[best + 1]! + prof[best]! - prof[best - 2]! - prof[best - 3]!;
-        const g0 = bestG;
-        const gp = prof[best + 3]! + prof[best + 2]! - prof[best]! - prof[best - 1]!;
-        const den = gm - 2 * g0 + gp;
-        const off = den < 0 ? (0.5 * (gm - gp)) / den : 0;
-        const d = -reach + (best + off) * step;
+        // the edge is where linear light crosses half-way between the dark and the light plateau around the step
+        let lo = Infinity;
+        let hi = -Infinity;
+        for (let j = Math.max(0, best - 12); j <= best; j++) lo = Math.min(lo, prof[j]!);
+        for (let j = best; j <= Math.min(nProf - 1, best + 12); j++) hi = Math.max(hi, prof[j]!);
+        const mid = (lo + hi) / 2;
+        let jc = -1;
+        for (let j = best; j >= Math.max(0, best - 12) && jc < 0; j--) if (prof[j]! < mid && prof[j + 1]! >= mid) jc = j;
+        for (let j = best; j < Math.min(nProf - 1, best + 12) && jc < 0; j++) if (prof[j]! < mid && prof[j + 1]! >= mid) jc = j;
+        if (jc < 0) continue;
+        const d = -reach + (jc + (mid - prof[jc]!) / (prof[jc + 1]! - prof[jc]!)) * step;
         pts.push([px + out[0] * d, py + out[1] * d]);
         fs.push(f);
       }

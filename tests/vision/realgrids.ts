@@ -42,12 +42,12 @@ export function loadRealGrid(name: string, dotFraction = DOT_FRACTION[name] ?? 0
       ],
     };
     const at = (i: number, j: number) => ref[i * 7 + j]!;
-    return { name, bytes, ref, pattern, corners: [at(0, 0), at(0, 1), at(2, 1), at(2, 0)], sizeMm: 2 * s };
+    return { name, bytes, ref, pattern, corners: [at(0, 0), at(0, 2), at(4, 2), at(4, 0)], sizeMm: 4 * s };
   }
   const pattern: Pattern = {
     version: 1, name, units: 'mm', bed: { width: 8 * PITCH, height: 8 * PITCH },
     families: [{ id: 'dot', kind: 'other', holeDiameter: dotFraction * PITCH, origin: { x: PITCH, y: PITCH }, pitch: { x: PITCH, y: PITCH }, count: { x: 7, y: 7 }, fit }],
   };
   const at = (i: number, j: number) => ref[i * 7 + j]!;
-  return { name, bytes, ref, pattern, corners: [at(0, 0), at(0, 1), at(1, 1), at(1, 0)], sizeMm: PITCH };
+  return { name, bytes, ref, pattern, corners: [at(0, 0), at(0, 2), at(2, 2), at(2, 0)], sizeMm: 2 * PITCH };
 }
