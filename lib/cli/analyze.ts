@@ -1,5 +1,6 @@
 /**
- * CLI: `npm run -s analyze -- --points POINTS.json --pattern PATTERN.json [--corner-sigma PX]`
+ * CLI: `npm run -s analyze -- --points POINTS.json --pattern PATTERN.json [--corner-sigma PX] [--centre-sigma PX]
+ *      [--sheet-thickness MM]`
  * Prints the report JSON (bed frame, mm) on stdout and exits 0. Bad input exits 2 with one line on stderr that
  * names the field (bad JSON, schema violation, too few matched holes, reference corners not convex…).
  */
@@ -33,14 +34,22 @@ if (args.includes('--image')) {
   process.exit(0);
 }
 const pointsPath = argValue(args, '--points'), patternPath = argValue(args, '--pattern');
-if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX]');
-const sigmaArg = argValue(args, '--corner-sigma');
-const cornerSigmaPx = sigmaArg === undefined ? undefined : Number(sigmaArg);
-if (cornerSigmaPx !== undefined && !(cornerSigmaPx > 0)) fail('--corner-sigma: must be a positive number of px');
+if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX] [--centre-sigma PX] [--sheet-thickness MM]');
+/** A positive number option, or undefined when absent. */
+function positiveArg(name: string, unit: string): number | undefined {
+  const v = argValue(args, name);
+  if (v === undefined) return undefined;
+  const x = Number(v);
+  if (!(x > 0) || !Number.isFinite(x)) fail(`${name}: must be a positive number of ${unit}`);
+  return x;
+}
+const cornerSigmaPx = positiveArg('--corner-sigma', 'px');
+const centreSigmaPx = positiveArg('--centre-sigma', 'px');
+const referenceThicknessMm = positiveArg('--sheet-thickness', 'mm');
 const points = readJson(pointsPath, 'points') as Points;
 const pattern = readJson(patternPath, 'pattern') as Pattern;
 try {
-  const report = analyzePoints(points, pattern, { cornerSigmaPx });
+  const report = analyzePoints(points, pattern, { cornerSigmaPx, centreSigmaPx, referenceThicknessMm });
   process.stdout.write(`${JSON.stringify(report)}\n`);
 } catch (e) {
   if (e instanceof GeometryInputError) fail(e.message);
