@@ -10,10 +10,12 @@
  *   WORKER_ID               name in the jobs table (default host:pid)
  *   WORKER_TEST_DELAY_MS    tests only (ignored when NODE_ENV=production): pause inside each job
  *   storage: see lib/storage/index.ts (STORAGE_DIR or S3_*)
+ *   mail: SMTP_* / MAIL_FROM (lib/mail/config.ts); MAIL_DELIVERY=0 turns the outbox loop off
  * The database must be migrated (`npm run db:migrate`); SIGTERM / SIGINT stop it gracefully.
  */
 import { closeDb, getDb } from '@/db/client';
 import { JOB_KINDS } from '@/db/queries/jobs';
+import { startMailDelivery } from '@/lib/services/share-mail';
 import { getStorage, LocalStorage } from '@/lib/storage';
 import { runProbe } from './probe';
 import { jsonLog, startWorker, type JobHandler } from './run';
@@ -42,6 +44,8 @@ async function main() {
     const swept = await storage.sweepTemp().catch(() => 0);
     if (swept) jsonLog('storage.swept', { files: swept });
   }
+  // the outbox (report links, invitations, password resets): see lib/services/share-mail.ts
+  const mail = await startMailDelivery(db, { log: jsonLog });
   const worker = startWorker({
     db,
     storage,
@@ -58,7 +62,7 @@ async function main() {
     if (stopping) return;
     stopping = true;
     jsonLog('worker.signal', { workerId: worker.workerId, signal });
-    void worker.stop().then(async () => { await closeDb(); process.exit(0); });
+    void Promise.all([worker.stop(), mail?.stop()]).then(async () => { await closeDb(); process.exit(0); });
   };
   process.on('SIGTERM', () => stop('SIGTERM'));
   process.on('SIGINT', () => stop('SIGINT'));
