@@ -9,7 +9,9 @@
  * `ensureBuilt()` is also used by the browser tests' global setup.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { existsSync, readdirSync, statSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { existsSync, mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
@@ -41,14 +43,44 @@ export function buildIsStale(root = ROOT): boolean {
   return SOURCES.some((s) => newestMtime(join(root, s)) > built);
 }
 
-/** Runs `next build` when needed; returns how long it took (0 when the build was fresh), ms. */
+const sleepMs = (ms: number) => Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+
+/** Holds a machine-wide lock (a directory in the temp folder) while `fn` runs, so two builds never overlap. */
+function withBuildLock<T>(root: string, fn: () => T): T {
+  const lock = join(tmpdir(), `gridproof-build-${createHash('sha256').update(root).digest('hex').slice(0, 12)}.lock`);
+  const staleAfterMs = 15 * 60 * 1000;
+  for (;;) {
+    try {
+      mkdirSync(lock);
+      break;
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
+      try {
+        if (Date.now() - statSync(lock).mtimeMs > staleAfterMs) rmSync(lock, { recursive: true, force: true });
+      } catch {
+        /* released meanwhile */
+      }
+      sleepMs(1000);
+    }
+  }
+  try {
+    return fn();
+  } finally {
+    rmSync(lock, { recursive: true, force: true });
+  }
+}
+
+/** Runs `next build` when needed (one build at a time); returns how long it took (0 when fresh), ms. */
 export function ensureBuilt(root = ROOT, log: (s: string) => void = (s) => console.log(s)): number {
   if (!buildIsStale(root)) return 0;
-  log('[gridproof] building the web app (next build)…');
-  const t0 = Date.now();
-  const r = spawnSync(process.execPath, [NEXT_BIN, 'build'], { cwd: root, stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production', NEXT_TELEMETRY_DISABLED: '1' } });
-  if (r.status !== 0) throw new Error(`next build failed (exit ${r.status ?? r.signal})`);
-  return Date.now() - t0;
+  return withBuildLock(root, () => {
+    if (!buildIsStale(root)) return 0; // someone else built it while we waited
+    log('[gridproof] building the web app (next build)…');
+    const t0 = Date.now();
+    const r = spawnSync(process.execPath, [NEXT_BIN, 'build'], { cwd: root, stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production', NEXT_TELEMETRY_DISABLED: '1' } });
+    if (r.status !== 0) throw new Error(`next build failed (exit ${r.status ?? r.signal})`);
+    return Date.now() - t0;
+  });
 }
 
 const EnvSchema = z.object({

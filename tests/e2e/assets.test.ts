@@ -58,9 +58,13 @@ describe('self-contained build', () => {
   });
 
   it('ships CSS that references no other host and carries its own fonts', async () => {
-    const files = cssFiles(join(ROOT, '.next', 'static'));
-    expect(files.length).toBeGreaterThan(0);
-    const all = files.map((f) => readFileSync(f, 'utf8')).join('\n');
+    // The stylesheets the sign-in page links, fetched from the server, plus every built CSS file on disk.
+    const html = await (await fetch(baseUrl() + '/sign-in')).text();
+    const linked = [...html.matchAll(/<link[^>]+rel="stylesheet"[^>]*href="([^"]+)"/g)].map((m) => m[1]!);
+    expect(linked.length).toBeGreaterThan(0);
+    const served = await Promise.all(linked.map(async (href) => (await fetch(new URL(href, baseUrl()))).text()));
+    const onDisk = cssFiles(join(ROOT, '.next', 'static')).map((f) => readFileSync(f, 'utf8'));
+    const all = [...served, ...onDisk].join('\n');
     expect(foreignInCss(all)).toEqual([]);
     expect(all).toMatch(/Atkinson Hyperlegible Next/);
     expect(all).toMatch(/IBM Plex Mono/);
