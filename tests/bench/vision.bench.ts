@@ -1,0 +1,171 @@
+/**
+ * Vision benchmark: `npm run bench:vision` prints JSON.
+ * - Renders 12 MP bed photos (4000 × 3000, lib/cli/synth.ts, cached in the temp folder) with exact truth.
+ * - In a fresh child process per scene: bytes → report with analyzeImage, one cold run and five warm runs
+ *   (median), peak RSS; centre error against the truth for both centre methods, holes found, false detections,
+ *   position error through the fit (after one rigid motion between frames) and panel-offset error.
+ * - Our candidate pass (reduce + opencv-wasm adaptive threshold, contours, moments on the reduced image) against
+ *   native OpenCV doing the same threshold, contour and moment pass on the full image (Debian's python3-opencv at
+ *   /usr/bin/python3, when installed), and the same pass in wasm on the full image.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+const PATTERN = path.join(ROOT, 'tests/fixtures/vision/bed-large.json');
+const SCENES = [
+  { seed: 11, args: ['--tilt', '0', '--turn', '2'] },
+  { seed: 12, args: ['--tilt', '7', '--material', 'plywood', '--jpeg', '85'] },
+  { seed: 13, args: ['--tilt', '12', '--k1', '-0.05', '--blur', '1', '--jpeg', '80'] },
+];
+
+async function child(dir: string): Promise<void> {
+  const { analyzeImage, detectFromImage } = await import('@/lib/vision');
+  const { loadPhoto, reduce } = await import('@/lib/vision/load');
+  const { getCv, matFromGrey } = await import('@/lib/vision/cv');
+  const { scoreDetections, positionErrorMm } = await import('../vision/score');
+  const pattern = JSON.parse(readFileSync(PATTERN, 'utf8'));
+  const truth = JSON.parse(readFileSync(path.join(dir, 'truth.json'), 'utf8'));
+  const bytes = readFileSync(path.join(dir, 'photo.jpg'));
+  const t0 = performance.now();
+  const first = await analyzeImage(bytes, pattern, { referenceMm: truth.target.sizeMm });
+  const coldMs = performance.now() - t0;
+  const times: number[] = [];
+  let last = first;
+  for (let i = 0; i < 5; i++) {
+    const t = performance.now();
+    last = await analyzeImage(bytes, pattern, { referenceMm: truth.target.sizeMm });
+    times.push(performance.now() - t);
+  }
+  times.sort((a, b) => a - b);
+  const centroid = scoreDetections(last.points, truth);
+  const edge = scoreDetections((await detectFromImage(bytes, pattern, { referenceMm: truth.target.sizeMm, method: 'edge' })).points, truth);
+  const pos = positionErrorMm(last.report, truth);
+  // panel offsets, relative to the first panel (the frames' common offset drops out)
+  const rp = last.report.panels;
+  const tp = truth.errors.panels as { id: string; dx: number; dy: number }[];
+  let pe = 0;
+  let pn = 0;
+  const r0 = rp.find((p) => p.id === tp[0]!.id);
+  for (const t of tp.slice(1)) {
+    const r = rp.find((p) => p.id === t.id);
+    if (!r || !r0) continue;
+    pe += (r.dx - r0.dx - (t.dx - tp[0]!.dx)) ** 2 + (r.dy - r0.dy - (t.dy - tp[0]!.dy)) ** 2;
+    pn++;
+  }
+  // candidate pass: ours (reduced) and the same pass in wasm on the full image
+  const photo = await loadPhoto(bytes);
+  const { cv } = await getCv();
+  const pass = (data: Uint8Array, w: number, h: number, block: number) => {
+    const src = matFromGrey(cv, data, w, h);
+    const bin = new cv.Mat();
+    const cs = new cv.MatVector();
+    const hi = new cv.Mat();
+    cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, 8);
+    cv.findContours(bin, cs, hi, cv.RETR_LIST, cv.CHAIN_APPROX_NONE);
+    let n = 0;
+    for (let i = 0; i < cs.size(); i++) {
+      const c = cs.get(i);
+      const m = cv.moments(c, false);
+      if (m.m00 > 0) n++;
+      c.delete();
+    }
+    src.delete(); bin.delete(); cs.delete(); hi.delete();
+    return n;
+  };
+  const med = (f: () => void) => {
+    const ts: number[] = [];
+    for (let i = 0; i < 3; i++) {
+      const t = performance.now();
+      f();
+      ts.push(performance.now() - t);
+    }
+    return ts.sort((a, b) => a - b)[1]!;
+  };
+  const fullBlock = 61;
+  const oursMs = med(() => {
+    const s = reduce(photo.grey, photo.width, photo.height, 3);
+    pass(s.data, s.width, s.height, 21);
+  });
+  const full8 = new Uint8Array(photo.grey.length);
+  for (let i = 0; i < full8.length; i++) full8[i] = Math.round(photo.grey[i]!);
+  const wasmFullMs = med(() => pass(full8, photo.width, photo.height, fullBlock));
+  const pgm = path.join(dir, 'grey.pgm');
+  if (!existsSync(pgm)) writeFileSync(pgm, Buffer.concat([Buffer.from(`P5\n${photo.width} ${photo.height}\n255\n`), Buffer.from(full8)]));
+  const ru = process.resourceUsage();
+  process.stdout.write(`${JSON.stringify({
+    scene: path.basename(dir), width: photo.width, height: photo.height, mmPerPx: Math.round(truth.mmPerPx * 1000) / 1000,
+    coldMs: Math.round(coldMs), medianMs: Math.round(times[2]!), timingsMs: last.meta.timingsMs, peakRssMb: Math.round(ru.maxRSS / 1024),
+    centroid: { rmsPx: +centroid.rmsPx.toFixed(4), maxPx: +centroid.maxPx.toFixed(3), found: centroid.found, visible: centroid.visible, foundPct: +(100 * centroid.foundFraction).toFixed(2), falseDetections: centroid.falseDetections, cornerRmsPx: +centroid.cornerRmsPx.toFixed(3) },
+    edge: { rmsPx: +edge.rmsPx.toFixed(4), foundPct: +(100 * edge.foundFraction).toFixed(2), falseDetections: edge.falseDetections },
+    positionRmsMm: +pos.rmsMm.toFixed(4), positionsCompared: pos.n, panelOffsetRmsMm: pn ? +Math.sqrt(pe / pn).toFixed(4) : null,
+    candidatePass: { oursReducedMs: +oursMs.toFixed(1), wasmFullMs: +wasmFullMs.toFixed(1), pgm },
+  })}\n`);
+}
+
+const NATIVE = `
+import cv2, sys, time
+img = cv2.imread(sys.argv[1], cv2.IMREAD_GRAYSCALE)
+ts = []
+for i in range(3):
+    t = time.perf_counter()
+    b = cv2.adaptiveThreshold(img, 255, cv2.ADAPTIVE_THRESH_MEAN_C, cv2.THRESH_BINARY_INV, 61, 8)
+    cs, _ = cv2.findContours(b, cv2.RETR_LIST, cv2.CHAIN_APPROX_NONE)
+    n = sum(1 for c in cs if cv2.moments(c)['m00'] > 0)
+    ts.append((time.perf_counter() - t) * 1000)
+print(sorted(ts)[1])
+`;
+
+async function main(): Promise<void> {
+  if (process.argv[2] === '--child') return child(process.argv[3]!);
+  const cache = path.join(os.tmpdir(), 'gridproof-bench-vision-v1');
+  mkdirSync(cache, { recursive: true });
+  const results: Record<string, unknown>[] = [];
+  const hasNative = existsSync('/usr/bin/python3') && spawnSync('/usr/bin/python3', ['-c', 'import cv2'], { stdio: 'ignore' }).status === 0;
+  const py = path.join(cache, 'native_pass.py');
+  writeFileSync(py, NATIVE);
+  for (const s of SCENES) {
+    const dir = path.join(cache, `scene-${s.seed}`);
+    if (!existsSync(path.join(dir, 'truth.json'))) {
+      const r = spawnSync('npx', ['tsx', path.join(ROOT, 'lib/cli/synth.ts'), '--pattern', PATTERN, '--seed', String(s.seed), '--width', '4000', '--height', '3000', '--out', dir, ...s.args], { cwd: ROOT, encoding: 'utf8' });
+      if (r.status !== 0) throw new Error(`synth failed: ${r.stderr}`);
+    }
+    const c = spawnSync('npx', ['tsx', fileURLToPath(import.meta.url), '--child', dir], { cwd: ROOT, encoding: 'utf8', maxBuffer: 1 << 24 });
+    if (c.status !== 0) throw new Error(`measurement failed: ${c.stderr}`);
+    const res = JSON.parse(c.stdout.trim().split('\n').pop()!) as Record<string, unknown> & { candidatePass: { oursReducedMs: number; wasmFullMs: number; pgm: string; nativeFullMs?: number; ratioOursToNative?: number; ratioWasmToNativeSamePass?: number } };
+    if (hasNative) {
+      const n = spawnSync('/usr/bin/python3', [py, res.candidatePass.pgm], { encoding: 'utf8' });
+      const ms = Number(n.stdout.trim());
+      if (Number.isFinite(ms) && ms > 0) {
+        res.candidatePass.nativeFullMs = +ms.toFixed(1);
+        res.candidatePass.ratioOursToNative = +(res.candidatePass.oursReducedMs / ms).toFixed(2);
+        res.candidatePass.ratioWasmToNativeSamePass = +(res.candidatePass.wasmFullMs / ms).toFixed(2);
+      }
+    }
+    delete (res.candidatePass as { pgm?: string }).pgm;
+    results.push(res);
+  }
+  const med = (k: (r: Record<string, unknown>) => number) => {
+    const v = results.map(k).sort((a, b) => a - b);
+    return v[Math.floor(v.length / 2)]!;
+  };
+  process.stdout.write(`${JSON.stringify({
+    bench: 'vision', cores: os.cpus().length, nativeOpenCv: hasNative,
+    summary: {
+      medianMs: med((r) => r.medianMs as number),
+      maxPeakRssMb: Math.max(...results.map((r) => r.peakRssMb as number)),
+      worstCentroidRmsPx: Math.max(...results.map((r) => (r.centroid as { rmsPx: number }).rmsPx)),
+      worstEdgeRmsPx: Math.max(...results.map((r) => (r.edge as { rmsPx: number }).rmsPx)),
+      minFoundPct: Math.min(...results.map((r) => (r.centroid as { foundPct: number }).foundPct)),
+      falseDetections: results.reduce((a, r) => a + (r.centroid as { falseDetections: number }).falseDetections, 0),
+      worstPositionRmsMm: Math.max(...results.map((r) => r.positionRmsMm as number)),
+      worstPanelOffsetRmsMm: Math.max(...results.map((r) => (r.panelOffsetRmsMm as number | null) ?? 0)),
+    },
+    scenes: results,
+  }, null, 1)}\n`);
+}
+
+await main();
