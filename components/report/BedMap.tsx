@@ -73,8 +73,8 @@ export function BedMap(p: BedMapProps) {
       {p.panels.map((q) => (
         <g key={q.id}>
           <rect x={X(q.x)} y={Y(q.y + q.height)} width={q.width} height={q.height} fill="none" stroke="var(--map-panel)" strokeWidth={line} strokeDasharray={`${line * 6} ${line * 3}`} />
-          <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 1.1} fontSize={font * 0.9} fill="var(--map-panel)" fontWeight={700}>{q.id}</text>
-          {q.note && <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 2.1} fontSize={font * 0.75} fill="var(--map-panel)">{q.note}</text>}
+          <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 1.1} fontSize={font * 0.9} fill="var(--map-panel)" fontWeight={700} stroke="var(--map-ground)" strokeWidth={font * 0.25} paintOrder="stroke">{q.id}</text>
+          {q.note && <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 2.1} fontSize={font * 0.75} fill="var(--map-panel)" stroke="var(--map-ground)" strokeWidth={font * 0.25} paintOrder="stroke">{q.note}</text>}
         </g>
       ))}
       {p.items.map((it) => {

@@ -126,8 +126,8 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
   return (
     <div className={`flex flex-col gap-2 ${className ?? ''}`}>
       <div className="no-print flex flex-wrap gap-2" role="toolbar" aria-label="Zoom">
-        <button type="button" className="btn btn-quiet" onClick={() => zoomAt(1.6)} aria-label="Zoom in">＋</button>
-        <button type="button" className="btn btn-quiet" onClick={() => zoomAt(1 / 1.6)} aria-label="Zoom out">－</button>
+        <button type="button" className="btn btn-quiet" onClick={() => zoomAt(1.6)} aria-label="Zoom in">+</button>
+        <button type="button" className="btn btn-quiet" onClick={() => zoomAt(1 / 1.6)} aria-label="Zoom out">−</button>
         <button type="button" className="btn btn-quiet" onClick={() => setView(full)}>Whole photo</button>
         <span className="self-center text-sm text-muted">{Math.round((widthPx / view.w) * 100)} % · drag to move, pinch or wheel to zoom</span>
       </div>

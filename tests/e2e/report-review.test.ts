@@ -1,0 +1,172 @@
+/**
+ * The report, review and comparison in Debian's chromium (playwright-core, no browser download). Two rendered
+ * photos of one bed (lib/vision's renderer through `npm run -s synth`: a fresh install with three misplaced
+ * inserts and panels off, then the same bed after the panels were reseated) are uploaded through the API and
+ * measured by a real worker process. In the browser: the report's table is filtered to the positions out of
+ * tolerance (checked against the report JSON), a detection is removed and a missed hole added in review and
+ * the check re-fitted (the server's record of who edited is checked), and the two checks are compared from
+ * the bed's history. Screenshots of the report at 390 px and 1280 px go to test-results/.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { presetById } from '@/lib/geometry';
+import type { Report } from '@/lib/geometry/contract';
+import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
+import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
+import { Client } from './client';
+
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+const SHOTS = join(ROOT, 'test-results');
+const baseUrl = inject('baseUrl');
+const dataDir = inject('dataDir');
+const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
+let profile: string;
+let work: string;
+let ctx: BrowserContext;
+let worker: WorkerProc;
+const api = new Client(baseUrl);
+
+beforeAll(async () => {
+  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
+  work = mkdtempSync(join(tmpdir(), 'gridproof-report-'));
+  mkdirSync(SHOTS, { recursive: true });
+  worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
+  ctx = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
+    viewport: { width: 1280, height: 900 },
+  });
+  const r = await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD });
+  expect(r.status).toBe(200);
+});
+afterAll(async () => {
+  await ctx?.close();
+  if (worker) await stopWorker(worker);
+  rmSync(profile, { recursive: true, force: true });
+  rmSync(work, { recursive: true, force: true });
+});
+
+async function signIn(page: Page) {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(owner.email);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+/** Renders a photo of `patternPath`, uploads it with a 150 mm square, waits for the worker, returns the check id. */
+async function checkFromPhoto(bedId: string, patternPath: string, name: string, flags: string[]): Promise<string> {
+  const out = join(work, name);
+  const line = execFileSync('npm', ['run', '-s', 'synth', '--', '--pattern', patternPath, '--out', out, '--target-mm', '150', ...flags], { cwd: ROOT, encoding: 'utf8' }).trim().split('\n').pop()!;
+  const photo = (JSON.parse(line) as { photo: string }).photo;
+  expect(statSync(photo).size).toBeGreaterThan(10_000);
+  // through the browser's own request context (its session cookie), as the upload page sends it
+  const res = await ctx.request.post(`${baseUrl}/api/beds/${bedId}/checks`, {
+    multipart: { photo: { name: `${name}.jpg`, mimeType: 'image/jpeg', buffer: readFileSync(photo) }, referenceMm: '150', title: name },
+  });
+  expect(res.status(), await res.text()).toBe(202);
+  const id = ((await res.json()) as { check: { id: string } }).check.id;
+  await waitSettled(id);
+  return id;
+}
+
+async function waitSettled(id: string): Promise<string> {
+  const until = Date.now() + 90_000;
+  for (;;) {
+    const s = (await api.req('GET', `/api/checks/${id}`)).json as { check: { status: string; error?: string } };
+    if (s.check.status === 'done' || s.check.status === 'needs-review') return s.check.status;
+    if (s.check.status === 'failed') throw new Error(`the check failed: ${s.check.error}`);
+    if (Date.now() > until) throw new Error(`the check is still ${s.check.status}`);
+    await new Promise((r) => setTimeout(r, 300));
+  }
+}
+
+async function shoot(page: Page, name: string) {
+  for (const width of [390, 1280]) {
+    await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
+    await page.waitForTimeout(300);
+    await page.screenshot({ path: join(SHOTS, `${name}-${width}.png`), fullPage: true });
+  }
+  await page.setViewportSize({ width: 1280, height: 900 });
+}
+
+describe('report, review and comparison in the browser', () => {
+  it('filters the report to positions out, edits a detection and re-fits, and compares two checks', async () => {
+    // A 600 × 400 mm bed of M6 inserts on 50 mm in two 200 mm strips (the core's preset).
+    const pattern = presetById('m6-50')!.size({ bedWidthMm: 600, bedHeightMm: 400, stripWidthMm: 200 });
+    const patternPath = join(work, 'pattern.json');
+    writeFileSync(patternPath, JSON.stringify(pattern));
+    const bed = await api.req('POST', '/api/beds', { name: 'Report test bed', pattern });
+    expect(bed.status).toBe(201);
+    const bedId = (bed.json as { bed: { id: string } }).bed.id;
+    const page = await ctx.newPage();
+    await signIn(page);
+    const before = await checkFromPhoto(bedId, patternPath, 'before', ['--seed', '21', '--misplaced', '4', '--misplaced-mm', '1.2', '--panel-offset', '0.12']);
+    const after = await checkFromPhoto(bedId, patternPath, 'after', ['--seed', '22', '--misplaced', '0', '--panel-offset', '0']);
+    const report = (await api.req('GET', `/api/checks/${before}/report`)).json as Report;
+    expect(report.summary.out).toBeGreaterThan(0);
+
+    // 1. The report: the verdict sentence, then the table filtered to the positions out of tolerance.
+    await page.goto(`${baseUrl}/checks/${before}/report`);
+    await page.getByTestId('check-report').waitFor();
+    expect((await page.getByTestId('verdict-sentence').textContent())!.trim()).toBe(report.summary.sentence);
+    await page.waitForTimeout(500);
+    await shoot(page, 'report');
+    const rows = page.getByTestId('positions-table').locator('tbody tr');
+    expect(await rows.count()).toBe(report.positions.length);
+    await page.getByTestId('filter-verdict').selectOption('out');
+    await expect.poll(() => rows.count()).toBe(report.summary.out);
+    const verdicts = await rows.evaluateAll((trs) => trs.map((tr) => tr.getAttribute('data-verdict')));
+    expect(new Set(verdicts)).toEqual(new Set(['out']));
+    const outLabels = report.positions.filter((p) => p.verdict === 'out').map((p) => p.label).sort();
+    expect((await rows.evaluateAll((trs) => trs.map((tr) => tr.querySelector('td')!.textContent))).sort()).toEqual(outLabels);
+    // the map marks the same positions with the "out" shape
+    expect(await page.locator('svg [data-mark="out"][data-label]').count()).toBe(report.summary.out);
+
+    // 2. Review: remove one detection, add a hole where an expected position was not seen, re-fit.
+    await page.goto(`${baseUrl}/checks/${before}/review`);
+    await page.getByTestId('review-editor').waitFor();
+    await page.getByTestId('mode-remove').click();
+    const matched = page.locator('[data-testid="review-editor"] svg g[data-mark]:not([data-mark="unmatched"]):not([data-mark="missing"])');
+    await expect.poll(() => matched.count()).toBeGreaterThan(10);
+    const box = (await matched.nth(5).boundingBox())!;
+    await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2);
+    await expect.poll(() => page.getByTestId('edit-summary').textContent()).toContain('1 removed');
+    const spot = (await page.locator('[data-testid="review-editor"] svg image').boundingBox())!;
+    await page.getByTestId('mode-add').click();
+    await page.mouse.click(spot.x + spot.width * 0.5, spot.y + spot.height * 0.03);
+    await expect.poll(() => page.getByTestId('edit-summary').textContent()).toContain('1 hole added');
+    await page.getByTestId('refit').click();
+    await page.waitForURL(`${baseUrl}/checks/${before}/report`, { timeout: 60_000 });
+    const detail = (await api.req('GET', `/api/checks/${before}/detail`)).json as { check: { edited: { byName: string; edits: { removedHoles: unknown[]; addedHoles: unknown[] } } | null }; detections: { holes: unknown[] } };
+    expect(detail.check.edited?.byName).toBe(owner.name);
+    expect(detail.check.edited?.edits.removedHoles).toHaveLength(1);
+    expect(detail.check.edited?.edits.addedHoles).toHaveLength(1);
+    expect(detail.detections.holes.length).toBe(report.unmatched.length + report.summary.matched);
+    await page.getByTestId('check-report').waitFor();
+
+    // 3. History → pick the two checks → the comparison.
+    await page.goto(`${baseUrl}/beds/${bedId}/history`);
+    await page.getByTestId('bed-history').waitFor();
+    const boxes = page.getByTestId('history-row').locator('input[type="checkbox"]');
+    await expect.poll(() => boxes.count()).toBe(2);
+    await boxes.nth(0).check();
+    await boxes.nth(1).check();
+    await page.getByTestId('compare-picked').click();
+    await page.waitForURL(`${baseUrl}/compare/${before}/${after}`);
+    await page.getByTestId('compare-view').waitFor();
+    const cmp = (await api.req('GET', `/api/checks/${before}/compare/${after}`)).json as { comparison: { summary: { sentence: string }; panels: { significant: boolean }[] } };
+    expect((await page.getByTestId('compare-sentence').textContent())!.trim()).toBe(cmp.comparison.summary.sentence);
+    expect(await page.getByTestId('panel-moves').locator('tbody tr').count()).toBe(cmp.comparison.panels.length);
+    await shoot(page, 'compare');
+    expect(readFileSync(join(SHOTS, 'report-390.png')).length).toBeGreaterThan(1000);
+    expect(readFileSync(join(SHOTS, 'report-1280.png')).length).toBeGreaterThan(1000);
+  });
+});
