@@ -12,7 +12,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
-import { getCheckById } from '@/db/queries/checks';
+import { getCheck, getCheckById } from '@/db/queries/checks';
 import { listComments, type CommentView } from '@/db/queries/comments';
 import * as q from '@/db/queries/share-links';
 import { getWorkshop } from '@/db/queries/workshops';
@@ -93,6 +93,8 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
 /** `GET /api/checks/{id}/share`: the check's links (without tokens), newest first. */
 export async function listShareLinks(db: Db, actor: Actor, checkId: string): Promise<ShareLinkDto[]> {
   authorize(actor, 'workshop:read');
+  // another workshop's check is not found (404), not an empty list
+  if (!(await getCheck(db, actor.workshopId, checkId))) throw notFound('check');
   const now = Date.now();
   return (await q.listShareLinks(db, actor.workshopId, checkId)).map((r) => toDto(r, now));
 }
