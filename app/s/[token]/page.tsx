@@ -1,0 +1,39 @@
+import type { Metadata } from 'next';
+import { notFound } from 'next/navigation';
+import { Brand } from '@/components/AppShell';
+import { SharedReport } from '@/components/share/SharedReport';
+import { getDb } from '@/db/client';
+import { AppError } from '@/lib/http/errors';
+import { openSharedReport, type SharedReportView } from '@/lib/services/share';
+
+export const dynamic = 'force-dynamic';
+export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-referrer', robots: { index: false, follow: false } };
+
+/**
+ * A shared report, read only, no account: /s/{token}. The same address with `Accept: application/json`
+ * answers the JSON (next.config.mjs rewrites it to /api/shared/{token}). Each opening counts a view.
+ */
+export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
+  const { token } = await params;
+  let view: SharedReportView;
+  try {
+    view = await openSharedReport(await getDb(), token, { countView: true });
+  } catch (e) {
+    // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
+    if (e instanceof AppError && (e.status === 404 || e.status === 410)) notFound();
+    throw e;
+  }
+  return (
+    <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
+      <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">
+        <Brand />
+        <span className="text-sm text-muted">A bed check shared with you · read only</span>
+      </header>
+      <SharedReport data={view} token={token} />
+      <p className="text-sm text-muted">
+        This link works until {new Date(view.expiresAt).toISOString().slice(0, 16).replace('T', ' ')} UTC unless its owner revokes it sooner.
+        Before anyone reaches onto the machine to act on this report: spindle stopped, machine switched off; the machine maker&apos;s manual and local rules come first.
+      </p>
+    </div>
+  );
+}
