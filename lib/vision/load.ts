@@ -7,7 +7,7 @@
  * location tags are never parsed, kept or returned.
  */
 import exifr from 'exifr';
-import sharp from 'sharp';
+import sharp, { type Metadata, type OutputInfo } from 'sharp';
 import { VisionInputError } from './errors';
 
 /** Default decompression-bomb limit: 50 MP is above any phone camera's still. */
@@ -76,7 +76,7 @@ export async function loadPhoto(bytes: Buffer, opts: { maxPixels?: number } = {}
   if (isHeic(bytes)) {
     throw new VisionInputError('heic-unsupported', 'This photo is HEIC/HEIF, which Gridproof cannot read. Export it as JPEG (on a phone: share → "Most compatible", or set the camera to JPEG) and upload again.');
   }
-  let meta: sharp.Metadata;
+  let meta: Metadata;
   try {
     meta = await sharp(bytes, { limitInputPixels: false }).metadata();
   } catch {
@@ -92,7 +92,7 @@ export async function loadPhoto(bytes: Buffer, opts: { maxPixels?: number } = {}
   const orientation = meta.orientation ?? 1;
   const sixteen = meta.depth === 'ushort' || meta.depth === 'short';
   let data: Buffer;
-  let info: sharp.OutputInfo;
+  let info: OutputInfo;
   try {
     const img = sharp(bytes, { limitInputPixels: maxPixels, failOn: 'error' }).rotate().removeAlpha().toColourspace(sixteen ? 'rgb16' : 'srgb');
     ({ data, info } = await img.raw(sixteen ? { depth: 'ushort' } : {}).toBuffer({ resolveWithObject: true }));

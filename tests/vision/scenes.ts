@@ -13,7 +13,7 @@ export interface SceneCase {
 const base: Partial<SceneOptions> = { width: 1200, height: 900, supersample: 3 };
 
 /** Twelve scenes across the renderer's option ranges, then the hard ones. */
-export const SCENES: SceneCase[] = [
+const CASES: SceneCase[] = [
   { name: 'straight down, MDF, sharp', options: { seed: 101, tiltDeg: 0, turnDeg: 0, blurPx: 0.5, jpegQuality: 95 } },
   { name: 'plywood, 4° tilt', options: { seed: 102, material: 'plywood', tiltDeg: 4, turnDeg: -6 } },
   { name: '8° tilt, barrel distortion', options: { seed: 103, tiltDeg: 8, k1: -0.06, k2: 0.02 } },
@@ -30,4 +30,6 @@ export const SCENES: SceneCase[] = [
   { name: 'hard: 15° tilt', options: { seed: 202, tiltDeg: 15, turnDeg: 10 } },
   { name: 'hard: heavy dust', options: { seed: 203, dustPerM2: 6000 } },
   { name: 'hard: square near the edge', options: { seed: 204, targetPlacement: 'edge', tiltDeg: 8 } },
-].map((c) => ({ ...c, options: { ...base, ...c.options } }));
+];
+
+export const SCENES: SceneCase[] = CASES.map((c) => ({ ...c, options: { ...base, ...c.options } }));
