@@ -47,7 +47,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
   if (err || !data || !reportB.data || !detA.data || !detB.data) return <p className="panel field-error" role="alert">{errorText(err)}</p>;
 
   const geometry = mapGeometry(detB.data.pattern ? ({ ...reportB.data, pattern: detB.data.pattern } as unknown as Report) : reportB.data);
-  const autoX = autoExaggeration(data.summary.maxChangeMm, spacing);
+  const autoX = autoExaggeration(data.positions.map((c) => c.r), spacing);
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = new Map(data.panels.map((p) => [p.id, `${p.significant ? 'moved ' : ''}${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })}`]));
   const sorted = [...data.positions].sort((x, y) => Number(y.significant) - Number(x.significant) || y.r - x.r);

@@ -60,7 +60,8 @@ export function BedMap(p: BedMapProps) {
   const rulerMm = niceFactor(p.widthMm / 5);
   const fy = margin + p.heightMm + margin;
   return (
-    <svg viewBox={`0 0 ${W.toFixed(2)} ${H.toFixed(2)}`} role="img" aria-label={p.label} className="h-auto w-full" style={{ background: 'var(--map-ground)' }}>
+    <div className="overflow-x-auto">
+    <svg viewBox={`0 0 ${W.toFixed(2)} ${H.toFixed(2)}`} role="img" aria-label={p.label} className="h-auto w-full min-w-[36rem] print:min-w-0" style={{ background: 'var(--map-ground)' }}>
       <defs>
         {(['in', 'marginal', 'out', 'missing', 'unmatched'] as const).map((m) => (
           <marker key={m} id={`gp-arrow-${m}`} viewBox="0 0 10 10" refX="8" refY="5" markerWidth="4" markerHeight="4" orient="auto-start-reverse">
@@ -105,13 +106,10 @@ export function BedMap(p: BedMapProps) {
         <text x={rulerMm} y={font * 1.5} fontSize={font} fill="var(--ink)" textAnchor="end">{formatLength(rulerMm, p.unit, { decimals: p.unit === 'mm' ? 0 : 1 })} of bed</text>
       </g>
     </svg>
+    </div>
   );
 }
 
-/** Exaggerations offered; 'auto' picks the largest 1-2-5 step that keeps the longest arrow under 80 % of the spacing. */
+/** Exaggerations offered beside the automatic choice (lib/report/map-scale.ts). */
 export const EXAGGERATIONS = [10, 20, 50, 100, 200, 500, 1000, 2000] as const;
-
-export function autoExaggeration(maxDevMm: number, spacingMm: number): number {
-  if (!(maxDevMm > 0)) return 100;
-  return Math.max(1, niceFactor((0.8 * spacingMm) / maxDevMm));
-}
+export { autoExaggeration } from '@/lib/report/map-scale';

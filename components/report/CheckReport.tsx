@@ -65,7 +65,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
 
   const geometry = useMemo(() => mapGeometry(detail.pattern ? ({ ...report, pattern: detail.pattern } as unknown as Report) : report), [report, detail.pattern]);
   const spacing = useMemo(() => nearestSpacing(report.positions), [report]);
-  const autoX = autoExaggeration(s.maxMm, spacing);
+  const autoX = useMemo(() => autoExaggeration(report.positions.flatMap((p) => (p.deviation ? [p.deviation.r] : [])), spacing), [report, spacing]);
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
   const items: MapItem[] = useMemo(() => report.positions.map((p) => ({
