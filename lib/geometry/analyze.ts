@@ -112,9 +112,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   // it), then Huber IRLS, then reassign.
   const pxPerMm = 1 / Math.max(1e-9, median(pr.idx.map((i) => localScale(sqInv, i))));
   const gatePx = 0.15 * Math.min(...lat.families.map((_, f) => minPitch(f))) * pxPerMm;
-  const consensus = ransac(pr.src.length, 4, (ix) => { try { return homographyDlt(ix.map((k) => pr.src[k]!), ix.map((k) => pr.dst[k]!)); } catch { return null; } },
-    (h, k) => { const p = applyH(h, pr.src[k]![0], pr.src[k]![1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); }, gatePx, { iterations: 60, seed: 1 });
-  let H1 = consensus && consensus.inliers.length >= MIN_MATCHED ? homographyDlt(consensus.inliers.map((k) => pr.src[k]!), consensus.inliers.map((k) => pr.dst[k]!)) : homographyDlt(pr.src, pr.dst);
+  // Consensus on an even subsample of at most 300 pairs, then the inliers among all pairs.
+  const sub = pr.src.map((_, k) => k).filter((k) => k % Math.max(1, Math.ceil(pr.src.length / 300)) === 0);
+  const resid = (h: Mat3, k: number) => { const p = applyH(h, pr.src[k]![0], pr.src[k]![1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); };
+  const consensus = ransac(sub.length, 4, (ix) => { try { return homographyDlt(ix.map((k) => pr.src[sub[k]!]!), ix.map((k) => pr.dst[sub[k]!]!)); } catch { return null; } },
+    (h, k) => resid(h, sub[k]!), gatePx, { iterations: 40, seed: 1 });
+  const inl = consensus ? pr.src.map((_, k) => k).filter((k) => resid(consensus.model, k) < gatePx) : [];
+  let H1 = inl.length >= MIN_MATCHED ? homographyDlt(inl.map((k) => pr.src[k]!), inl.map((k) => pr.dst[k]!)) : homographyDlt(pr.src, pr.dst);
   for (let it = 0; it < 2; it++) {
     const r = pr.src.map((s, k) => { const p = applyH(H1, s[0], s[1]); return Math.hypot(p[0] - pr.dst[k]![0], p[1] - pr.dst[k]![1]); });
     const sg = Math.max(madSigma(r), 0.05);
