@@ -252,39 +252,43 @@ export async function findHoles(
   const hier = new cv.Mat() as CvMat;
   const cands: { x: number; y: number; fam: FamilySize }[] = [];
   try {
-    cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, 8);
-    cv.findContours(bin, contours, hier, cv.RETR_LIST, cv.CHAIN_APPROX_NONE);
-    const n = contours.size();
-    const minD = Math.min(...families.map((f) => f.diameterMm));
-    const minArea = Math.max(4, 0.25 * Math.PI * ((minD * s0 * 0.35) / factor) ** 2);
-    for (let i = 0; i < n; i++) {
-      const c = contours.get(i);
-      try {
-        const m = cv.moments(c, false) as { m00: number; m10: number; m01: number };
-        const area = m.m00;
-        if (area < minArea) continue;
-        const u = (m.m10 / m.m00) * factor + (factor - 1) / 2;
-        const v = (m.m01 / m.m00) * factor + (factor - 1) / 2;
-        const b = applyH(Hi, u, v);
-        if (search.exclude && insidePoly(search.exclude, b[0], b[1])) continue;
-        const sl = localScale(H, b[0], b[1]) / factor;
-        const peri = cv.arcLength(c, true) as number;
-        const circ = (4 * Math.PI * area) / (peri * peri);
-        if (circ < 0.5) continue;
-        // equivalent diameter in mm; a contour's polygon area misses about half a pixel rim
-        const dMm = (2 * Math.sqrt(area / Math.PI) + 1) / sl;
-        let best: FamilySize | undefined;
-        let bestErr = Infinity;
-        for (const f of families) {
-          const e = Math.abs(dMm / f.diameterMm - 1);
-          if (e < bestErr) {
-            bestErr = e;
-            best = f;
+    // Two offsets: a mild one, and a strict one that parts a dark bore from a flange darker than the surface
+    // (brass on light plywood); a hole found twice is one detection after refinement.
+    for (const offset of [8, Math.max(20, Math.round(0.3 * med))]) {
+      cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, offset);
+      cv.findContours(bin, contours, hier, cv.RETR_LIST, cv.CHAIN_APPROX_NONE);
+      const n = contours.size();
+      const minD = Math.min(...families.map((f) => f.diameterMm));
+      const minArea = Math.max(4, 0.25 * Math.PI * ((minD * s0 * 0.35) / factor) ** 2);
+      for (let i = 0; i < n; i++) {
+        const c = contours.get(i);
+        try {
+          const m = cv.moments(c, false) as { m00: number; m10: number; m01: number };
+          const area = m.m00;
+          if (area < minArea) continue;
+          const u = (m.m10 / m.m00) * factor + (factor - 1) / 2;
+          const v = (m.m01 / m.m00) * factor + (factor - 1) / 2;
+          const b = applyH(Hi, u, v);
+          if (search.exclude && insidePoly(search.exclude, b[0], b[1])) continue;
+          const sl = localScale(H, b[0], b[1]) / factor;
+          const peri = cv.arcLength(c, true) as number;
+          const circ = (4 * Math.PI * area) / (peri * peri);
+          if (circ < 0.5) continue;
+          // equivalent diameter in mm; a contour's polygon area misses about half a pixel rim
+          const dMm = (2 * Math.sqrt(area / Math.PI) + 1) / sl;
+          let best: FamilySize | undefined;
+          let bestErr = Infinity;
+          for (const f of families) {
+            const e = Math.abs(dMm / f.diameterMm - 1);
+            if (e < bestErr) {
+              bestErr = e;
+              best = f;
+            }
           }
+          if (best && bestErr < 0.5 && !cands.some((q) => Math.hypot(q.x - b[0], q.y - b[1]) < 0.5 * best!.diameterMm)) cands.push({ x: b[0], y: b[1], fam: best });
+        } finally {
+          c.delete();
         }
-        if (best && bestErr < 0.5) cands.push({ x: b[0], y: b[1], fam: best });
-      } finally {
-        c.delete();
       }
     }
   } finally {
