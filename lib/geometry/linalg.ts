@@ -99,9 +99,9 @@ export function smallestEigenvector(sym: Float64Array, n: number): Float64Array 
   const v = new Float64Array(n * n);
   for (let i = 0; i < n; i++) v[i * n + i] = 1;
   for (let sweep = 0; sweep < 60; sweep++) {
-    let off = 0;
-    for (let p = 0; p < n; p++) for (let q = p + 1; q < n; q++) off += a[p * n + q]! ** 2;
-    if (off < 1e-30) break;
+    let off = 0, diag = 0;
+    for (let p = 0; p < n; p++) { diag += a[p * n + p]! ** 2; for (let q = p + 1; q < n; q++) off += a[p * n + q]! ** 2; }
+    if (off <= 1e-28 * diag || off < 1e-300) break;
     for (let p = 0; p < n; p++)
       for (let q = p + 1; q < n; q++) {
         const apq = a[p * n + q]!;
