@@ -95,6 +95,7 @@ const MATRIX: Record<string, Entry | 'P'> = {
   'DELETE /api/invitations/[id]': { expect: OWNER_ONLY, params: (f) => ({ id: f.invitationId }) },
   'POST /api/invitations/accept': { expect: 'P', body: () => ({ token: 'x'.repeat(43) }) },
   'GET /api/me': { expect: 'AAAAUU' },
+  'POST /api/me/password': { expect: 'AAAAUU', body: () => ({ currentPassword: 'not the current one', newPassword: 'a fresh long passphrase' }) }, // 422 for the wrong current password
   'GET /api/members': { expect: 'AAAAUU' }, // their own workshop's list
   'POST /api/members': { expect: 'AFFAUU', body: () => ({ email: uniqueEmail('invitee'), role: 'reviewer' }) },
   'PATCH /api/members/[userId]': { expect: OWNER_ONLY, params: (f) => ({ userId: f.memberId }), body: () => ({ role: 'machinist' }) },
