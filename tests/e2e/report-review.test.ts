@@ -133,6 +133,15 @@ describe('report, review and comparison in the browser', () => {
     // 2. Review: remove one detection, add a hole where an expected position was not seen, re-fit.
     await page.goto(`${baseUrl}/checks/${before}/review`);
     await page.getByTestId('review-editor').waitFor();
+    // zoom in with the button: the photo's view box narrows (the marks stay on their holes)
+    const stage = page.locator('[data-testid="review-editor"] svg[viewBox]').last();
+    const vb = async () => Number((await stage.getAttribute('viewBox'))!.split(' ')[2]);
+    const fullWidth = await vb();
+    await page.getByRole('button', { name: 'Zoom in' }).click();
+    await expect.poll(vb).toBeLessThan(fullWidth * 0.7);
+    await page.getByRole('button', { name: 'Whole photo' }).click();
+    await expect.poll(vb).toBe(fullWidth);
+    await shoot(page, 'review');
     await page.getByTestId('mode-remove').click();
     const matched = page.locator('[data-testid="review-editor"] svg g[data-mark]:not([data-mark="unmatched"]):not([data-mark="missing"])');
     await expect.poll(() => matched.count()).toBeGreaterThan(10);
