@@ -41,7 +41,7 @@ export interface HoleSearch {
   method?: CentreMethod;
   /** Convex polygon in the square frame (mm) where holes are not sought (the target sheet). */
   exclude?: [number, number][];
-  /** Relative size tolerance for a family (default 0.22). */
+  /** Relative size tolerance for a family (default 0.15). */
   sizeTolerance?: number;
 }
 
@@ -168,7 +168,10 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: H3, x0: 
     let res = pts.map((p) => Math.abs(Math.hypot(p[0] - c!.cx, p[1] - c!.cy) - c!.r));
     const mad = median(res) * 1.4826 + 0.05 * d;
     const keep = pts.filter((_, i) => res[i]! < 3 * mad);
-    if (keep.length >= 0.6 * K) {
+    // a hole partly covered (by the paper sheet, a clamp) shows a straight or broken rim: too many rays disagree
+    if (keep.length < 0.8 * K) return null;
+    coverage = keep.length / K;
+    {
       pts = keep;
       c = fitCircle(pts) ?? c;
       res = pts.map((p) => Math.abs(Math.hypot(p[0] - c!.cx, p[1] - c!.cy) - c!.r));
@@ -225,7 +228,7 @@ export async function findHoles(
   search: HoleSearch = {},
 ): Promise<HoleDetection[]> {
   const method = search.method ?? 'centroid';
-  const tol = search.sizeTolerance ?? 0.22;
+  const tol = search.sizeTolerance ?? 0.15;
   const Hi = invertH(H);
   const { cv } = await getCv();
   const centre = applyH(Hi, w / 2, h / 2);
