@@ -51,11 +51,14 @@ for (let i = 0; i < Math.max(photosN, burstN); i++) rendered.push(await synthesi
 function startWorker(id: string): Promise<ChildProcess> {
   const p = spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], {
     cwd: root, stdio: ['ignore', 'pipe', 'inherit'],
-    env: { ...process.env, DATABASE_URL: url, STORAGE_DIR: storageDir, WORKER_ID: id, WORKER_POLL_MS: '20', NODE_ENV: 'production' },
+    env: { ...process.env, DATABASE_URL: url, STORAGE_DIR: storageDir, WORKER_ID: id, WORKER_POLL_MS: '20', NODE_ENV: 'production', MAIL_DELIVERY: '0' },
   });
-  return new Promise((resolve) => p.stdout!.setEncoding('utf8').on('data', function ready(d: string) {
-    if (d.includes('"worker.ready"')) { p.stdout!.off('data', ready); resolve(p); }
-  }));
+  return new Promise((resolve, reject) => {
+    p.once('exit', (code) => reject(new Error(`worker ${id} exited (${code}) before it was ready`)));
+    p.stdout!.setEncoding('utf8').on('data', function ready(d: string) {
+      if (d.includes('"worker.ready"')) { p.stdout!.off('data', ready); resolve(p); }
+    });
+  });
 }
 const stop = (p: ChildProcess) => new Promise((r) => { p.on('exit', r); p.kill('SIGTERM'); });
 

@@ -57,7 +57,7 @@ await fill(N);
 await db.delete(auditEvents);
 const spawnWorker = (id: string) => spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], {
   cwd: root, stdio: ['ignore', 'pipe', 'inherit'],
-  env: { ...process.env, DATABASE_URL: url, WORKER_ID: id, WORKER_POLL_MS: '20', WORKER_LEASE_MS: '5000', NODE_ENV: 'test', STORAGE_DIR: join(dir, 'storage') },
+  env: { ...process.env, DATABASE_URL: url, WORKER_ID: id, WORKER_POLL_MS: '20', WORKER_LEASE_MS: '5000', NODE_ENV: 'test', MAIL_DELIVERY: '0', STORAGE_DIR: join(dir, 'storage') },
 });
 const procs = [spawnWorker('a'), spawnWorker('b')];
 await Promise.all(procs.map((p) => new Promise<void>((resolve) => {

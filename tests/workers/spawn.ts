@@ -21,7 +21,8 @@ export interface WorkerProc {
 export function spawnWorker(env: Record<string, string>): WorkerProc {
   const child = spawn(process.execPath, nodeArgs, {
     cwd: root,
-    env: { ...process.env, NODE_ENV: 'test', WORKER_POLL_MS: '50', ...env },
+    // the outbox loop (mail) is not what these tests are about: MAIL_DELIVERY=0 keeps it off
+    env: { ...process.env, NODE_ENV: 'test', WORKER_POLL_MS: '50', MAIL_DELIVERY: '0', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   const lines: LogLine[] = [];
