@@ -130,6 +130,13 @@ describe('report, review and comparison in the browser', () => {
     // the map marks the same positions with the "out" shape
     expect(await page.locator('svg [data-mark="out"][data-label]').count()).toBe(report.summary.out);
 
+    // the print sheet drops the controls and keeps the figures
+    await page.emulateMedia({ media: 'print' });
+    expect(await page.getByTestId('filter-verdict').isVisible()).toBe(false);
+    expect(await page.getByTestId('verdict-sentence').isVisible()).toBe(true);
+    expect(await page.getByTestId('panels-table').isVisible()).toBe(true);
+    await page.emulateMedia({ media: 'screen' });
+
     // 2. Review: remove one detection, add a hole where an expected position was not seen, re-fit.
     await page.goto(`${baseUrl}/checks/${before}/review`);
     await page.getByTestId('review-editor').waitFor();
@@ -164,6 +171,8 @@ describe('report, review and comparison in the browser', () => {
     // 3. History → pick the two checks → the comparison.
     await page.goto(`${baseUrl}/beds/${bedId}/history`);
     await page.getByTestId('bed-history').waitFor();
+    await page.locator('.recharts-line').first().waitFor();
+    await shoot(page, 'history');
     const boxes = page.getByTestId('history-row').locator('input[type="checkbox"]');
     await expect.poll(() => boxes.count()).toBe(2);
     await boxes.nth(0).check();
