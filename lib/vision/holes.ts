@@ -107,9 +107,10 @@ interface Refined {
 export function refineHole(grey: Float32Array, w: number, h: number, H: H3, x0: number, y0: number, rMm: number, method: CentreMethod): Refined | null {
   const s = localScale(H, x0, y0);
   const d = 1 / s; // mm per image px here
+  const [h0, h1, h2, h3, h4, h5, h6, h7, h8] = H as [number, number, number, number, number, number, number, number, number];
   const at = (x: number, y: number) => {
-    const p = applyH(H, x, y);
-    return sampleGrey(grey, w, h, p[0], p[1]);
+    const iw = 1 / (h6 * x + h7 * y + h8);
+    return sampleGrey(grey, w, h, (h0 * x + h1 * y + h2) * iw, (h3 * x + h4 * y + h5) * iw);
   };
   let cx = x0;
   let cy = y0;
