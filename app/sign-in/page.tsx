@@ -3,8 +3,9 @@ import { redirect } from 'next/navigation';
 import { Brand } from '@/components/AppShell';
 import { SignInForm } from '@/components/AuthForms';
 import { SafetyNote } from '@/components/SafetyNote';
+import { InsecureOriginNote } from '@/components/InsecureOriginNote';
 import { ThemeToggle } from '@/components/ThemeToggle';
-import { currentAuth } from '@/lib/auth/session';
+import { cookieIsSecure, currentAuth } from '@/lib/auth/session';
 import { isDemoMode } from '@/lib/auth/secret';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 
@@ -20,6 +21,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <h1 className="text-3xl font-bold">Sign in</h1>
       <p className="text-muted">Check your fixture bed from one photo: where every insert and dog hole really is, and which panel to move.</p>
       {sp['signed-out'] && <p role="status" className="panel">You are signed out.</p>}
+      <InsecureOriginNote cookieSecure={cookieIsSecure()} />
       <SignInForm demo={demo} />
       <SafetyNote />
     </div>
