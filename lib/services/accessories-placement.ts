@@ -62,10 +62,14 @@ function bolt(fastener: string): { diameterMm: number; throughHoleMm: number } {
   return { diameterMm: Number(m[1]), throughHoleMm: clearanceHoleMm(fastener.toUpperCase(), 'medium') };
 }
 
+/** One setting of a preset, for forms. */
+export interface PresetField { name: string; label: string; kind: 'int' | 'mm' | 'fastener'; default?: number | string }
+
 export interface AccessoryPreset {
   id: string;
   name: string;
   description: string;
+  fields: PresetField[];
   params: z.ZodType<Record<string, unknown>>;
   build(params: Record<string, unknown>): AccessorySpec;
 }
@@ -97,6 +101,7 @@ function boardPins(p: z.infer<typeof BoardParams>): AccessorySpec {
 export const ACCESSORY_PRESETS: AccessoryPreset[] = [
   {
     id: 'fence-two-bolt',
+    fields: [{ name: 'spanSteps', label: 'Bolts apart, lattice steps', kind: 'int', default: 4 }, { name: 'fastener', label: 'Bolt', kind: 'fastener', default: 'M8' }],
     name: 'Fence, two bolts',
     description: 'A straight fence held by two bolts in inserts along X, a chosen number of steps apart.',
     params: FenceParams,
@@ -107,6 +112,7 @@ export const ACCESSORY_PRESETS: AccessoryPreset[] = [
   },
   {
     id: 'stop-l-three-bolt',
+    fields: [{ name: 'armXSteps', label: 'X arm, lattice steps', kind: 'int', default: 3 }, { name: 'armYSteps', label: 'Y arm, lattice steps', kind: 'int', default: 2 }, { name: 'fastener', label: 'Bolt', kind: 'fastener', default: 'M8' }],
     name: 'L-stop, three bolts',
     description: 'An L-shaped corner stop: a bolt at the corner, one along each arm.',
     params: StopParams,
@@ -124,6 +130,7 @@ export const ACCESSORY_PRESETS: AccessoryPreset[] = [
   },
   {
     id: 'cam-clamp-base',
+    fields: [{ name: 'fastener', label: 'Bolt', kind: 'fastener', default: 'M8' }],
     name: 'Cam clamp base',
     description: 'A small base for a cam clamp, two bolts on the diagonal of one lattice cell so it cannot turn.',
     params: CamParams,
@@ -134,6 +141,7 @@ export const ACCESSORY_PRESETS: AccessoryPreset[] = [
   },
   {
     id: 'dog-pair',
+    fields: [{ name: 'spanSteps', label: 'Dogs apart, lattice steps', kind: 'int', default: 3 }, { name: 'dogDiameterMm', label: 'Dog diameter, mm', kind: 'mm', default: 19.9 }],
     name: 'Dog pair',
     description: 'Two bench dogs in dog holes along X, for a stop or a wedge clamp.',
     params: DogParams,
@@ -144,6 +152,7 @@ export const ACCESSORY_PRESETS: AccessoryPreset[] = [
   },
   {
     id: 'sacrificial-board',
+    fields: [{ name: 'widthMm', label: 'Board width (X), mm', kind: 'mm' }, { name: 'heightMm', label: 'Board depth (Y), mm', kind: 'mm' }, { name: 'pitchXMm', label: 'Bed pitch X, mm', kind: 'mm' }, { name: 'pitchYMm', label: 'Bed pitch Y, mm', kind: 'mm' }, { name: 'fastener', label: 'Bolt', kind: 'fastener', default: 'M8' }],
     name: 'Sacrificial board',
     description: 'A board of the size you choose, drilled with the bed\'s own pattern and bolted through every hole.',
     params: BoardParams,

@@ -45,7 +45,7 @@ function toDto(r: q.AccessoryRow): AccessoryDto {
 
 /** The presets and the parameters each takes (for the library page). */
 export function listAccessoryPresets() {
-  return ACCESSORY_PRESETS.map((p) => ({ id: p.id, name: p.name, description: p.description }));
+  return ACCESSORY_PRESETS.map((p) => ({ id: p.id, name: p.name, description: p.description, fields: p.fields }));
 }
 
 export async function listAccessories(db: Db, actor: Actor): Promise<AccessoryDto[]> {
