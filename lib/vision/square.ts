@@ -91,6 +91,22 @@ function toLinear(v: number): number {
   return LINEAR[i]! + (LINEAR[i + 1]! - LINEAR[i]!) * (x - i);
 }
 
+/** Bilinear sample in linear light (each neighbour decoded before interpolating). */
+function sampleLinear(g: Float32Array, w: number, h: number, x: number, y: number): number {
+  const xf = x < 0 ? 0 : x > w - 1.001 ? w - 1.001 : x;
+  const yf = y < 0 ? 0 : y > h - 1.001 ? h - 1.001 : y;
+  const x0 = Math.floor(xf);
+  const y0 = Math.floor(yf);
+  const fx = xf - x0;
+  const fy = yf - y0;
+  const i = y0 * w + x0;
+  const a = toLinear(g[i]!);
+  const b = toLinear(g[i + 1]!);
+  const c = toLinear(g[i + w]!);
+  const d = toLinear(g[i + w + 1]!);
+  return a + (b - a) * fx + (c - a) * fy + (a - b - c + d) * fx * fy;
+}
+
 /** Total-least-squares line through points: unit normal n and offset c with n·p = c. */
 function fitLine(pts: [number, number][]): { n: [number, number]; c: number; rms: number } {
   const m = pts.length;
@@ -122,7 +138,7 @@ function fitLine(pts: [number, number][]): { n: [number, number]; c: number; rms
 
 /**
  * Refines a quadrilateral's corners on the full-resolution grey image: along each side, edge points where the
- * intensity profile across the side has its steepest dark-to-light step (parabolic sub-pixel peak), a robust line
+ * intensity profile across the side steps from dark to light (located by the area under the normalised darkness), a robust line
  * fit per side, corners at the intersections of neighbouring sides. `reachPx` bounds the search across a side.
  */
 export function refineCorners(grey: Float32Array, w: number, h: number, quad: Corners, reachPx: number): { corners: Corners; rms: number } | null {
@@ -153,7 +169,7 @@ export function refineCorners(grey: Float32Array, w: number, h: number, quad: Co
         const py = a[1] + (b[1] - a[1]) * f;
         for (let j = 0; j < nProf; j++) {
           const d = -reach + j * step;
-          prof[j] = toLinear(sampleGrey(grey, w, h, px + out[0] * d, py + out[1] * d));
+          prof[j] = sampleLinear(grey, w, h, px + out[0] * d, py + out[1] * d);
         }
         let best = -1;
         let bestG = 0;
@@ -170,12 +186,18 @@ export function refineCorners(grey: Float32Array, w: number, h: number, quad: Co
         let hi = -Infinity;
         for (let j = Math.max(0, best - 12); j <= best; j++) lo = Math.min(lo, prof[j]!);
         for (let j = best; j <= Math.min(nProf - 1, best + 12); j++) hi = Math.max(hi, prof[j]!);
-        const mid = (lo + hi) / 2;
-        let jc = -1;
-        for (let j = best; j >= Math.max(0, best - 12) && jc < 0; j--) if (prof[j]! < mid && prof[j + 1]! >= mid) jc = j;
-        for (let j = best; j < Math.min(nProf - 1, best + 12) && jc < 0; j++) if (prof[j]! < mid && prof[j + 1]! >= mid) jc = j;
-        if (jc < 0) continue;
-        const d = -reach + (jc + (mid - prof[jc]!) / (prof[jc + 1]! - prof[jc]!)) * step;
+        if (hi - lo < 1e-3) continue;
+        // Edge by area, not by a level crossing: the dark length from the window's start equals the integral of
+        // the normalised darkness (exact for a blurred or pixel-averaged step, whatever its sub-pixel phase).
+        const jA = Math.max(0, best - 12);
+        const jB = Math.min(nProf - 1, best + 12);
+        let dark = 0;
+        for (let j = jA; j < jB; j++) {
+          const u0 = Math.min(1, Math.max(0, (hi - prof[j]!) / (hi - lo)));
+          const u1 = Math.min(1, Math.max(0, (hi - prof[j + 1]!) / (hi - lo)));
+          dark += (u0 + u1) * 0.5 * step;
+        }
+        const d = -reach + jA * step + dark;
         pts.push([px + out[0] * d, py + out[1] * d]);
         fs.push(f);
       }

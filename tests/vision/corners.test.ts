@@ -41,7 +41,7 @@ function renderQuad(w: number, h: number, q: Corners): Float32Array {
 }
 
 describe('sub-pixel corners of the reference square', () => {
-  it('puts the corners of an exactly known, perspective-distorted square within 0.2 px', () => {
+  it('puts the corners of an exactly known, perspective-distorted square within 0.05 px', () => {
     const w = 320;
     const h = 280;
     const truth: Corners = [[60.37, 210.81], [243.62, 221.18], [262.09, 48.55], [81.73, 41.26]];
@@ -51,7 +51,7 @@ describe('sub-pixel corners of the reference square', () => {
     const r = refineCorners(g, w, h, start, 6);
     expect(r).not.toBeNull();
     for (let i = 0; i < 4; i++) {
-      expect(Math.hypot(r!.corners[i]![0] - truth[i]![0], r!.corners[i]![1] - truth[i]![1])).toBeLessThan(0.2);
+      expect(Math.hypot(r!.corners[i]![0] - truth[i]![0], r!.corners[i]![1] - truth[i]![1])).toBeLessThan(0.05);
     }
   });
 });
