@@ -4,11 +4,33 @@
  */
 import { mulberry32 } from './random';
 
+/** k-th smallest (0-based) of a, reordering a in place (Hoare's selection, expected O(n)). */
+function select(a: Float64Array, k: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1]!;
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i]! < pivot) i++;
+      while (a[j]! > pivot) j--;
+      if (i <= j) { const t = a[i]!; a[i] = a[j]!; a[j] = t; i++; j--; }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k]!;
+  }
+  return a[k]!;
+}
+
 export function median(values: ArrayLike<number>): number {
-  const a = Float64Array.from(values).sort();
+  const a = Float64Array.from(values);
   const n = a.length;
   if (n === 0) return NaN;
-  return n % 2 ? a[(n - 1) / 2]! : (a[n / 2 - 1]! + a[n / 2]!) / 2;
+  if (n % 2) return select(a, (n - 1) / 2);
+  const hi = select(a, n / 2);
+  let lo = -Infinity;
+  for (let i = 0; i < n / 2; i++) if (a[i]! > lo) lo = a[i]!;
+  return (lo + hi) / 2;
 }
 
 /** Robust σ from the median absolute deviation about zero (for residuals centred on 0): 1.4826·median|r|. */
