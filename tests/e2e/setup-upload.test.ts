@@ -1,0 +1,169 @@
+/**
+ * The main path in Debian's chromium (playwright-core, no browser download): the demo owner sets up a bed
+ * from a preset sized to the bed, uploads a rendered photo of that bed (lib/vision's renderer through
+ * `npm run -s synth`) with the upload throttled so the progress bar is seen moving, and watches the check
+ * go through its stages to the report, measured by a real worker process on the e2e server's database.
+ * Screenshots at phone (390 px) and desktop (1280 px) width go to test-results/ for review.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { PatternSchema } from '@/lib/geometry/contract';
+import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
+import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
+
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+const ROOT = fileURLToPath(new URL('../..', import.meta.url));
+const SHOTS = join(ROOT, 'test-results');
+const baseUrl = inject('baseUrl');
+const dataDir = inject('dataDir');
+let profile: string;
+let work: string;
+let ctx: BrowserContext;
+let worker: WorkerProc;
+
+beforeAll(async () => {
+  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
+  work = mkdtempSync(join(tmpdir(), 'gridproof-upload-'));
+  mkdirSync(SHOTS, { recursive: true });
+  // The worker that measures the upload, on the e2e server's database and storage.
+  worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
+  ctx = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
+    viewport: { width: 390, height: 844 },
+  });
+});
+afterAll(async () => {
+  await ctx?.close();
+  if (worker) await stopWorker(worker);
+  rmSync(profile, { recursive: true, force: true });
+  rmSync(work, { recursive: true, force: true });
+});
+
+async function signInAsDemoOwner(page: Page) {
+  const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(owner.email);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL(`${baseUrl}/`);
+}
+
+async function shoot(page: Page, name: string) {
+  for (const width of [390, 1280]) {
+    await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
+    await page.waitForTimeout(150);
+    await page.screenshot({ path: join(SHOTS, `${name}-${width}.png`), fullPage: true });
+  }
+  await page.setViewportSize({ width: 390, height: 844 });
+}
+
+describe('bed setup, upload and check status in the browser', () => {
+  it('sets up a bed from a preset, uploads a rendered photo and follows the check to its report', async () => {
+    const page = await ctx.newPage();
+    await signInAsDemoOwner(page);
+
+    // 1. A bed from the "M6 inserts on 50 mm" preset, sized to a 600 × 400 mm bed in two 200 mm strips.
+    await page.goto(`${baseUrl}/beds/new`);
+    await page.getByTestId('preset-select').selectOption('m6-50');
+    await page.getByLabel('Sizes in').selectOption('mm');
+    await page.getByTestId('preset-width').fill('600');
+    await page.getByTestId('preset-height').fill('400');
+    await page.getByTestId('preset-strip').fill('200');
+    await page.getByTestId('preset-build').click();
+    await page.getByTestId('bed-name').fill('Browser test bed');
+    const drawing = page.getByTestId('pattern-drawing');
+    await expect.poll(() => drawing.locator('circle').count()).toBeGreaterThanOrEqual(12 * 8); // floor((600 − 50)/50) + 1 = 12 by floor((400 − 50)/50) + 1 = 8 inserts
+    await expect.poll(() => page.getByTestId('pattern-findings').textContent()).toContain('No mistakes found');
+
+    // Pointing at the drawing names a position; the first insert sits at the front-left, so the bottom-left.
+    await drawing.scrollIntoViewIfNeeded();
+    const box = (await drawing.boundingBox())!;
+    await drawing.hover({ position: { x: box.width * 0.1, y: box.height * 0.88 } });
+    await expect.poll(() => page.getByTestId('pattern-pointed').textContent()).toMatch(/insert [A-Z]+\d+ at X/);
+
+    // A mistake shows at once: a 60 mm hole on a 50 mm pitch overlaps its neighbours.
+    const diameter = page.getByTestId('family-0-diameter');
+    await diameter.fill('60');
+    await expect.poll(() => page.getByTestId('pattern-findings').textContent()).toMatch(/overlap their neighbours/);
+    expect(await drawing.locator('circle[data-bad="1"]').count()).toBeGreaterThan(0);
+    await diameter.fill('6');
+    await expect.poll(() => page.getByTestId('pattern-findings').textContent()).toContain('No mistakes found');
+    await shoot(page, 'bed-setup');
+
+    await page.getByTestId('pattern-save').click();
+    await page.waitForURL((u) => /^\/beds\/[^/]+$/.test(u.pathname) && u.pathname !== "/beds/new");
+    const bedId = new URL(page.url()).pathname.split('/').pop()!;
+
+    // 2. A rendered photo of exactly this bed's pattern (from the API), with a 150 mm reference square.
+    const bed = await page.request.get(`${baseUrl}/api/beds/${bedId}`);
+    expect(bed.status()).toBe(200);
+    const pattern = PatternSchema.parse(((await bed.json()) as { pattern: unknown }).pattern);
+    expect(pattern.families[0]!.count).toEqual({ x: 12, y: 8 });
+    expect(pattern.panels).toHaveLength(2);
+    writeFileSync(join(work, 'pattern.json'), JSON.stringify(pattern));
+    const synth = JSON.parse(execFileSync('npm', ['run', '-s', 'synth', '--', '--pattern', join(work, 'pattern.json'), '--seed', '11', '--out', work, '--target-mm', '150'], { cwd: ROOT, encoding: 'utf8' }).trim().split('\n').pop()!) as { photo: string };
+    const photoBytes = statSync(synth.photo).size;
+
+    await page.goto(`${baseUrl}/beds/${bedId}/upload`);
+    await page.getByTestId('photo-input').setInputFiles(synth.photo);
+    await expect.poll(() => page.getByTestId('photo-preview').isVisible()).toBe(true);
+    // The form refuses a square of 0 before sending anything.
+    await page.getByTestId('reference-size').fill('0');
+    await page.getByTestId('upload-submit').click();
+    await expect.poll(() => page.getByRole('alert').first().textContent()).toMatch(/more than 0/);
+    await page.getByTestId('reference-units').selectOption('mm');
+    await page.getByTestId('reference-size').fill('150');
+
+    // Throttle the upload so the XMLHttpRequest progress events are seen between 0 and 100 %.
+    const cdp = await ctx.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: Math.max(64 * 1024, photoBytes / 3) });
+    await page.getByTestId('upload-submit').click();
+    const seen = new Set<number>();
+    const bar = page.getByTestId('upload-progress').locator('progress');
+    const until = Date.now() + 20_000;
+    while (!/\/checks\//.test(page.url()) && Date.now() < until) {
+      const v = await bar.getAttribute('value', { timeout: 500 }).catch(() => null);
+      if (v !== null) seen.add(Number(v));
+      await page.waitForTimeout(100);
+    }
+    await page.waitForURL(/\/checks\/[^/]+$/);
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    expect([...seen].some((v) => v > 0 && v < 100), `progress values seen: ${[...seen].join(', ')}`).toBe(true);
+    const checkId = new URL(page.url()).pathname.split('/').pop()!;
+
+    // 3. The check page follows the job (stages while it runs) until it settles, then shows the report.
+    const stages = new Set<string>();
+    const settled = page.getByTestId('check-settled');
+    const deadline = Date.now() + 75_000;
+    while (!(await settled.isVisible()) && Date.now() < deadline) {
+      if (await page.getByTestId('check-failed').isVisible()) break;
+      const s = await page.getByTestId('check-stage').textContent({ timeout: 300 }).catch(() => null);
+      if (s) stages.add(s);
+      await page.waitForTimeout(150);
+    }
+    const failed = await page.getByTestId('check-failed').textContent().catch(() => null);
+    expect(failed, `the check failed: ${failed}`).toBeNull();
+    await expect.poll(() => settled.isVisible(), { timeout: 10_000 }).toBe(true);
+    expect(stages.size, `stages seen: ${[...stages].join(' | ')}`).toBeGreaterThanOrEqual(1);
+
+    const status = await page.request.get(`${baseUrl}/api/checks/${checkId}`);
+    const view = ((await status.json()) as { check: { status: string; progress: number } }).check;
+    expect(['done', 'needs-review']).toContain(view.status);
+    // The report of the measurement core is there once the check has settled.
+    const report = await page.request.get(`${baseUrl}/api/checks/${checkId}/report`);
+    expect(report.status()).toBe(200);
+    await page.waitForTimeout(500);
+    await shoot(page, 'check-report');
+    console.log(JSON.stringify({ e2eUpload: { photoBytes, progressSeen: [...seen].sort((a, b) => a - b), stages: [...stages], status: view.status } }));
+    // The screenshots were written.
+    expect(readFileSync(join(SHOTS, 'check-report-390.png')).length).toBeGreaterThan(1000);
+  });
+});
