@@ -58,6 +58,16 @@ export function fromZodError(err: z.ZodError, message = 'Some fields need attent
 export function toAppError(err: unknown): AppError {
   if (err instanceof AppError) return err;
   if (err instanceof z.ZodError) return fromZodError(err);
+  // known failures of the database and of storage get a clear 503 instead of the anonymous 500 (checked by
+  // name: this module imports neither layer)
+  const name = (err as Error | null)?.name;
+  if (name === 'DatabaseBusyError') {
+    return new AppError('busy', 503, 'Gridproof is busy writing something else and could not save this in time. Nothing was saved; try again in a moment.');
+  }
+  if (name === 'StorageError' && (err as { code?: string }).code === 'write-failed') {
+    console.error('[gridproof] storage write failed', err);
+    return new AppError('storage_failed', 503, 'The photo could not be stored (the storage refused the write). Nothing was saved; try again later or tell whoever runs this Gridproof.');
+  }
   console.error('[gridproof] unexpected error', err);
   return new AppError('internal', 500, 'Something went wrong on the server. Try again; if it persists, tell whoever runs this Gridproof.');
 }
