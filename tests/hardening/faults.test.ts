@@ -21,6 +21,7 @@ import type { Actor } from '@/lib/services/actor';
 import { createBed } from '@/lib/services/beds';
 import { LocalStorage } from '@/lib/storage';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
+import { noiseRaw } from '@/tests/fixtures/make-bad-inputs';
 import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
 
 let t: WebTestDb;
@@ -132,7 +133,7 @@ describe('storage write failure', () => {
     const root = mkdtempSync(join(tmpdir(), 'gridproof-full-'));
     const full = new LocalStorage(root, { openTemp: fullDiskAfter(20_000) });
     const before = await counts();
-    const big = await sharp({ create: { width: 900, height: 700, channels: 3, noise: { type: 'gaussian', mean: 128, sigma: 40 } } }).jpeg({ quality: 95 }).toBuffer();
+    const big = await sharp(noiseRaw(900, 700), { raw: { width: 900, height: 700, channels: 3 } }).jpeg({ quality: 95 }).toBuffer();
     expect(big.length).toBeGreaterThan(20_000);
     let res: Response;
     try {
