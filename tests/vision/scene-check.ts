@@ -15,7 +15,7 @@ export function sceneTests(part: 0 | 1): void {
       // (holes 14 px across); the 12 MP targets (≤ 0.05 px RMS) are measured by the bench.
       expect(meta.square.kind).toBe('target');
       expect(meta.square.markFound).toBe(true);
-      expect(s.cornerRmsPx).toBeLessThan(0.3);
+      expect(s.cornerRmsPx).toBeLessThan(0.15);
       expect(s.foundFraction).toBeGreaterThanOrEqual(0.97);
       expect(s.falseDetections).toBe(0);
       expect(s.rmsPx).toBeLessThan(0.1);
