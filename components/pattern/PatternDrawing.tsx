@@ -46,7 +46,7 @@ export function PatternDrawing({ pattern, lint, title = 'Drawing of the bed patt
   const u = pattern.units;
   const flagged = useMemo(() => lint?.flagged ?? new Set<string>(), [lint]);
   // Room around the bed for the front/back words, in bed units.
-  const pad = Math.max(W, H) * 0.06;
+  const pad = Math.max(W, H) * 0.08;
 
   const locate = useCallback(
     (e: PointerEvent<SVGSVGElement>) => {
@@ -110,13 +110,13 @@ export function PatternDrawing({ pattern, lint, title = 'Drawing of the bed patt
         {pointed && (
           <circle cx={pointed.x} cy={H - pointed.y} r={ring} fill="none" stroke="var(--focus)" strokeWidth={3} vectorEffect="non-scaling-stroke" />
         )}
-        <text x={W / 2} y={H + pad * 0.7} textAnchor="middle" fontSize={pad * 0.4} fontWeight={700} fill="var(--ink)">FRONT — you stand here</text>
-        <text x={W / 2} y={-pad * 0.3} textAnchor="middle" fontSize={pad * 0.35} fill="var(--muted)">back</text>
+        <text x={W / 2} y={H + pad * 0.7} textAnchor="middle" fontSize={pad * 0.5} fontWeight={700} fill="var(--ink)">FRONT — you stand here</text>
+        <text x={W / 2} y={-pad * 0.3} textAnchor="middle" fontSize={pad * 0.4} fill="var(--muted)">back</text>
         <g stroke="var(--ink)" strokeWidth={2} vectorEffect="non-scaling-stroke" fill="none">
           <path d={`M 0 ${H} l ${pad * 0.8} 0 M 0 ${H} l 0 ${-pad * 0.8}`} vectorEffect="non-scaling-stroke" />
         </g>
-        <text x={pad * 0.85} y={H - pad * 0.08} fontSize={pad * 0.3} fill="var(--ink)">X</text>
-        <text x={pad * 0.08} y={H - pad * 0.85} fontSize={pad * 0.3} fill="var(--ink)">Y</text>
+        <text x={pad * 0.85} y={H + pad * 0.12} fontSize={pad * 0.35} fill="var(--ink)">X</text>
+        <text x={-pad * 0.4} y={H - pad * 0.8} fontSize={pad * 0.35} fill="var(--ink)">Y</text>
       </svg>
       <figcaption className="min-h-[3rem] rounded-lg border-2 border-line bg-card px-3 py-2 font-mono text-base" aria-live="polite" data-testid="pattern-pointed">
         {pointed ? (

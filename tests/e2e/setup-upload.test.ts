@@ -56,6 +56,7 @@ async function signInAsDemoOwner(page: Page) {
 }
 
 async function shoot(page: Page, name: string) {
+  await page.evaluate(() => window.scrollTo(0, 0));
   for (const width of [390, 1280]) {
     await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
     await page.waitForTimeout(150);
@@ -126,6 +127,7 @@ describe('bed setup, upload and check status in the browser', () => {
     await cdp.send('Network.enable');
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: Math.max(64 * 1024, photoBytes / 3) });
     await page.getByTestId('upload-submit').click();
+    const t0 = Date.now();
     const seen = new Set<number>();
     const bar = page.getByTestId('upload-progress').locator('progress');
     const until = Date.now() + 20_000;
@@ -138,6 +140,7 @@ describe('bed setup, upload and check status in the browser', () => {
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
     expect([...seen].some((v) => v > 0 && v < 100), `progress values seen: ${[...seen].join(', ')}`).toBe(true);
     const checkId = new URL(page.url()).pathname.split('/').pop()!;
+    const uploadMs = Date.now() - t0;
 
     // 3. The check page follows the job (stages while it runs) until it settles, then shows the report.
     const stages = new Set<string>();
@@ -152,6 +155,7 @@ describe('bed setup, upload and check status in the browser', () => {
     const failed = await page.getByTestId('check-failed').textContent().catch(() => null);
     expect(failed, `the check failed: ${failed}`).toBeNull();
     await expect.poll(() => settled.isVisible(), { timeout: 10_000 }).toBe(true);
+    const settleMs = Date.now() - t0 - uploadMs;
     expect(stages.size, `stages seen: ${[...stages].join(' | ')}`).toBeGreaterThanOrEqual(1);
 
     const status = await page.request.get(`${baseUrl}/api/checks/${checkId}`);
@@ -162,8 +166,19 @@ describe('bed setup, upload and check status in the browser', () => {
     expect(report.status()).toBe(200);
     await page.waitForTimeout(500);
     await shoot(page, 'check-report');
-    console.log(JSON.stringify({ e2eUpload: { photoBytes, progressSeen: [...seen].sort((a, b) => a - b), stages: [...stages], status: view.status } }));
+    console.log(JSON.stringify({ e2eUpload: { photoBytes, throttledUploadMs: uploadMs, uploadToSettledMs: settleMs, progressSeen: [...seen].sort((a, b) => a - b), stages: [...stages], status: view.status } }));
     // The screenshots were written.
     expect(readFileSync(join(SHOTS, 'check-report-390.png')).length).toBeGreaterThan(1000);
+
+    // 4. Editing the pattern saves a new revision (PATCH /api/beds/{id}); the check keeps its own.
+    await page.goto(`${baseUrl}/beds/${bedId}/setup`);
+    await page.getByTestId('pattern-units').selectOption('in');
+    await expect.poll(() => page.getByTestId('family-0-pitch-x').inputValue()).toBe(String(Math.round((50 / 25.4) * 1e9) / 1e9));
+    await page.getByTestId('pattern-save').click();
+    await page.waitForURL((u) => u.pathname === `/beds/${bedId}`);
+    const after = (await (await page.request.get(`${baseUrl}/api/beds/${bedId}`)).json()) as { pattern: { units: string }; revisions: unknown[] };
+    expect(after.pattern.units).toBe('in');
+    expect(after.revisions).toHaveLength(2);
+    expect((await page.request.get(`${baseUrl}/api/checks/${checkId}/report`)).status()).toBe(200);
   });
 });
