@@ -16,13 +16,13 @@ export { S3Storage, type S3StorageConfig } from './s3';
 export const DEFAULT_UPLOAD_MAX_BYTES = 40 * 1024 * 1024;
 
 /** The upload size limit in bytes from `UPLOAD_MAX_BYTES`, or the default. */
-export function uploadMaxBytes(env: NodeJS.ProcessEnv = process.env): number {
+export function uploadMaxBytes(env: Readonly<Record<string, string | undefined>> = process.env): number {
   const v = Number(env.UPLOAD_MAX_BYTES);
   return Number.isInteger(v) && v > 0 ? v : DEFAULT_UPLOAD_MAX_BYTES;
 }
 
 /** Builds the storage described by `env` (see the module header). */
-export function storageFromEnv(env: NodeJS.ProcessEnv = process.env): Storage {
+export function storageFromEnv(env: Readonly<Record<string, string | undefined>> = process.env): Storage {
   if (env.S3_BUCKET) {
     return new S3Storage({
       bucket: env.S3_BUCKET,
