@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { Brand } from '@/components/AppShell';
+import { PlainBrand } from '@/components/share/PlainBrand';
 import { SharedReport } from '@/components/share/SharedReport';
 import { getDb } from '@/db/client';
 import { AppError } from '@/lib/http/errors';
@@ -26,7 +26,7 @@ export default async function SharedPage({ params }: { params: Promise<{ token: 
   return (
     <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
       <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">
-        <Brand />
+        <PlainBrand />
         <span className="text-sm text-muted">A bed check shared with you · read only</span>
       </header>
       <SharedReport data={view} token={token} />

@@ -1,0 +1,136 @@
+/**
+ * A shared report in Debian's chromium (playwright-core, no browser download), opened by someone with no
+ * account: the page shows the verdict, the map, the tables and the comments, and neither the page nor any
+ * answer the browser receives carries the photo's metadata (its EXIF, written into the uploaded JPEG by
+ * sharp, and its file name) or anything else of the workshop (its name, its other bed, its members'
+ * addresses, the camera and detector figures of the measurement core's report). The same address answers
+ * JSON for Accept: application/json; once revoked, the page is a 404 and the JSON a 410.
+ * The check's report is the measurement core's own, of a synthetic photo of the bed, written into the app's
+ * database file as the worker would.
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { eq } from 'drizzle-orm';
+import { chromium, type BrowserContext } from 'playwright-core';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { openDb } from '@/db/client';
+import { checks } from '@/db/schema';
+import { analyzePoints } from '@/lib/geometry';
+import type { Pattern } from '@/lib/geometry/contract';
+import { makeScene } from '@/lib/geometry/synthetic';
+import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from '@/lib/services/demo-accounts';
+import { Client } from './client';
+
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+const baseUrl = inject('baseUrl');
+const dataDir = inject('dataDir');
+const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
+const PHOTO_NAME = 'IMG_20261202_secret-site.jpg';
+const CAMERA_MAKE = 'Zebulon Optics';
+const CAMERA_MODEL = 'ZX-4471 serial 0099812';
+/** 20 mm dog holes at 96 mm pitch (a common dog-hole grid, common practice). */
+const PATTERN: Pattern = {
+  version: 1, name: 'shared dog table', units: 'mm', bed: { width: 500, height: 400 },
+  families: [{ id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 100, y: 100 }, pitch: { x: 96, y: 96 }, count: { x: 4, y: 3 }, fit: { toleranceMm: 0.5 } }],
+};
+
+const api = new Client(baseUrl);
+let profile: string;
+let ctx: BrowserContext;
+let checkId: string;
+let shareUrl: string;
+let linkId: string;
+let sentence: string;
+
+beforeAll(async () => {
+  expect((await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD })).status).toBe(200);
+  const bed = await api.req('POST', '/api/beds', { name: 'Shared dog table', pattern: PATTERN });
+  expect(bed.status, bed.text).toBe(201);
+  const bedId = (bed.json as { bed: { id: string } }).bed.id;
+  // a real JPEG carrying EXIF (camera make and model), uploaded under a telling file name
+  const jpeg = await sharp({ create: { width: 96, height: 72, channels: 3, background: { r: 120, g: 110, b: 90 } } })
+    .withExif({ IFD0: { Make: CAMERA_MAKE, Model: CAMERA_MODEL } }).jpeg().toBuffer();
+  const form = new FormData();
+  form.append('photo', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), PHOTO_NAME);
+  form.append('referenceMm', '150');
+  form.append('title', 'Before the glue-up');
+  const up = await fetch(`${baseUrl}/api/beds/${bedId}/checks`, { method: 'POST', headers: { cookie: api.cookie }, body: form });
+  expect(up.status).toBe(202);
+  checkId = ((await up.json()) as { check: { id: string } }).check.id;
+  // the measurement core's report of a synthetic photo of this bed, stored as the worker stores it
+  const scene = makeScene({ pattern: PATTERN, seed: 11, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 150, y: 330, angleDeg: 5 } });
+  const report = analyzePoints(scene.points, PATTERN);
+  sentence = report.summary.sentence;
+  const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
+  await db.update(checks).set({ status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() }).where(eq(checks.id, checkId));
+  db.$client.close();
+  expect((await api.req('POST', `/api/checks/${checkId}/comments`, { body: 'dog B2 binds when the table is cold', positionLabel: 'B2' })).status).toBe(201);
+  const share = await api.req('POST', `/api/checks/${checkId}/share`, { expiresInDays: 2 });
+  expect(share.status, share.text).toBe(201);
+  ({ url: shareUrl, id: linkId } = (share.json as { link: { url: string; id: string } }).link);
+
+  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
+  ctx = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
+    viewport: { width: 1280, height: 900 },
+  });
+});
+afterAll(async () => {
+  await ctx?.close();
+  if (profile) rmSync(profile, { recursive: true, force: true });
+});
+
+const SECRETS = () => [PHOTO_NAME, 'secret-site', CAMERA_MAKE, CAMERA_MODEL, DEMO_WORKSHOP_NAME, 'Main router spoilboard', 'Assembly table', ...DEMO_LOGINS.map((l) => l.email), 'focalSource', 'principalPoint', 'diagnostics', 'squareSidePx'];
+
+describe('a shared report opened without an account', () => {
+  it('shows the verdict, map, tables and comments, and leaks nothing of the photo or the workshop', async () => {
+    await ctx.clearCookies();
+    const page = await ctx.newPage();
+    const seen: { url: string; status: number; body: string }[] = [];
+    page.on('response', (res) => {
+      void res.body().then((b) => seen.push({ url: res.url(), status: res.status(), body: b.toString('latin1') }), () => seen.push({ url: res.url(), status: res.status(), body: '' }));
+    });
+    const res = await page.goto(shareUrl);
+    expect(res?.status()).toBe(200);
+    await page.getByTestId('shared-report').waitFor();
+    await expect.poll(() => page.getByTestId('verdict-sentence').textContent()).toBe(sentence);
+    await page.getByText('dog B2 binds when the table is cold').waitFor();
+    expect(await page.locator('svg[role="img"]').count()).toBeGreaterThan(0);
+    await page.waitForLoadState('networkidle');
+    const html = await page.content();
+    const text = await page.locator('body').innerText();
+    expect(text).toContain('Shared dog table');
+    for (const s of SECRETS()) {
+      expect(html, `page carries "${s}"`).not.toContain(s);
+      for (const r of seen) expect(r.body, `${r.url} carries "${s}"`).not.toContain(s);
+    }
+    // the browser asked for nothing behind an account: no photo, no check, bed or member data
+    for (const r of seen) expect(new URL(r.url).pathname).not.toMatch(/^\/api\/(checks|beds|members|me|accessories)|\/photo/);
+    expect(seen.filter((r) => r.url.startsWith(baseUrl)).every((r) => r.status < 400)).toBe(true);
+    await page.close();
+  });
+
+  it('answers the report JSON at the same address for Accept: application/json', async () => {
+    const r = await fetch(shareUrl, { headers: { accept: 'application/json' } });
+    expect(r.status).toBe(200);
+    expect(r.headers.get('content-type')).toContain('application/json');
+    expect(r.headers.get('vary') ?? '').toMatch(/accept/i);
+    const body = await r.text();
+    expect((JSON.parse(body) as { report: { summary: { sentence: string } } }).report.summary.sentence).toBe(sentence);
+    for (const s of SECRETS()) expect(body).not.toContain(s);
+  });
+
+  it('is a 404 page and a 410 answer once revoked', async () => {
+    expect((await api.req('DELETE', `/api/share-links/${linkId}`)).status).toBe(200);
+    const page = await ctx.newPage();
+    const res = await page.goto(shareUrl);
+    expect(res?.status()).toBe(404);
+    await page.getByTestId('shared-missing').waitFor();
+    await page.close();
+    expect((await fetch(shareUrl, { headers: { accept: 'application/json' } })).status).toBe(410);
+  });
+});
