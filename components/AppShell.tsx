@@ -33,6 +33,12 @@ export function AppShell({ auth, children }: { auth: Auth; children: ReactNode }
           <Link href="/members" className="btn btn-quiet">
             Members
           </Link>
+          <Link href="/accessories" className="btn btn-quiet">
+            Accessories
+          </Link>
+          <Link href="/guide" className="btn btn-quiet">
+            Photo guide
+          </Link>
         </nav>
         <div className="ml-auto flex flex-wrap items-center gap-2">
           <span className="text-muted text-sm">

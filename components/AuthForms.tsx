@@ -44,7 +44,7 @@ export function SignInForm({ demo }: { demo: { logins: DemoLogin[]; password: st
         <Field label="Password" name="password" type="password" autoComplete="current-password" value={password} onChange={setPassword} error={fieldError(m.error, 'password')} />
         {m.isError && <p role="alert" className="field-error">{errorText(m.error)}</p>}
         <button className="btn" type="submit" disabled={m.isPending}>{m.isPending ? 'Signing in…' : 'Sign in'}</button>
-        <p>New here? <Link href="/sign-up" className="font-bold underline">Create a workshop</Link></p>
+        <p>New here? <Link href="/sign-up" className="font-bold underline">Create a workshop</Link> · <Link href="/forgot-password" className="underline">Forgot your password?</Link></p>
       </form>
       {demo && (
         <section className="panel" aria-label="Demo logins">
