@@ -3,6 +3,7 @@
  * A bed's history: a timeline of its checks (newest first) and a trend of RMS deviation, largest deviation
  * and positions out, read from `GET /api/beds/{id}/checks`. Pick any two finished checks to compare them.
  */
+import '@/components/report/report.css';
 import Link from 'next/link';
 import { useRouter } from 'next/navigation';
 import { useMemo, useState } from 'react';
@@ -21,7 +22,7 @@ export function BedHistory({ bedId, unit: initialUnit }: { bedId: string; unit: 
   const [unit, setUnit] = useState<LengthUnit>(initialUnit);
   const [pick, setPick] = useState<string[]>([]);
   const q = useQuery({ queryKey: ['bed-checks', bedId], queryFn: () => api<{ checks: HistoryRow[] }>(`/api/beds/${bedId}/checks`), refetchInterval: 15_000 });
-  const series = useMemo(() => trendSeries(q.data?.checks ?? [], unit), [q.data, unit]);
+  const series = useMemo(() => trendSeries(q.data?.checks ?? [], unit).map((p) => ({ ...p, name: `${p.title ? `${p.title} · ` : ''}${day(p.t)}` })), [q.data, unit]);
   if (q.isPending) return <p className="panel" aria-busy="true">Loading the checks…</p>;
   if (q.isError) return <p className="panel field-error" role="alert">{errorText(q.error)}</p>;
   const checks = q.data.checks;
@@ -44,11 +45,11 @@ export function BedHistory({ bedId, unit: initialUnit }: { bedId: string; unit: 
             <ResponsiveContainer width="100%" height="100%">
               <LineChart data={series} margin={{ top: 10, right: 8, bottom: 8, left: 4 }}>
                 <CartesianGrid strokeDasharray="3 3" stroke="var(--line)" />
-                <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} tickFormatter={day} tick={{ fill: 'var(--ink)', fontSize: 12 }} />
+                <XAxis dataKey="name" tick={{ fill: 'var(--ink)', fontSize: 12 }} interval="preserveStartEnd" />
                 <YAxis yAxisId="len" tick={{ fill: 'var(--ink)', fontSize: 12 }} width={52} tickFormatter={(v: number) => v.toFixed(UNIT_DECIMALS[unit] - 1)} label={{ value: unit, angle: -90, position: 'insideLeft', fill: 'var(--ink)' }} />
                 <YAxis yAxisId="n" orientation="right" allowDecimals={false} tick={{ fill: 'var(--ink)', fontSize: 12 }} width={32} />
-                <Tooltip labelFormatter={(v) => when(Number(v))} contentStyle={{ background: 'var(--card)', color: 'var(--ink)', border: '1px solid var(--line)' }} />
-                <Legend />
+                <Tooltip contentStyle={{ background: 'var(--card)', color: 'var(--ink)', border: '1px solid var(--line)' }} />
+                <Legend wrapperStyle={{ color: 'var(--ink)' }} />
                 <Line yAxisId="len" type="monotone" dataKey="rms" name={`RMS off, ${unit}`} stroke="var(--mark-in)" strokeWidth={3} dot={{ r: 5 }} isAnimationActive={false} />
                 <Line yAxisId="len" type="monotone" dataKey="max" name={`Largest, ${unit}`} stroke="var(--mark-marginal)" strokeWidth={3} strokeDasharray="8 4" dot={{ r: 5, strokeWidth: 2 }} isAnimationActive={false} />
                 <Line yAxisId="n" type="stepAfter" dataKey="out" name="Positions out" stroke="var(--mark-out)" strokeWidth={3} strokeDasharray="2 3" dot={{ r: 5 }} isAnimationActive={false} />

@@ -172,6 +172,8 @@ describe('report, review and comparison in the browser', () => {
     await page.goto(`${baseUrl}/beds/${bedId}/history`);
     await page.getByTestId('bed-history').waitFor();
     await page.locator('.recharts-line').first().waitFor();
+    // the trend's lines are drawn in the marks' colours (defined, not empty)
+    expect(await page.locator('.recharts-line-curve').first().evaluate((el) => getComputedStyle(el).stroke)).toMatch(/^rgb/);
     await shoot(page, 'history');
     const boxes = page.getByTestId('history-row').locator('input[type="checkbox"]');
     await expect.poll(() => boxes.count()).toBe(2);

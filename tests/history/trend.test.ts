@@ -16,6 +16,6 @@ describe('history trend', () => {
     expect(s[1]!.rms).toBeCloseTo(0.01, 12);
     expect(s[1]!.max).toBeCloseTo(0.1, 12);
     expect(s[1]!.out).toBe(3);
-    expect(s[0]!.t).toBe(1200);
+    expect(s[0]!.t).toBe(1000);
   });
 });
