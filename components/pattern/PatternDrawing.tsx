@@ -87,7 +87,7 @@ export function PatternDrawing({ pattern, lint, title = 'Drawing of the bed patt
         aria-label={`${title}: bed ${fmt(W, u)} × ${fmt(H, u)} ${u}, front at the bottom`}
         viewBox={`${-pad} ${-pad} ${W + 2 * pad} ${H + 2 * pad}`}
         preserveAspectRatio="xMidYMid meet"
-        className="h-auto max-h-[70vh] w-full touch-none select-none rounded-lg border-2 border-line bg-card"
+        className="h-auto max-h-[70vh] w-full touch-manipulation select-none rounded-lg border-2 border-line bg-card"
         onPointerMove={locate}
         onPointerDown={locate}
         onPointerLeave={(e) => { if (e.pointerType === 'mouse') setPointed(null); }}

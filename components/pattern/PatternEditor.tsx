@@ -166,6 +166,16 @@ export function PatternEditor({ mode, bedId, initialName = '', initialPattern = 
 
   const u = draft?.units ?? userUnits;
   const mistakes = lint?.mistakes ?? 0;
+  const saveBox = (
+    <section className="panel flex flex-col gap-3" aria-label="Save">
+      {save.isError && <p role="alert" className="field-error">{errorText(save.error)}{save.error instanceof ApiError && Object.keys(save.error.fields).length ? ` (${Object.entries(save.error.fields).slice(0, 3).map(([k, v]) => `${k}: ${v}`).join('; ')})` : ''}</p>}
+      {mistakes > 0 && <p className="font-bold text-warn">You can save with mistakes, but checks will measure against this pattern as it is.</p>}
+      <button type="button" className="btn text-lg" data-testid="pattern-save" disabled={!parsed?.success || !name.trim() || save.isPending} onClick={() => save.mutate()}>
+        {save.isPending ? 'Saving…' : mode === 'create' ? 'Create the bed' : 'Save as a new pattern revision'}
+      </button>
+      {mode === 'edit' && <p className="text-sm text-muted">Earlier checks keep the revision they were measured against.</p>}
+    </section>
+  );
 
   return (
     <div className="flex flex-col gap-6">
@@ -243,7 +253,7 @@ export function PatternEditor({ mode, bedId, initialName = '', initialPattern = 
               onChange={(i, patch) => setRect('channels', i, patch)} onRemove={(i) => removeRect('channels', i)} />
           </div>
 
-          <div className="flex flex-col gap-4 lg:sticky lg:top-4 lg:self-start">
+          <div className="order-first flex flex-col gap-4 lg:order-none lg:sticky lg:top-4 lg:self-start">
             <section className="panel flex flex-col gap-3" aria-label="Drawing">
               <h2 className="text-xl font-bold">Drawing</h2>
               {parsed?.success ? <PatternDrawing pattern={parsed.data} lint={lint} /> : <p className="text-muted">The drawing comes back once the pattern is valid.</p>}
@@ -265,17 +275,11 @@ export function PatternEditor({ mode, bedId, initialName = '', initialPattern = 
               )}
               {lint && lint.mistakes === 0 && <p>Holes clear each other, the channels, the panel edges and the bed&apos;s edge.</p>}
             </section>
-            <section className="panel flex flex-col gap-3" aria-label="Save">
-              {save.isError && <p role="alert" className="field-error">{errorText(save.error)}{save.error instanceof ApiError && Object.keys(save.error.fields).length ? ` (${Object.entries(save.error.fields).slice(0, 3).map(([k, v]) => `${k}: ${v}`).join('; ')})` : ''}</p>}
-              {mistakes > 0 && <p className="font-bold text-warn">You can save with mistakes, but checks will measure against this pattern as it is.</p>}
-              <button type="button" className="btn text-lg" data-testid="pattern-save" disabled={!parsed?.success || !name.trim() || save.isPending} onClick={() => save.mutate()}>
-                {save.isPending ? 'Saving…' : mode === 'create' ? 'Create the bed' : 'Save as a new pattern revision'}
-              </button>
-              {mode === 'edit' && <p className="text-sm text-muted">Earlier checks keep the revision they were measured against.</p>}
-            </section>
+            <div className="hidden lg:block">{saveBox}</div>
           </div>
         </div>
       )}
+      {draft && <div className="lg:hidden">{saveBox}</div>}
     </div>
   );
 }

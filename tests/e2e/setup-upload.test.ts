@@ -98,7 +98,7 @@ describe('bed setup, upload and check status in the browser', () => {
     await expect.poll(() => page.getByTestId('pattern-findings').textContent()).toContain('No mistakes found');
     await shoot(page, 'bed-setup');
 
-    await page.getByTestId('pattern-save').click();
+    await page.getByTestId('pattern-save').filter({ visible: true }).click();
     await page.waitForURL((u) => /^\/beds\/[^/]+$/.test(u.pathname) && u.pathname !== "/beds/new");
     const bedId = new URL(page.url()).pathname.split('/').pop()!;
 
@@ -174,7 +174,7 @@ describe('bed setup, upload and check status in the browser', () => {
     await page.goto(`${baseUrl}/beds/${bedId}/setup`);
     await page.getByTestId('pattern-units').selectOption('in');
     await expect.poll(() => page.getByTestId('family-0-pitch-x').inputValue()).toBe(String(Math.round((50 / 25.4) * 1e9) / 1e9));
-    await page.getByTestId('pattern-save').click();
+    await page.getByTestId('pattern-save').filter({ visible: true }).click();
     await page.waitForURL((u) => u.pathname === `/beds/${bedId}`);
     const after = (await (await page.request.get(`${baseUrl}/api/beds/${bedId}`)).json()) as { pattern: { units: string }; revisions: unknown[] };
     expect(after.pattern.units).toBe('in');
