@@ -2,6 +2,7 @@
 import Link from 'next/link';
 import type { ReactNode } from 'react';
 import type { Auth } from '@/lib/auth/session';
+import { isDemoMode } from '@/lib/auth/secret';
 import { ROLE_LABELS } from '@/lib/services/actor';
 import { SignOutButton } from './SignOutButton';
 import { ThemeToggle } from './ThemeToggle';
@@ -39,6 +40,11 @@ export function AppShell({ auth, children }: { auth: Auth; children: ReactNode }
           <Link href="/guide" className="btn btn-quiet">
             Photo guide
           </Link>
+          {actor?.role === 'owner' && (process.env.NODE_ENV !== 'production' || isDemoMode()) && (
+            <Link href="/dev/outbox" className="btn btn-quiet">
+              Outbox
+            </Link>
+          )}
         </nav>
         <div className="ml-auto flex flex-wrap items-center gap-2">
           <span className="text-muted text-sm">
