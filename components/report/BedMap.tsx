@@ -8,6 +8,7 @@
 import type { Mark } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { niceFactor } from '@/lib/pdf/map';
+import { autoExaggeration as autoFromDeviations } from '@/lib/report/map-scale';
 import { MarkShape, markVar } from './Mark';
 
 export interface MapItem {
@@ -112,4 +113,8 @@ export function BedMap(p: BedMapProps) {
 
 /** Exaggerations offered beside the automatic choice (lib/report/map-scale.ts). */
 export const EXAGGERATIONS = [10, 20, 50, 100, 200, 500, 1000, 2000] as const;
-export { autoExaggeration } from '@/lib/report/map-scale';
+
+/** The automatic exaggeration (lib/report/map-scale.ts) from the deviations, mm, or from the largest one alone. */
+export function autoExaggeration(deviationsMm: number | readonly number[], spacingMm: number): number {
+  return autoFromDeviations(typeof deviationsMm === 'number' ? [deviationsMm] : deviationsMm, spacingMm);
+}
