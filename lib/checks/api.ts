@@ -7,12 +7,13 @@ import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
 import { checkStatusView, getCheck, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
 import { compareReports, type Comparison } from '@/lib/geometry';
-import { PointsSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
+import { PointsSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from '@/lib/services/actor';
 import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
 import { bedPatternForUpload, CornersSchema, discardUpload, IntakeError, queueCheck, storeUpload, type StoredUpload } from './intake';
 import { boundaryOf, MultipartError, readParts, readText } from './multipart';
+import { parsedReport } from './report-cache';
 
 /** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -126,7 +127,7 @@ async function finishedReport(db: Db, actor: Actor, id: string): Promise<Report>
     const why = row.status === 'failed' ? `The analysis failed: ${row.error ?? 'no reason recorded'}` : `The check is ${row.status}; the report is ready once it is done.`;
     throw new AppError('not_ready', 409, why);
   }
-  return ReportSchema.parse(JSON.parse(row.reportJson));
+  return parsedReport(row.id, row.reportJson); // validated once per stored text (lib/checks/report-cache.ts)
 }
 
 /** `GET /api/checks/{id}/report`: the measurement core's report JSON; 409 until the check is done. */
