@@ -2,7 +2,7 @@ import nextVitals from 'eslint-config-next/core-web-vitals';
 import nextTs from 'eslint-config-next/typescript';
 import tseslint from 'typescript-eslint';
 
-export default [
+const config = [
   { ignores: ['.next/**', 'node_modules/**', 'data/**', 'drizzle/**', 'next-env.d.ts'] },
   ...nextVitals,
   ...nextTs,
@@ -20,3 +20,5 @@ export default [
     },
   },
 ];
+
+export default config;
