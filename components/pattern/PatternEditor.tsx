@@ -179,9 +179,9 @@ export function PatternEditor({ mode, bedId, initialName = '', initialPattern = 
 
   return (
     <div className="flex flex-col gap-6">
-      <section className="panel flex flex-col gap-4" aria-label="Start">
-        <h2 className="text-xl font-bold">{mode === 'create' ? '1. Start the pattern' : 'Start over (optional)'}</h2>
-        <div className="grid gap-4 md:grid-cols-2">
+      <details className="panel flex flex-col gap-4" aria-label="Start" open={mode === 'create'}>
+        <summary className="cursor-pointer text-xl font-bold">{mode === 'create' ? '1. Start the pattern' : 'Start over from a preset, from scratch or from a file'}</summary>
+        <div className="mt-4 grid gap-4 md:grid-cols-2">
           <div className="flex flex-col gap-3">
             <SelectField label="Preset" value={presetId} testId="preset-select" options={PRESETS.map((p) => ({ value: p.id, label: p.name }))} onChange={setPresetId} />
             <p className="text-sm text-muted">{PRESETS.find((p) => p.id === presetId)?.description}</p>
@@ -210,7 +210,7 @@ export function PatternEditor({ mode, bedId, initialName = '', initialPattern = 
           </div>
         </div>
         {importError && <p role="alert" className="field-error">{importError}</p>}
-      </section>
+      </details>
 
       {draft && (
         <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">

@@ -12,6 +12,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import sharp from 'sharp';
 import { PatternSchema } from '@/lib/geometry/contract';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
@@ -48,6 +49,7 @@ afterAll(async () => {
 
 async function signInAsDemoOwner(page: Page) {
   const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
+  await ctx.clearCookies();
   await page.goto(`${baseUrl}/sign-in`);
   await page.getByLabel('E-mail').fill(owner.email);
   await page.getByLabel('Password').fill(DEMO_PASSWORD);
@@ -180,5 +182,34 @@ describe('bed setup, upload and check status in the browser', () => {
     expect(after.pattern.units).toBe('in');
     expect(after.revisions).toHaveLength(2);
     expect((await page.request.get(`${baseUrl}/api/checks/${checkId}/report`)).status()).toBe(200);
+  });
+
+  it('says why a photo could not be measured and offers another photo or marking the corners', async () => {
+    const page = await ctx.newPage();
+    await signInAsDemoOwner(page);
+    const made = await page.request.post(`${baseUrl}/api/beds`, { data: { name: 'Bare bed', preset: { preset: 'm6-50', bedWidthMm: 600, bedHeightMm: 400 } } });
+    expect(made.status()).toBe(201);
+    const bedId = ((await made.json()) as { bed: { id: string } }).bed.id;
+    // A photo of nothing: an even grey frame, no reference square and no holes in it.
+    const blank = join(work, 'blank.jpg');
+    await sharp({ create: { width: 1200, height: 900, channels: 3, background: { r: 128, g: 124, b: 118 } } }).jpeg({ quality: 85 }).toFile(blank);
+
+    await page.goto(`${baseUrl}/beds/${bedId}/upload`);
+    await page.getByTestId('photo-input').setInputFiles(blank);
+    await page.getByTestId('reference-units').selectOption('mm');
+    await page.getByTestId('reference-size').fill('150');
+    await page.getByTestId('upload-submit').click();
+    await page.waitForURL(/\/checks\/[^/]+$/);
+    const failed = page.getByTestId('check-failed');
+    await expect.poll(() => failed.isVisible(), { timeout: 60_000, interval: 300 }).toBe(true);
+    const text = (await failed.textContent()) ?? '';
+    expect(text).toContain('What to try');
+    expect(await failed.getByRole('link', { name: 'Upload another photo' }).getAttribute('href')).toBe(`/beds/${bedId}/upload`);
+    const checkId = new URL(page.url()).pathname.split('/').pop()!;
+    // The API says the same, with the reason the page shows.
+    const view = ((await (await page.request.get(`${baseUrl}/api/checks/${checkId}`)).json()) as { check: { status: string; error?: string } }).check;
+    expect(view.status).toBe('failed');
+    expect(view.error && text.includes(view.error)).toBe(true);
+    await shoot(page, 'check-failed');
   });
 });
