@@ -44,18 +44,7 @@ async function child(dir: string): Promise<void> {
   const centroid = scoreDetections(last.points, truth);
   const edge = scoreDetections((await detectFromImage(bytes, pattern, { referenceMm: truth.target.sizeMm, method: 'edge' })).points, truth);
   const pos = positionErrorMm(last.report, truth);
-  // panel offsets, relative to the first panel (the frames' common offset drops out)
-  const rp = last.report.panels;
-  const tp = truth.errors.panels as { id: string; dx: number; dy: number }[];
-  let pe = 0;
-  let pn = 0;
-  const r0 = rp.find((p) => p.id === tp[0]!.id);
-  for (const t of tp.slice(1)) {
-    const r = rp.find((p) => p.id === t.id);
-    if (!r || !r0) continue;
-    pe += (r.dx - r0.dx - (t.dx - tp[0]!.dx)) ** 2 + (r.dy - r0.dy - (t.dy - tp[0]!.dy)) ** 2;
-    pn++;
-  }
+  const panelErr = panelOffsetErrorMm(last.report.panels, truth.errors.panels, pattern.panels ?? []);
   // candidate pass: ours (reduced) and the same pass in wasm on the full image
   const photo = await loadPhoto(bytes);
   const { cv } = await getCv();
@@ -101,9 +90,59 @@ async function child(dir: string): Promise<void> {
     coldMs: Math.round(coldMs), medianMs: Math.round(times[2]!), timingsMs: last.meta.timingsMs, peakRssMb: Math.round(ru.maxRSS / 1024),
     centroid: { rmsPx: +centroid.rmsPx.toFixed(4), maxPx: +centroid.maxPx.toFixed(3), found: centroid.found, visible: centroid.visible, foundPct: +(100 * centroid.foundFraction).toFixed(2), falseDetections: centroid.falseDetections, cornerRmsPx: +centroid.cornerRmsPx.toFixed(3) },
     edge: { rmsPx: +edge.rmsPx.toFixed(4), foundPct: +(100 * edge.foundFraction).toFixed(2), falseDetections: edge.falseDetections },
-    positionRmsMm: +pos.rmsMm.toFixed(4), positionsCompared: pos.n, panelOffsetRmsMm: pn ? +Math.sqrt(pe / pn).toFixed(4) : null,
+    positionRmsMm: +pos.rmsMm.toFixed(4), positionsCompared: pos.n, panelOffsetRmsMm: panelErr ? +panelErr.detrendedRmsMm.toFixed(4) : null,
+    panelOffsetRawRmsMm: panelErr ? +panelErr.rawRmsMm.toFixed(4) : null, panelTurnRmsDeg: panelErr ? +panelErr.turnRmsDeg.toFixed(5) : null,
     candidatePass: { oursReducedMs: +oursMs.toFixed(1), wasmFullMs: +wasmFullMs.toFixed(1), pgm },
   })}\n`);
+}
+
+/**
+ * Panel-offset error, like with like (issue 3's bed model). The report states each panel's dx, dy (mm) and turn
+ * about its own centre with zero mean over the panels: a common move and a common turn of all panels belong to the
+ * lattice's placement. The renderer's truth applies the same turn about the same centre but in no gauge, so its
+ * common turn ρ̄ (about the panel centres' centroid) is taken out first — it moves panel j by ρ̄ × (c_j − c̄), e.g.
+ * 0.01° across 650 mm ≈ 0.11 mm — then its common offset. `detrendedRmsMm` also removes the linear trend over panel
+ * centres that trades against scale X (dx ∝ x), scale Y (dy ∝ y) and squareness (dx ∝ y); `rawRmsMm` does not.
+ * Bed mm; RMS per axis.
+ */
+function panelOffsetErrorMm(
+  report: { id: string; dx: number; dy: number; rotationDeg: number }[],
+  truth: { id: string; dx: number; dy: number; rotationDeg: number }[],
+  panels: { id: string; x: number; y: number; width: number; height: number }[],
+): { rawRmsMm: number; detrendedRmsMm: number; turnRmsDeg: number } | null {
+  const rows = truth.flatMap((t) => {
+    const r = report.find((p) => p.id === t.id), q = panels.find((p) => p.id === t.id);
+    return r && q ? [{ r, t, cx: q.x + q.width / 2, cy: q.y + q.height / 2 }] : [];
+  });
+  const n = rows.length;
+  if (n < 2) return null;
+  const mean = (f: (o: (typeof rows)[number]) => number) => rows.reduce((s, o) => s + f(o), 0) / n;
+  const xm = mean((o) => o.cx), ym = mean((o) => o.cy), rm = (mean((o) => o.t.rotationDeg) * Math.PI) / 180;
+  const tdx = rows.map((o) => o.t.dx + rm * (o.cy - ym)), tdy = rows.map((o) => o.t.dy - rm * (o.cx - xm));
+  const mdx = tdx.reduce((a, b) => a + b, 0) / n, mdy = tdy.reduce((a, b) => a + b, 0) / n;
+  const ex = rows.map((o, j) => o.r.dx - (tdx[j]! - mdx)), ey = rows.map((o, j) => o.r.dy - (tdy[j]! - mdy));
+  const rdm = mean((o) => o.t.rotationDeg);
+  const et = rows.map((o) => o.r.rotationDeg - (o.t.rotationDeg - rdm));
+  // Least squares e ≈ a + Σ b_i u_i over the given centred regressors (those with spread).
+  const detrend = (e: number[], regs: number[][]) => {
+    const X = regs.filter((u) => u.some((v) => Math.abs(v) > 1e-9));
+    const cols = [rows.map(() => 1), ...X];
+    const k = cols.length;
+    if (k >= n) return e.map(() => 0);
+    const A = cols.map((a) => cols.map((b) => a.reduce((s, v, i) => s + v * b[i]!, 0)));
+    const y = cols.map((a) => a.reduce((s, v, i) => s + v * e[i]!, 0));
+    for (let i = 0; i < k; i++) for (let r = i + 1; r < k; r++) { const f = A[r]![i]! / A[i]![i]!; for (let c = i; c < k; c++) A[r]![c]! -= f * A[i]![c]!; y[r]! -= f * y[i]!; }
+    const b = new Array<number>(k).fill(0);
+    for (let i = k - 1; i >= 0; i--) { let s = y[i]!; for (let c = i + 1; c < k; c++) s -= A[i]![c]! * b[c]!; b[i] = s / A[i]![i]!; }
+    return e.map((v, i) => v - cols.reduce((s, col, c) => s + b[c]! * col[i]!, 0));
+  };
+  const ux = rows.map((o) => o.cx - xm), uy = rows.map((o) => o.cy - ym);
+  const rms = (e: number[]) => Math.sqrt(e.reduce((s, v) => s + v * v, 0) / e.length);
+  return {
+    rawRmsMm: Math.hypot(rms(ex), rms(ey)) / Math.SQRT2,
+    detrendedRmsMm: Math.hypot(rms(detrend(ex, [ux, uy])), rms(detrend(ey, [uy]))) / Math.SQRT2,
+    turnRmsDeg: rms(et),
+  };
 }
 
 const NATIVE = `
@@ -163,6 +202,7 @@ async function main(): Promise<void> {
       falseDetections: results.reduce((a, r) => a + (r.centroid as { falseDetections: number }).falseDetections, 0),
       worstPositionRmsMm: Math.max(...results.map((r) => r.positionRmsMm as number)),
       worstPanelOffsetRmsMm: Math.max(...results.map((r) => (r.panelOffsetRmsMm as number | null) ?? 0)),
+      worstPanelOffsetRawRmsMm: Math.max(...results.map((r) => (r.panelOffsetRawRmsMm as number | null) ?? 0)),
     },
     scenes: results,
   }, null, 1)}\n`);
