@@ -60,6 +60,16 @@ function median(a: number[]): number {
   return s[Math.floor(s.length / 2)] ?? 0;
 }
 
+/** Median of the first `n` values of a scratch buffer (sorted in place). */
+function medianInPlace(a: Float64Array, n: number): number {
+  const s = a.subarray(0, n).sort();
+  return s[Math.floor(n / 2)] ?? 0;
+}
+
+// scratch for the level samples of refineHole (1 + 2·16 inside, 3·32 outside)
+const INNER = new Float64Array(33);
+const OUTER = new Float64Array(96);
+
 /** Kåsa algebraic circle fit: centre and radius through points (least squares on x² + y² + Dx + Ey + F = 0). */
 export function fitCircle(pts: [number, number][]): { cx: number; cy: number; r: number } | null {
   const n = pts.length;
@@ -118,12 +128,12 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: H3, x0: 
   let Lout = 0;
   let r = rMm;
   const levels = () => {
-    const inn: number[] = [];
-    for (const f of [0, 0.25, 0.45]) for (let k = 0; k < (f === 0 ? 1 : 16); k++) inn.push(at(cx + f * r * Math.cos((k * Math.PI) / 8), cy + f * r * Math.sin((k * Math.PI) / 8)));
-    const out: number[] = [];
-    for (const e of [2.5, 3.5, 4.5]) for (let k = 0; k < 32; k++) out.push(at(cx + (r + e * d) * Math.cos((k * Math.PI) / 16), cy + (r + e * d) * Math.sin((k * Math.PI) / 16)));
-    Lin = median(inn);
-    Lout = median(out);
+    let n = 0;
+    for (const f of [0, 0.25, 0.45]) for (let k = 0; k < (f === 0 ? 1 : 16); k++) INNER[n++] = at(cx + f * r * Math.cos((k * Math.PI) / 8), cy + f * r * Math.sin((k * Math.PI) / 8));
+    Lin = medianInPlace(INNER, n);
+    n = 0;
+    for (const e of [2.5, 3.5, 4.5]) for (let k = 0; k < 32; k++) OUTER[n++] = at(cx + (r + e * d) * Math.cos((k * Math.PI) / 16), cy + (r + e * d) * Math.sin((k * Math.PI) / 16));
+    Lout = medianInPlace(OUTER, n);
   };
   // edge points by rays: where the profile first climbs through the mid level near the expected radius
   const rays = (K: number) => {
@@ -255,6 +265,20 @@ export async function findHoles(
   const contours = new cv.MatVector() as { size(): number; get(i: number): CvMat; delete(): void };
   const hier = new cv.Mat() as CvMat;
   const cands: { x: number; y: number; fam: FamilySize }[] = [];
+  // candidates bucketed on the bed plane (cells of half the largest diameter) so that "is one near?" looks at 3 × 3 cells
+  const cell = 0.5 * maxD;
+  const grid = new Map<number, { x: number; y: number }[]>();
+  const key = (i: number, j: number) => i * 1_000_003 + j;
+  const near = (x: number, y: number, dist: number) => {
+    const i0 = Math.floor(x / cell);
+    const j0 = Math.floor(y / cell);
+    for (let i = i0 - 1; i <= i0 + 1; i++)
+      for (let j = j0 - 1; j <= j0 + 1; j++) {
+        const b = grid.get(key(i, j));
+        if (b && b.some((q) => Math.hypot(q.x - x, q.y - y) < dist)) return true;
+      }
+    return false;
+  };
   try {
     // Two offsets: a mild one, and a strict one that parts a dark bore from a flange darker than the surface
     // (brass on light plywood); a hole found twice is one detection after refinement.
@@ -267,6 +291,8 @@ export async function findHoles(
       for (let i = 0; i < n; i++) {
         const c = contours.get(i);
         try {
+          // a closed chain of n pixel steps (each ≤ √2 px) encloses at most n²/(2π) px²: skip the specks unmeasured
+          if ((c.rows * c.rows) / (2 * Math.PI) < minArea) continue;
           const m = cv.moments(c, false) as { m00: number; m10: number; m01: number };
           const area = m.m00;
           if (area < minArea) continue;
@@ -289,7 +315,13 @@ export async function findHoles(
               best = f;
             }
           }
-          if (best && bestErr < 0.5 && !cands.some((q) => Math.hypot(q.x - b[0], q.y - b[1]) < 0.5 * best!.diameterMm)) cands.push({ x: b[0], y: b[1], fam: best });
+          if (best && bestErr < 0.5 && !near(b[0], b[1], 0.5 * best.diameterMm)) {
+            cands.push({ x: b[0], y: b[1], fam: best });
+            const k = key(Math.floor(b[0] / cell), Math.floor(b[1] / cell));
+            const bucket = grid.get(k);
+            if (bucket) bucket.push({ x: b[0], y: b[1] });
+            else grid.set(k, [{ x: b[0], y: b[1] }]);
+          }
         } finally {
           c.delete();
         }
