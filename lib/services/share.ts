@@ -14,6 +14,7 @@ import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
 import { getCheck, getCheckById } from '@/db/queries/checks';
 import { listComments, type CommentView } from '@/db/queries/comments';
+import { hitRateLimit } from '@/db/queries/rate-limits';
 import * as q from '@/db/queries/share-links';
 import { getWorkshop } from '@/db/queries/workshops';
 import type { Report } from '@/lib/geometry/contract';
@@ -25,6 +26,8 @@ import { loadFinishedCheck, publicReport } from './share-report';
 
 export const SHARE_DEFAULT_DAYS = 14;
 export const SHARE_MAX_DAYS = 90;
+/** Report mails one person may send per hour (the address is theirs to choose: keep it from becoming a spam relay). */
+export const SEND_LIMIT_PER_HOUR = 30;
 const DAY_MS = 24 * 3600 * 1000;
 
 /** base64url of 32 bytes: 43 characters. */
@@ -67,6 +70,8 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
   authorize(actor, 'workshop:read');
   const { check, report, bedName } = await loadFinishedCheck(db, actor.workshopId, checkId);
   authorize(actor, 'share:manage');
+  const limit = await hitRateLimit(db, `share-send:${actor.user.id}`, 3600e3);
+  if (limit.count > SEND_LIMIT_PER_HOUR) throw new AppError('rate_limited', 429, `You have sent ${SEND_LIMIT_PER_HOUR} reports in the last hour; try again later.`);
   const workshop = await getWorkshop(db, actor.workshopId);
   const token = newShareToken();
   const url = shareUrl(baseUrl, token);

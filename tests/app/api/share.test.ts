@@ -11,7 +11,7 @@ import { POST as sendPost } from '@/app/api/checks/[id]/send/route';
 import { DELETE as linkDelete } from '@/app/api/share-links/[id]/route';
 import { GET as sharedGet } from '@/app/api/shared/[token]/route';
 import { GET as sharedPdf } from '@/app/api/shared/[token]/report.pdf/route';
-import { outgoingMail, shareLinks } from '@/db/schema';
+import { outgoingMail, rateLimits, shareLinks } from '@/db/schema';
 import { startSession } from '@/lib/auth/session';
 import type { Actor } from '@/lib/services/actor';
 import { addComment } from '@/lib/services/comments';
@@ -169,6 +169,16 @@ describe('sending a report to a helper', () => {
     expect(m.text).toContain('Sharing shop');
     expect(m.html).toContain('data:image/png;base64,');
     expect((await openShared(tokenOf(link.url))).status).toBe(200);
+  });
+
+  it('stops a sender after 30 report mails in an hour (429)', async () => {
+    const sender = await addMember(t.db, owner.workshopId, 'machinist');
+    const c = `gp_session=${await startSession(t.db, { userId: sender.user.id, workshopId: sender.workshopId })}`;
+    // the limit counts per sender in rate_limits; fill the hour's window as 30 sends would
+    await t.db.insert(rateLimits).values({ key: `share-send:${sender.user.id}`, count: 30, resetAt: Date.now() + 3600e3 });
+    const r = await call(sendPost, { cookie: c, body: { email: 'limit@example.test' }, params: { id: checkId } });
+    expect(r.status).toBe(429);
+    expect(await t.db.select().from(outgoingMail).where(eq(outgoingMail.toAddress, 'limit@example.test'))).toHaveLength(0);
   });
 
   it("refuses a reviewer's send and queues no mail", async () => {
