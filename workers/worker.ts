@@ -46,6 +46,14 @@ async function main() {
   }
   // the outbox (report links, invitations, password resets): see lib/services/share-mail.ts
   const mail = await startMailDelivery(db, { log: jsonLog });
+  // opencv-wasm and the analysis code load once per process, before the first job rather than inside it
+  const t0 = performance.now();
+  try {
+    await (await import('@/lib/checks/pipeline')).warmAnalysis();
+    jsonLog('worker.warm', { ms: Math.round(performance.now() - t0) });
+  } catch (e) {
+    jsonLog('worker.warm-failed', { error: e instanceof Error ? e.message : String(e) });
+  }
   const worker = startWorker({
     db,
     storage,

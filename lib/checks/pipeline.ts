@@ -19,6 +19,25 @@ export const analysisDeps: AnalysisDeps = {
   isInputError: (e) => e instanceof VisionInputError || fitDeps.isInputError(e),
 };
 
+/**
+ * Loads what the first analysis would otherwise load inside the job: opencv-wasm (compiled once per process,
+ * its module reused by every job), the vision and fit code, and one tiny sharp decode. Called at worker start.
+ */
+export async function warmAnalysis(): Promise<void> {
+  const { getCv, matFromGrey } = await import('@/lib/vision/cv');
+  const { cv } = await getCv();
+  const src = matFromGrey(cv, new Uint8Array(32 * 32).fill(128), 32, 32);
+  const bin = new cv.Mat();
+  try {
+    cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, 11, 8);
+  } finally {
+    src.delete();
+    bin.delete();
+  }
+  const sharp = (await import('sharp')).default;
+  await sharp({ create: { width: 8, height: 8, channels: 3, background: '#808080' } }).jpeg().toBuffer().then((b) => sharp(b).raw().toBuffer());
+}
+
 /** The `check.analyze` job: the check's photo → report. */
 export function analyzeCheck(ctx: JobContext): Promise<void> {
   return runCheckAnalysis(ctx, analysisDeps);
