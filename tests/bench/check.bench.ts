@@ -9,7 +9,7 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { eq } from 'drizzle-orm';
@@ -74,6 +74,7 @@ const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); retu
 
 // idle: one worker, one photo at a time
 const w1 = await startWorker('bench-1');
+const loadBefore = loadavg().map((x) => +x.toFixed(2));
 const idle: number[] = [];
 const statuses: string[] = [];
 for (let i = 0; i < photosN; i++) {
@@ -99,6 +100,8 @@ await Promise.all([stop(w1), stop(w2)]);
 
 console.log(JSON.stringify({
   bench: 'check',
+  // the machine's load (1, 5, 15 min) before the idle runs and at the end: times stretch with other work
+  loadAverage: { before: loadBefore, after: loadavg().map((x) => +x.toFixed(2)) },
   photo: { width, height, supersample, megapixels: +(width * height / 1e6).toFixed(1), bytes: median(rendered.map((r) => r.jpeg.length)) },
   idle: { photos: photosN, medianMs: Math.round(median(idle)), worstMs: Math.round(Math.max(...idle)), statuses },
   burst: {

@@ -34,13 +34,19 @@ async function child(dir: string): Promise<void> {
   const first = await analyzeImage(bytes, pattern, { referenceMm: truth.target.sizeMm });
   const coldMs = performance.now() - t0;
   const times: number[] = [];
+  const cpuTimes: number[] = [];
   let last = first;
   for (let i = 0; i < 5; i++) {
     const t = performance.now();
+    const c = process.cpuUsage();
     last = await analyzeImage(bytes, pattern, { referenceMm: truth.target.sizeMm });
+    const u = process.cpuUsage(c);
     times.push(performance.now() - t);
+    // CPU time of this process (all its threads: libvips decodes on several), less sensitive to other load than wall time
+    cpuTimes.push((u.user + u.system) / 1000);
   }
   times.sort((a, b) => a - b);
+  cpuTimes.sort((a, b) => a - b);
   const centroid = scoreDetections(last.points, truth);
   const edge = scoreDetections((await detectFromImage(bytes, pattern, { referenceMm: truth.target.sizeMm, method: 'edge' })).points, truth);
   const pos = positionErrorMm(last.report, truth);
@@ -87,7 +93,7 @@ async function child(dir: string): Promise<void> {
   const ru = process.resourceUsage();
   process.stdout.write(`${JSON.stringify({
     scene: path.basename(dir), width: photo.width, height: photo.height, mmPerPx: Math.round(truth.mmPerPx * 1000) / 1000,
-    coldMs: Math.round(coldMs), medianMs: Math.round(times[2]!), timingsMs: last.meta.timingsMs, peakRssMb: Math.round(ru.maxRSS / 1024),
+    coldMs: Math.round(coldMs), medianMs: Math.round(times[2]!), medianCpuMs: Math.round(cpuTimes[2]!), loadAverage: os.loadavg().map((x) => +x.toFixed(2)), timingsMs: last.meta.timingsMs, peakRssMb: Math.round(ru.maxRSS / 1024),
     centroid: { rmsPx: +centroid.rmsPx.toFixed(4), maxPx: +centroid.maxPx.toFixed(3), found: centroid.found, visible: centroid.visible, foundPct: +(100 * centroid.foundFraction).toFixed(2), falseDetections: centroid.falseDetections, cornerRmsPx: +centroid.cornerRmsPx.toFixed(3) },
     edge: { rmsPx: +edge.rmsPx.toFixed(4), foundPct: +(100 * edge.foundFraction).toFixed(2), falseDetections: edge.falseDetections },
     positionRmsMm: +pos.rmsMm.toFixed(4), positionsCompared: pos.n, panelOffsetRmsMm: panelErr ? +panelErr.detrendedRmsMm.toFixed(4) : null,
@@ -195,6 +201,8 @@ async function main(): Promise<void> {
     bench: 'vision', cores: os.cpus().length, nativeOpenCv: hasNative,
     summary: {
       medianMs: med((r) => r.medianMs as number),
+      medianCpuMs: med((r) => r.medianCpuMs as number),
+      loadAverage: os.loadavg().map((x) => +x.toFixed(2)),
       maxPeakRssMb: Math.max(...results.map((r) => r.peakRssMb as number)),
       worstCentroidRmsPx: Math.max(...results.map((r) => (r.centroid as { rmsPx: number }).rmsPx)),
       worstEdgeRmsPx: Math.max(...results.map((r) => (r.edge as { rmsPx: number }).rmsPx)),
