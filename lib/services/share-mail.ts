@@ -10,8 +10,10 @@ import { createMailer, ensureLocalSmtp, runMailDelivery } from '@/lib/mail';
 import { mailConfigFromEnv } from '@/lib/mail/config';
 
 /** The environment the mail settings are read from: a demo without SMTP_HOST uses the local server. */
-export function mailEnv(env: NodeJS.ProcessEnv = process.env): Record<string, string | undefined> {
-  if (!env.SMTP_HOST && isDemoMode(env)) return { ...env, NODE_ENV: 'development' };
+type Env = Record<string, string | undefined>;
+
+export function mailEnv(env: Env = process.env): Env {
+  if (!env.SMTP_HOST && isDemoMode(env as NodeJS.ProcessEnv)) return { ...env, NODE_ENV: 'development' };
   return { ...env };
 }
 
@@ -22,7 +24,7 @@ export interface MailDelivery {
 }
 
 /** Starts delivering the outbox; null when MAIL_DELIVERY=0. Throws on invalid mail settings. */
-export async function startMailDelivery(db: Db, opts: { intervalMs?: number; log?: (event: string, detail: Record<string, unknown>) => void; env?: NodeJS.ProcessEnv } = {}): Promise<MailDelivery | null> {
+export async function startMailDelivery(db: Db, opts: { intervalMs?: number; log?: (event: string, detail: Record<string, unknown>) => void; env?: Env } = {}): Promise<MailDelivery | null> {
   const env = opts.env ?? process.env;
   if (env.MAIL_DELIVERY === '0' || env.MAIL_DELIVERY === 'false') return null;
   const menv = mailEnv(env);
