@@ -134,6 +134,9 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
         <button type="button" className="btn btn-quiet" onClick={() => window.print()}>Print</button>
         {detail.can.review && <Link className="btn btn-quiet" href={`/checks/${id}/review`} data-testid="open-review">Review detections</Link>}
         <Link className="btn btn-quiet" href={`/beds/${detail.check.bedId}/history`}>Bed history</Link>
+        <a className="btn btn-quiet" href={`/api/checks/${id}/report.pdf?units=${unit}`} download data-testid="export-pdf">PDF</a>
+        <Link className="btn btn-quiet" href={`/checks/${id}/share`} data-testid="open-share">Share and discuss</Link>
+        <Link className="btn btn-quiet" href={`/checks/${id}/fit`} data-testid="open-fit">Try an accessory</Link>
       </div>
 
       <section className="panel flex flex-col gap-3" aria-labelledby="map-h">
