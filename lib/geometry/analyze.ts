@@ -8,7 +8,7 @@ import { PatternSchema, PointsSchema, type Pattern, type Points, type Report } f
 import { decomposeAffine, type Mat2 } from './affine';
 import { fitBed, predictPx, toLattice, type BedModel } from './bedfit';
 import { defaultFocalPx, focalFromHomography, type Lens } from './camera';
-import { assign, familiesForDiameter, initialImageToBed, type Detections } from './correspond';
+import { assign, confusableOffsets, familiesForDiameter, initialImageToBed, type Detections } from './correspond';
 import { GeometryInputError } from './errors';
 import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, neighbourPanels, type Lattice } from './lattice';
@@ -129,6 +129,39 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     asg = assign(lat, bedXY, n, usable, famOf, (f) => 0.25 * minPitch(f));
     pr = pairs(asg);
     if (pr.src.length < MIN_MATCHED) throw new GeometryInputError('holes', `only ${pr.src.length} holes matched the pattern; at least ${MIN_MATCHED} are needed`);
+  }
+
+  // Whole-pitch placement, judged again through the refined map. The first choice was made in the square's own
+  // frame, which strong perspective stretches far from a small square, so it can be off by a pitch: the matched
+  // holes then fit a lattice one pitch over and the holes along one edge go unmatched. Through H1 (perspective
+  // included) every detection lands near a node of a placement; a shift by whole pitches of a family that matches
+  // more detections wins (ties keep the current placement, so a partial view keeps its centring).
+  {
+    const pitches = (axis: 'x' | 'y') => [...new Set(lat.families.map((f) => f.family.pitch[axis]))];
+    const inv = mat3Inv(H1);
+    mapAll((u, v) => applyH(inv, u, v));
+    const base = Float64Array.from(bedXY);
+    const count = (a: typeof asg) => a.posOf.reduce((c, p) => c + (p >= 0 ? 1 : 0), 0);
+    let best = { n: count(asg), a: asg };
+    // Offsets between families' origins too: families of one size interleaved (a staggered grid) can be taken
+    // one for the other.
+    const offs: [number, number][] = [];
+    lat.families.forEach((_, fi) => { for (const o of confusableOffsets(lat, fi)) if (!offs.some((q) => q[0] === o[0] && q[1] === o[1])) offs.push(o); });
+    for (const [ox, oy] of offs) for (const px of pitches('x')) for (const py of pitches('y'))
+      for (let kx = -2; kx <= 2; kx++) for (let ky = -2; ky <= 2; ky++) {
+        const sx = ox + kx * px, sy = oy + ky * py;
+        if (!sx && !sy) continue;
+        for (let i = 0; i < n; i++) { bedXY[2 * i] = base[2 * i]! + sx; bedXY[2 * i + 1] = base[2 * i + 1]! + sy; }
+        const a = assign(lat, bedXY, n, usable, famOf, (f) => 0.25 * minPitch(f));
+        const c = count(a);
+        if (c > best.n) best = { n: c, a };
+      }
+    bedXY.set(base);
+    if (best.a !== asg) {
+      asg = best.a;
+      pr = pairs(asg);
+      H1 = homographyDlt(pr.src, pr.dst);
+    }
   }
 
   const f0 = pts.image.focalPx ?? defaultFocalPx(W, Hh);

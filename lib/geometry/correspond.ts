@@ -106,25 +106,45 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   const step = Math.max(1, Math.floor(n / 600));
   for (let i = 0; i < n; i += step) if (usable[i] && famOf[i]!.length) sample.push(i);
   const centreX = (F.count.x - 1) / 2 - (ilo + ihi) / 2, centreY = (F.count.y - 1) / 2 - (jlo + jhi) / 2;
-  let best = { score: -1, off: Infinity, kx: 0, ky: 0 };
+  let best = { score: -1, off: Infinity, kx: 0, ky: 0, ox: 0, oy: 0 };
   const gate = 0.25 * Math.min(...l.families.map((f) => Math.min(f.family.pitch.x, f.family.pitch.y)));
   const maxCand = 2500;
   const kxL = kxs.length * kys.length > maxCand ? kxs.filter((_, i) => i % Math.ceil(kxs.length / 50) === 0) : kxs;
   const kyL = kxs.length * kys.length > maxCand ? kys.filter((_, i) => i % Math.ceil(kys.length / 50) === 0) : kys;
   const scores: number[] = [];
-  for (const kx of kxL) for (const ky of kyL) {
-    const tx = tx0 + kx * F.pitch.x, ty = ty0 + ky * F.pitch.y;
+  // Families of one hole size interleaved (a staggered grid) vote into one phase histogram, each axis on its own,
+  // so the phase found may mix one family's x with another's y: try the offsets between such families' origins too.
+  const offs = confusableOffsets(l, fm);
+  for (const [ox, oy] of offs) for (const kx of kxL) for (const ky of kyL) {
+    const tx = tx0 + ox + kx * F.pitch.x, ty = ty0 + oy + ky * F.pitch.y;
     let score = 0;
     for (const i of sample) for (const f of famOf[i]!) { if (nearestNode(l, f, bx[i]! + tx, by[i]! + ty).dist < gate) { score++; break; } }
     const off = Math.hypot(kx - centreX, ky - centreY);
     scores.push(score);
-    if (score > best.score || (score === best.score && off < best.off)) best = { score, off, kx, ky };
+    if (score > best.score || (score === best.score && off < best.off)) best = { score, off, kx, ky, ox, oy };
   }
   const tiedShifts = scores.filter((s) => s >= 0.98 * best.score).length;
-  const tx = tx0 + best.kx * F.pitch.x, ty = ty0 + best.ky * F.pitch.y;
+  const tx = tx0 + best.ox + best.kx * F.pitch.x, ty = ty0 + best.oy + best.ky * F.pitch.y;
   // bed = Rot(−θ)·square + t ; image → square is sqInv.
   const rigid: Mat3 = [cs, -sn, tx, sn, cs, ty, 0, 0, 1];
   return { H: mat3Mul(rigid, sqInv), tiedShifts };
+}
+
+/**
+ * Offsets (mm, bed frame) between family `fi`'s origin and those of families a detection cannot tell from it (hole
+ * diameters within 15 %), reduced to ±half `fi`'s pitch on each axis, per axis and together; [0, 0] first.
+ */
+export function confusableOffsets(l: Lattice, fi: number): [number, number][] {
+  const F = l.families[fi]!.family;
+  const wrap = (v: number, p: number) => v - p * Math.round(v / p);
+  const out: [number, number][] = [[0, 0]];
+  const add = (x: number, y: number) => { if (!out.some(([a, b]) => Math.abs(a - x) < 1e-9 && Math.abs(b - y) < 1e-9)) out.push([x, y]); };
+  for (const g of l.families) {
+    if (g.family === F || Math.abs(Math.log(g.family.holeDiameter / F.holeDiameter)) > Math.log(1.15)) continue;
+    const dx = wrap(g.family.origin.x - F.origin.x, F.pitch.x), dy = wrap(g.family.origin.y - F.origin.y, F.pitch.y);
+    add(dx, 0); add(0, dy); add(dx, dy);
+  }
+  return out;
 }
 
 export interface Assignment { posOf: Int32Array; detOf: Int32Array; distMm: Float64Array }
