@@ -49,15 +49,30 @@ export async function sealSession(data: SessionCookieData): Promise<string> {
   return sealData(data, { password: loadSessionSecret(), ttl: Math.floor(SESSION_TTL_MS / 1000) });
 }
 
+// Unsealing costs about a millisecond of crypto per request; the same sealed value always opens to the same
+// data, so it is remembered for a minute (bounded). Revocation is unaffected: resolveAuth still reads the
+// sessions row on every request.
+const unsealed = new Map<string, { data: SessionCookieData | null; until: number }>();
+const UNSEAL_CACHE_MS = 60_000;
+
 export async function unsealSession(value: string | undefined | null): Promise<SessionCookieData | null> {
   if (!value) return null;
+  const now = Date.now();
+  const hit = unsealed.get(value);
+  if (hit && hit.until > now) return hit.data;
+  let data: SessionCookieData | null;
   try {
     const raw = await unsealData<unknown>(value, { password: loadSessionSecret(), ttl: Math.floor(SESSION_TTL_MS / 1000) });
     const parsed = CookieDataSchema.safeParse(raw);
-    return parsed.success ? parsed.data : null;
+    data = parsed.success ? parsed.data : null;
   } catch {
-    return null;
+    data = null;
   }
+  if (data) {
+    if (unsealed.size >= 2000) unsealed.clear();
+    unsealed.set(value, { data, until: now + UNSEAL_CACHE_MS });
+  }
+  return data;
 }
 
 /** Reads one cookie from a Cookie header. */

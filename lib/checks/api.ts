@@ -13,7 +13,7 @@ import { authorize, type Actor } from '@/lib/services/actor';
 import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
 import { bedPatternForUpload, CornersSchema, discardUpload, IntakeError, queueCheck, storeUpload, type StoredUpload } from './intake';
 import { boundaryOf, MultipartError, readParts, readText } from './multipart';
-import { parsedReport } from './report-cache';
+import { parsedReport, reportBody } from './report-cache';
 
 /** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -120,14 +120,26 @@ export async function getCheckStatus(db: Db, actor: Actor, id: string): Promise<
   return checkStatusView(row);
 }
 
-async function finishedReport(db: Db, actor: Actor, id: string): Promise<Report> {
+async function finishedRow(db: Db, actor: Actor, id: string): Promise<{ id: string; reportJson: string }> {
   const row = await getCheck(db, actor.workshopId, id);
   if (!row) throw notFound('check');
   if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) {
     const why = row.status === 'failed' ? `The analysis failed: ${row.error ?? 'no reason recorded'}` : `The check is ${row.status}; the report is ready once it is done.`;
     throw new AppError('not_ready', 409, why);
   }
+  return { id: row.id, reportJson: row.reportJson };
+}
+
+async function finishedReport(db: Db, actor: Actor, id: string): Promise<Report> {
+  const row = await finishedRow(db, actor, id);
   return parsedReport(row.id, row.reportJson); // validated once per stored text (lib/checks/report-cache.ts)
+}
+
+/** The same report as JSON text, validated and serialised once per stored text (the report route sends it). */
+export async function getCheckReportJson(db: Db, actor: Actor, id: string): Promise<string> {
+  authorize(actor, 'workshop:read');
+  const row = await finishedRow(db, actor, id);
+  return reportBody(row.id, row.reportJson);
 }
 
 /** `GET /api/checks/{id}/report`: the measurement core's report JSON; 409 until the check is done. */

@@ -12,10 +12,9 @@ import { ReportSchema, type Report } from '@/lib/geometry/contract';
 /** Reports kept per process. */
 export const REPORT_CACHE_SIZE = 256;
 
-const cache = new Map<string, Report>();
+const cache = new Map<string, { report: Report; body?: string }>();
 
-/** The validated report of `reportJson` (stored for `checkId`), parsed once per distinct text. */
-export function parsedReport(checkId: string, reportJson: string): Report {
+function entry(checkId: string, reportJson: string): { report: Report; body?: string } {
   const key = `${checkId}:${createHash('sha1').update(reportJson).digest('base64url')}`;
   const hit = cache.get(key);
   if (hit) {
@@ -23,10 +22,22 @@ export function parsedReport(checkId: string, reportJson: string): Report {
     cache.set(key, hit);
     return hit;
   }
-  const report = ReportSchema.parse(JSON.parse(reportJson));
-  cache.set(key, report);
+  const made = { report: ReportSchema.parse(JSON.parse(reportJson)) };
+  cache.set(key, made);
   if (cache.size > REPORT_CACHE_SIZE) cache.delete(cache.keys().next().value!);
-  return report;
+  return made;
+}
+
+/** The validated report of `reportJson` (stored for `checkId`), parsed once per distinct text. */
+export function parsedReport(checkId: string, reportJson: string): Report {
+  return entry(checkId, reportJson).report;
+}
+
+/** The validated report of `reportJson` as JSON text, ready to send (serialised once per distinct text). */
+export function reportBody(checkId: string, reportJson: string): string {
+  const e = entry(checkId, reportJson);
+  e.body ??= JSON.stringify(e.report);
+  return e.body;
 }
 
 /** Entries held (for tests). */
