@@ -81,7 +81,7 @@ export function ZoomStage({ widthPx, heightPx, href, children, onTap, label, cla
 
   const onPointerDown = (e: React.PointerEvent<SVGSVGElement>) => {
     if ((e.target as Element).closest('[data-drag]')) return; // handles drag themselves
-    svgEl?.setPointerCapture(e.pointerId);
+    try { svgEl?.setPointerCapture(e.pointerId); } catch { /* a pointer that is already gone */ }
     pointers.current.set(e.pointerId, { x: e.clientX, y: e.clientY });
     gesture.current = { startView: view, start: new Map(pointers.current), moved: false, target: e.target };
   };

@@ -152,11 +152,13 @@ describe('report, review and comparison in the browser', () => {
     await page.getByTestId('mode-remove').click();
     const matched = page.locator('[data-testid="review-editor"] svg g[data-mark]:not([data-mark="unmatched"]):not([data-mark="missing"])');
     await expect.poll(() => matched.count()).toBeGreaterThan(10);
+    await matched.nth(5).scrollIntoViewIfNeeded();
     const box = (await matched.nth(5).boundingBox())!;
     await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2);
     await expect.poll(() => page.getByTestId('edit-summary').textContent()).toContain('1 removed');
-    const spot = (await page.locator('[data-testid="review-editor"] svg image').boundingBox())!;
     await page.getByTestId('mode-add').click();
+    await page.locator('[data-testid="review-editor"] svg image').scrollIntoViewIfNeeded();
+    const spot = (await page.locator('[data-testid="review-editor"] svg image').boundingBox())!;
     await page.mouse.click(spot.x + spot.width * 0.5, spot.y + spot.height * 0.03);
     await expect.poll(() => page.getByTestId('edit-summary').textContent()).toContain('1 hole added');
     await page.getByTestId('refit').click();
