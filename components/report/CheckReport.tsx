@@ -17,6 +17,7 @@ import { MARK_ORDER, type Mark } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
 import { ZoomStage } from '@/components/review/ZoomStage';
+import { CommentsPanel } from '@/components/comments/Comments';
 import { BedMap, EXAGGERATIONS, autoExaggeration, type MapItem } from './BedMap';
 import { DeviationHistogram } from './DeviationHistogram';
 import { LatticeFigures } from './LatticeFigures';
@@ -196,6 +197,10 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
           <p>The photo is not available for this check.</p>
         )}
       </section>
+      <div className="no-print">
+        {/* comments on the check or one position; deleting is on the share-and-discuss page */}
+        <CommentsPanel checkId={id} meId="" isOwner={false} positionLabels={report.positions.map((p) => p.label)} onSelectPosition={setSelected} />
+      </div>
       <p className="print-only text-sm">Gridproof measures from a photo; it does not replace the machine maker’s checks. Machine off before you reach onto the bed.</p>
     </article>
   );
