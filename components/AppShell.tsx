@@ -27,7 +27,7 @@ export function AppShell({ auth, children }: { auth: Auth; children: ReactNode }
       <header className="flex flex-wrap items-center gap-x-6 gap-y-3 border-b-2 border-line py-4">
         <Brand />
         {actor && <WorkshopSwitch current={actor.workshopId} workshops={auth.workshops} />}
-        <nav aria-label="Main" className="flex gap-2">
+        <nav aria-label="Main" className="flex flex-wrap gap-2">
           <Link href="/" className="btn btn-quiet">
             Beds
           </Link>
@@ -55,7 +55,7 @@ export function AppShell({ auth, children }: { auth: Auth; children: ReactNode }
           <SignOutButton />
         </div>
       </header>
-      <main className="flex-1 py-6">{children}</main>
+      <main className="min-w-0 flex-1 py-6">{children}</main>
       <footer className="border-t border-line py-4 text-sm text-muted">
         Gridproof measures from a photo; it does not replace a machine maker&apos;s checks. Machine off before you reach onto the bed.
       </footer>
