@@ -148,6 +148,19 @@ describe('report, review and comparison in the browser', () => {
     await expect.poll(vb).toBeLessThan(fullWidth * 0.7);
     await page.getByRole('button', { name: 'Whole photo' }).click();
     await expect.poll(vb).toBe(fullWidth);
+    // two fingers spread apart on the photo (touch pointer events, as a phone sends them; ids no real pointer
+    // has, so no capture is taken from the mouse): it zooms in
+    await stage.evaluate((el) => {
+      const r = el.getBoundingClientRect();
+      const cx = r.left + r.width / 2, cy = r.top + r.height / 2;
+      const ev = (type: string, id: number, x: number) => el.dispatchEvent(new PointerEvent(type, { pointerId: id, pointerType: 'touch', isPrimary: id === 11, clientX: x, clientY: cy, bubbles: true, cancelable: true }));
+      ev('pointerdown', 11, cx - 30); ev('pointerdown', 12, cx + 30);
+      for (const d of [50, 80, 110, 140]) { ev('pointermove', 11, cx - d); ev('pointermove', 12, cx + d); }
+      ev('pointerup', 11, cx - 140); ev('pointerup', 12, cx + 140);
+    });
+    await expect.poll(vb).toBeLessThan(fullWidth * 0.5);
+    await page.getByRole('button', { name: 'Whole photo' }).click();
+    await expect.poll(vb).toBe(fullWidth);
     await shoot(page, 'review');
     await page.getByTestId('mode-remove').click();
     const matched = page.locator('[data-testid="review-editor"] svg g[data-mark]:not([data-mark="unmatched"]):not([data-mark="missing"])');
