@@ -1,7 +1,7 @@
 /**
  * The working-together pages in Debian's chromium against the built app: the photo guide with its cautions,
  * the printable target, the accessory library (a preset added from the page), an accessory tried on a finished
- * check (one placement and the map of every placement), a share link made from the page, and the owner's dev
+ * check (one placement and the map of every placement), a comment on one position under the report, a share link made from the page, and the owner's dev
  * outbox (the demo runs with it) showing the report mail sent to a helper. The check's report is the
  * measurement core's own, of a synthetic photo of the bed, written into the app's database file.
  */
@@ -104,6 +104,16 @@ describe('working together, in the browser', () => {
     // (the reference square lies off the lattice, so every hole is seen)
     const [fits, binds] = [...summary.matchAll(/(\d+)/g)].map((m) => Number(m[1]));
     expect(fits! + binds!).toBe(8);
+  });
+
+  it('takes a comment on one position under the report', async () => {
+    await page.goto(`${baseUrl}/checks/${checkId}/report`);
+    const panel = page.getByTestId('comments-panel');
+    await panel.getByLabel('Position (optional)').fill('b2');
+    await panel.getByLabel('Comment', { exact: true }).fill('insert B2 spins in its hole');
+    await panel.getByRole('button', { name: 'Add comment' }).click();
+    await panel.getByTestId('comments').getByText('insert B2 spins in its hole').waitFor();
+    expect(await panel.getByTestId('comments').textContent()).toContain('insert B2');
   });
 
   it('makes a share link from the page and shows the report mail to a helper in the dev outbox', async () => {
