@@ -31,14 +31,17 @@ export function loadRealGrid(name: string, dotFraction = DOT_FRACTION[name] ?? 0
   const bytes = readFileSync(path.join(REAL_DIR, `${name}.png`));
   const fit = { toleranceMm: 1 };
   if (name.startsWith('asymmetric')) {
-    // OpenCV's asymmetric grid: row i, column j at ((2j + i mod 2) s, i s)
+    // OpenCV's asymmetric grid: row i, column j at ((2j + i mod 2) s, i s) in OpenCV's object frame. That frame,
+    // seen from the camera with image y down, is the mirror image of the bed frame seen from above (+X right, +Y
+    // away): an asymmetric grid is not mirror-symmetric, so the bed's pattern is OpenCV's mirrored in X,
+    // dot (i, j) at bed ((14 − 2j − i mod 2) s, (i + 1) s): rows of 7 from x = 2s (i even) and from x = s (i odd).
     const s = PITCH;
     const d = dotFraction * 2 * s;
     const pattern: Pattern = {
       version: 1, name, units: 'mm', bed: { width: 16 * s, height: 14 * s },
       families: [
-        { id: 'even', kind: 'other', holeDiameter: d, origin: { x: s, y: s }, pitch: { x: 2 * s, y: 2 * s }, count: { x: 7, y: 7 }, fit },
-        { id: 'odd', kind: 'other', holeDiameter: d, origin: { x: 2 * s, y: 2 * s }, pitch: { x: 2 * s, y: 2 * s }, count: { x: 7, y: 6 }, fit },
+        { id: 'even', kind: 'other', holeDiameter: d, origin: { x: 2 * s, y: s }, pitch: { x: 2 * s, y: 2 * s }, count: { x: 7, y: 7 }, fit },
+        { id: 'odd', kind: 'other', holeDiameter: d, origin: { x: s, y: 2 * s }, pitch: { x: 2 * s, y: 2 * s }, count: { x: 7, y: 6 }, fit },
       ],
     };
     const at = (i: number, j: number) => ref[i * 7 + j]!;
