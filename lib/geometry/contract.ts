@@ -151,6 +151,7 @@ export const ReportSchema = z.object({
   units: z.literal('mm'),
   pattern: z.object({ name: z.string() }).passthrough(),
   positions: z.array(ReportPositionSchema),
+  /** Detections that match no nominal position, in image px (origin top-left, +y down). */
   unmatched: z.array(z.object({ x: finite, y: finite })),
   panels: z.array(ReportPanelSchema),
   /** Steps between neighbouring panels: relative offset at their shared seam, mm. */

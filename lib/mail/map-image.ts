@@ -56,11 +56,6 @@ export function renderDeviationMapSvg(report: Report, opts: MapImageOptions = {}
       parts.push(`<line x1="${f(cx)}" y1="${f(cy)}" x2="${f(ex)}" y2="${f(ey)}" stroke="${colour}" stroke-width="1"/>`);
     }
   }
-  for (const u of report.unmatched) {
-    const cx = X(u.x);
-    const cy = Y(u.y);
-    parts.push(`<path d="M${f(cx - dot)} ${f(cy - dot)}L${f(cx + dot)} ${f(cy + dot)}M${f(cx - dot)} ${f(cy + dot)}L${f(cx + dot)} ${f(cy - dot)}" stroke="#1a2120" stroke-width="0.8"/>`);
-  }
   const ly = H - 8;
   let lx = pad;
   for (const v of ['in', 'marginal', 'out', 'missing'] as const) {

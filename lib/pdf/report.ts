@@ -187,13 +187,6 @@ function drawMap(f: Flow, report: Report) {
       }
     }
   }
-  for (const u of report.unmatched) {
-    const cx = px(u.x);
-    const cy = py(u.y);
-    if (cx < x0 || cx > x0 + drawW || cy < y0 || cy > y0 + drawH) continue;
-    page.drawLine({ start: { x: cx - dot, y: cy - dot }, end: { x: cx + dot, y: cy + dot }, thickness: 0.5, color: INK });
-    page.drawLine({ start: { x: cx - dot, y: cy + dot }, end: { x: cx + dot, y: cy - dot }, thickness: 0.5, color: INK });
-  }
   page.drawText('operator side (front)', { x: x0, y: y0 - 9, size: 6.5, font: f.regular, color: MUTED });
   f.y = y0 - 12;
   // Legend
@@ -205,7 +198,7 @@ function drawMap(f: Flow, report: Report) {
     page.drawText(v, { x: lx + 9, y: f.y, size: 7.5, font: f.regular, color: INK });
     lx += 58;
   }
-  page.drawText(drawable(f.regular, `x  unmatched hole.   Arrows: deviation from nominal, drawn ${exaggeration}x larger than the map scale.`), { x: lx, y: f.y, size: 7.5, font: f.regular, color: INK });
+  page.drawText(drawable(f.regular, `Arrows: deviation from nominal, drawn ${exaggeration}x larger than the map scale.`), { x: lx, y: f.y, size: 7.5, font: f.regular, color: INK });
 }
 
 /** Renders a check's report as PDF bytes. */
