@@ -36,6 +36,8 @@ export default defineConfig({
           // One app server for all e2e files; run them one after another.
           fileParallelism: false,
           testTimeout: 90_000,
+          // A page answers within seconds on a busy 2-core machine (bcrypt, first render), not within the 1 s default.
+          expect: { poll: { timeout: 15_000, interval: 100 } },
         },
       },
     ],
