@@ -17,7 +17,7 @@ import { cookies } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { z } from 'zod';
 import { getDb, type Db } from '@/db/client';
-import { getMembership, listUserWorkshops } from '@/db/queries/memberships';
+import { listUserWorkshops } from '@/db/queries/memberships';
 import { getLiveSession, insertSession, revokeSession, touchSession } from '@/db/queries/sessions';
 import { getUserById, toPublicUser } from '@/db/queries/users';
 import { loadSessionSecret } from '@/lib/auth/secret';
@@ -120,10 +120,9 @@ export async function resolveAuth(db: Db, data: SessionCookieData | null): Promi
   if (!session.lastSeenAt || now - session.lastSeenAt > TOUCH_EVERY_MS) await touchSession(db, session.id, now);
   const user = toPublicUser(userRow);
   const workshops = (await listUserWorkshops(db, user.id)).map((w) => ({ workshopId: w.workshopId, name: w.name, role: w.role }));
-  let actor: Actor | null = null;
-  const chosen = data.wid ? await getMembership(db, data.wid, user.id) : undefined;
-  if (chosen) actor = { user, workshopId: chosen.workshopId, role: chosen.role };
-  else if (workshops[0]) actor = { user, workshopId: workshops[0].workshopId, role: workshops[0].role };
+  // the chosen workshop's membership is one of the rows just read (memberships joined to workshops): no second query
+  const chosen = (data.wid ? workshops.find((w) => w.workshopId === data.wid) : undefined) ?? workshops[0];
+  const actor: Actor | null = chosen ? { user, workshopId: chosen.workshopId, role: chosen.role } : null;
   return { sessionId: session.id, user, actor, workshops };
 }
 
