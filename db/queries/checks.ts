@@ -80,6 +80,16 @@ export async function getCheck(db: Queryable, workshopId: string, id: string): P
   return row;
 }
 
+/** The columns a report read needs (no photo, detections or edits blobs), scoped by workshop. */
+export async function getCheckReportRow(db: Queryable, workshopId: string, id: string): Promise<Pick<CheckRow, 'id' | 'status' | 'error' | 'reportJson'> | undefined> {
+  const [row] = await db
+    .select({ id: checks.id, status: checks.status, error: checks.error, reportJson: checks.reportJson })
+    .from(checks)
+    .where(and(eq(checks.workshopId, workshopId), eq(checks.id, id)))
+    .limit(1);
+  return row;
+}
+
 /** A check by id alone, for the worker. */
 export async function getCheckById(db: Queryable, id: string): Promise<CheckRow | undefined> {
   const [row] = await db.select().from(checks).where(eq(checks.id, id)).limit(1);

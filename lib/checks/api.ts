@@ -5,7 +5,7 @@
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
-import { checkStatusView, getCheck, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
+import { checkStatusView, getCheck, getCheckReportRow, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
 import { compareReports, type Comparison } from '@/lib/geometry';
 import { PointsSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
@@ -121,7 +121,7 @@ export async function getCheckStatus(db: Db, actor: Actor, id: string): Promise<
 }
 
 async function finishedRow(db: Db, actor: Actor, id: string): Promise<{ id: string; reportJson: string }> {
-  const row = await getCheck(db, actor.workshopId, id);
+  const row = await getCheckReportRow(db, actor.workshopId, id);
   if (!row) throw notFound('check');
   if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) {
     const why = row.status === 'failed' ? `The analysis failed: ${row.error ?? 'no reason recorded'}` : `The check is ${row.status}; the report is ready once it is done.`;
