@@ -3,7 +3,7 @@
  * a link is live while it is neither revoked nor past `expiresAt` (ms since the Unix epoch). No cookies here.
  */
 import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm';
-import { shareLinks } from '@/db/schema';
+import { beds, checks, shareLinks } from '@/db/schema';
 import { newId, type Queryable } from './types';
 
 export type ShareLinkRow = typeof shareLinks.$inferSelect;
@@ -22,6 +22,26 @@ export async function findLiveShareLink(db: Queryable, tokenHash: string, now = 
   const [row] = await db
     .select()
     .from(shareLinks)
+    .where(and(eq(shareLinks.tokenHash, tokenHash), isNull(shareLinks.revokedAt), gt(shareLinks.expiresAt, now)))
+    .limit(1);
+  return row;
+}
+
+/**
+ * The live link with this token hash at `now` joined to its check and bed (the same workshop as the link's,
+ * enforced in the join), with only the columns a shared report shows: one indexed read per opening (the
+ * unique token index, then two primary keys), no photo, detections or edits blobs. Undefined when the link is
+ * unknown, revoked or expired, or its check is gone.
+ */
+export async function findLiveSharedCheck(db: Queryable, tokenHash: string, now = Date.now()) {
+  const [row] = await db
+    .select({
+      linkId: shareLinks.id, workshopId: shareLinks.workshopId, checkId: shareLinks.checkId, expiresAt: shareLinks.expiresAt,
+      status: checks.status, title: checks.title, finishedAt: checks.finishedAt, createdAt: checks.createdAt, reportJson: checks.reportJson, bedName: beds.name,
+    })
+    .from(shareLinks)
+    .innerJoin(checks, and(eq(checks.id, shareLinks.checkId), eq(checks.workshopId, shareLinks.workshopId)))
+    .leftJoin(beds, and(eq(beds.id, checks.bedId), eq(beds.workshopId, shareLinks.workshopId)))
     .where(and(eq(shareLinks.tokenHash, tokenHash), isNull(shareLinks.revokedAt), gt(shareLinks.expiresAt, now)))
     .limit(1);
   return row;
@@ -55,6 +75,11 @@ export async function revokeShareLink(db: Queryable, workshopId: string, id: str
     .where(and(eq(shareLinks.workshopId, workshopId), eq(shareLinks.id, id), isNull(shareLinks.revokedAt)))
     .returning({ id: shareLinks.id });
   return rows.length > 0;
+}
+
+/** Counts one view: one atomic UPDATE by primary key, nothing read back (a shared page calls it per opening). */
+export async function recordShareLinkView(db: Queryable, id: string, now = Date.now()): Promise<void> {
+  await db.update(shareLinks).set({ viewCount: sql`${shareLinks.viewCount} + 1`, lastViewedAt: now }).where(eq(shareLinks.id, id));
 }
 
 /** Counts one view (atomic increment) and returns the new count. */

@@ -12,7 +12,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
-import { getCheck, getCheckById } from '@/db/queries/checks';
+import { getCheck } from '@/db/queries/checks';
 import { listComments, type CommentView } from '@/db/queries/comments';
 import { hitRateLimit } from '@/db/queries/rate-limits';
 import * as q from '@/db/queries/share-links';
@@ -20,6 +20,7 @@ import { getWorkshop } from '@/db/queries/workshops';
 import type { Report } from '@/lib/geometry/contract';
 import { AppError, notFound } from '@/lib/http/errors';
 import { queueMail, reportMailFromReport } from '@/lib/mail';
+import { parsedReport } from '@/lib/checks/report-cache';
 import { authorize, type Actor } from './actor';
 import { EmailSchema } from './auth';
 import { loadFinishedCheck, publicReport } from './share-report';
@@ -137,15 +138,33 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   if (!SHARE_TOKEN_PATTERN.test(token)) throw unknown();
   const now = opts.now ?? Date.now();
   const hash = hashShareToken(token);
-  const link = await q.findLiveShareLink(db, hash, now);
-  if (!link) {
+  // one read: the live link, its check and bed in the link's workshop, only the columns shown
+  const row = await q.findLiveSharedCheck(db, hash, now);
+  if (!row) {
     if (await q.findShareLinkByTokenHash(db, hash)) throw gone();
     throw unknown();
   }
-  const check = await getCheckById(db, link.checkId);
-  if (!check || check.workshopId !== link.workshopId) throw unknown();
-  const { report, bedName } = await loadFinishedCheck(db, link.workshopId, link.checkId).catch(() => { throw unknown(); });
-  if (opts.countView) await q.countShareLinkView(db, link.id, now);
-  const comments = (await listComments(db, link.workshopId, link.checkId)).map((c) => ({ id: c.id, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt, authorName: c.authorName }));
-  return { bedName, checkTitle: check.title, checkedAt: check.finishedAt ?? check.createdAt, expiresAt: link.expiresAt, report: publicReport(report), comments };
+  if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) throw unknown();
+  let report: Report;
+  try {
+    report = sharedReportOf(parsedReport(row.checkId, row.reportJson));
+  } catch {
+    throw unknown();
+  }
+  const [comments] = await Promise.all([
+    listComments(db, row.workshopId, row.checkId),
+    opts.countView ? q.recordShareLinkView(db, row.linkId, now) : undefined,
+  ]);
+  return {
+    bedName: row.bedName ?? 'Bed', checkTitle: row.title, checkedAt: row.finishedAt ?? row.createdAt, expiresAt: row.expiresAt, report,
+    comments: comments.map((c) => ({ id: c.id, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt, authorName: c.authorName })),
+  };
+}
+
+// publicReport of each cached parsed report, made once: parsedReport hands out the same object per stored text
+const shared = new WeakMap<Report, Report>();
+function sharedReportOf(r: Report): Report {
+  let out = shared.get(r);
+  if (!out) shared.set(r, (out = publicReport(r)));
+  return out;
 }
