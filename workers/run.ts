@@ -94,6 +94,7 @@ export function startWorker(opts: WorkerOptions): RunningWorker {
       job,
       testDelayMs: opts.testDelayMs ?? 0,
       assertHeld: () => { if (!held) throw new LeaseLostError(job.id); },
+      log: (event, detail) => log(event, { workerId, jobId: job.id, ...detail }),
     };
     try {
       const handler = opts.handlers[job.kind];

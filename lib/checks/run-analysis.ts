@@ -65,6 +65,8 @@ export interface JobContext {
   assertHeld: () => void;
   /** Test hook: pause this long after reading the photo (WORKER_TEST_DELAY_MS, never in production). */
   testDelayMs: number;
+  /** The worker's log (one JSON line per event); each stage reached is logged as `job.stage`. */
+  log?: (event: string, detail: Record<string, unknown>) => void;
 }
 
 const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
@@ -115,6 +117,7 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
     const p = stageProgress(stage, fraction);
     if (p < last) return; // never go backwards
     last = p;
+    ctx.log?.('job.stage', { checkId: check.id, stage, progress: p });
     writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, p)).catch(() => undefined);
   };
 
@@ -166,7 +169,9 @@ export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'a
   if (!parsed.success) throw new PermanentJobError('The edited detections are not valid points. Open the review again and redo the edit.');
   let writes: Promise<unknown> = Promise.resolve();
   const report = (stage: Stage, fraction = 0) => {
-    writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, stageProgress(stage, fraction))).catch(() => undefined);
+    const p = stageProgress(stage, fraction);
+    ctx.log?.('job.stage', { checkId: check.id, stage, progress: p });
+    writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, p)).catch(() => undefined);
   };
   if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
   await fitAndSave(ctx, deps, check.id, pattern, parsed.data, report, () => writes);
