@@ -1,10 +1,10 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { PlainBrand } from '@/components/share/PlainBrand';
-import { SharedReport } from '@/components/share/SharedReport';
 import { getDb } from '@/db/client';
 import { AppError } from '@/lib/http/errors';
 import { openSharedReport, type SharedReportView } from '@/lib/services/share';
+import { SharedReportClient } from './SharedReportClient';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-referrer', robots: { index: false, follow: false } };
@@ -29,7 +29,8 @@ export default async function SharedPage({ params }: { params: Promise<{ token: 
         <PlainBrand />
         <span className="text-sm text-muted">A bed check shared with you · read only</span>
       </header>
-      <SharedReport data={view} token={token} />
+      <SharedReportClient data={view} token={token} />
+      <noscript><p className="text-lg font-bold">{view.bedName}: {view.report.summary.sentence}</p></noscript>
       <p className="text-sm text-muted">
         This link works until {new Date(view.expiresAt).toISOString().slice(0, 16).replace('T', ' ')} UTC unless its owner revokes it sooner.
         Before anyone reaches onto the machine to act on this report: spindle stopped, machine switched off; the machine maker&apos;s manual and local rules come first.
