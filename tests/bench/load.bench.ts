@@ -17,7 +17,7 @@ import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import autocannon from 'autocannon';
 import { closeDb, getDb, migrateDb } from '@/db/client';
@@ -108,10 +108,12 @@ async function hammer(path: string, headers: Record<string, string>) {
     errors: r.errors + r.timeouts,
     non2xx: r.non2xx,
     bytesPerSecond: Math.round(r.throughput.average),
+    // 1-minute load average when the run ended: other work on the machine shares its 2 cores
+    loadAverage1m: Math.round(loadavg()[0]! * 100) / 100,
   };
 }
 
-log('report API…');
+log(`report API… (load average ${loadavg().map((x) => x.toFixed(2)).join(' ')})`);
 const reportApi = await hammer(`/api/checks/${done.checkId}/report`, { cookie });
 log('shared page…');
 const sharedPage = await hammer(`/s/${token}`, { accept: 'text/html' });
