@@ -115,6 +115,17 @@ async function main() {
     const { seedDemo } = await import('@/lib/services/demo');
     const r = await seedDemo(db);
     if (r.seeded) console.log('[gridproof] seeded the demo workshop (logins on the sign-in page)');
+    if (r.seeded && r.owner && process.env.DEMO_PHOTOS !== '0') {
+      // two rendered photos of the demo jig plate, analysed by the worker once it is up
+      const { seedDemoChecks } = await import('@/lib/services/demo-checks');
+      const { getStorage } = await import('@/lib/storage');
+      try {
+        const n = await seedDemoChecks(db, getStorage(), r.owner);
+        console.log(`[gridproof] queued ${n} demo photos for the worker`);
+      } catch (err) {
+        console.error('[gridproof] could not queue the demo photos:', err instanceof Error ? err.message : err);
+      }
+    }
   }
   await closeDb();
 

@@ -10,13 +10,14 @@ import { insertMembership } from '@/db/queries/memberships';
 import { insertUser } from '@/db/queries/users';
 import { countWorkshops, insertWorkshop } from '@/db/queries/workshops';
 import { hashPassword } from '@/lib/auth/password';
+import type { Actor } from './actor';
 import { createBed } from './beds';
 import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from './demo-accounts';
 
 export { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME };
 
 /** Seeds the demo workshop if the database has no workshop at all; returns whether it did. */
-export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: string }> {
+export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: string; owner?: Actor }> {
   if ((await countWorkshops(db)) > 0) return { seeded: false };
   const passwordHash = await hashPassword(DEMO_PASSWORD);
   const { workshopId, ownerId } = await db.transaction(async (tx) => {
@@ -30,7 +31,7 @@ export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: 
     await recordAudit(tx, { workshopId: ws.id, actorId: ownerId, action: 'demo.seed' });
     return { workshopId: ws.id, ownerId };
   });
-  const owner = { user: { id: ownerId, email: DEMO_LOGINS[0]!.email, name: 'Wren', units: 'mm' as const }, workshopId, role: 'owner' as const };
+  const owner: Actor = { user: { id: ownerId, email: DEMO_LOGINS[0]!.email, name: 'Wren', units: 'mm' as const }, workshopId, role: 'owner' as const };
   await createBed(db, owner, {
     name: 'Main router spoilboard',
     notes: 'MDF spoilboard in four strips on the aluminium frame; last faced in spring.',
@@ -41,5 +42,5 @@ export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: 
     notes: 'Dog-hole top beside the router, used for glue-ups and fixtures.',
     preset: { preset: 'g96-d20', bedWidthMm: 1200, bedHeightMm: 800 },
   });
-  return { seeded: true, workshopId };
+  return { seeded: true, workshopId, owner };
 }
