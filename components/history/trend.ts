@@ -3,20 +3,11 @@
  * later re-fit does not reorder them), lengths converted
  * from mm to the display unit here (at display).
  */
+import type { CheckListRow } from '@/db/queries/beds';
 import { fromMm, type LengthUnit } from '@/lib/report/units';
 
-export interface HistoryRow {
-  id: string;
-  bedId: string;
-  title: string | null;
-  status: string;
-  verdict: string | null;
-  rmsMm: number | null;
-  maxMm: number | null;
-  outCount: number | null;
-  createdAt: number;
-  finishedAt: number | null;
-}
+/** One check in a bed's history: the same row the checks list query returns. */
+export type HistoryRow = CheckListRow;
 
 export interface TrendPoint { id: string; t: number; rms: number | null; max: number | null; out: number | null; verdict: string | null; title: string | null }
 
