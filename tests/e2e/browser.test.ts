@@ -3,31 +3,22 @@
  * reviewer sees no way to add a bed and the server refuses one posted from the page; another workshop's
  * bed page is a 404.
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { type BrowserContext, type Page } from 'playwright-core';
+import { launchChromium, type LaunchedChromium } from './chromium';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { Client, E2E_PASSWORD, e2eEmail } from './client';
 
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const baseUrl = inject('baseUrl');
-let profile: string;
+let browser: LaunchedChromium | undefined;
 let ctx: BrowserContext;
 
 beforeAll(async () => {
-  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
-  ctx = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-    viewport: { width: 412, height: 900 }, // a phone held in the shop
-  });
+  browser = await launchChromium({ width: 412, height: 900 }); // a phone held in the shop
+  ctx = browser.ctx;
 });
 afterAll(async () => {
-  await ctx?.close();
-  rmSync(profile, { recursive: true, force: true });
+  await browser?.close();
 });
 
 async function freshPage(): Promise<Page> {

@@ -12,7 +12,8 @@ import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync }
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { type BrowserContext, type Page } from 'playwright-core';
+import { launchChromium, type LaunchedChromium } from './chromium';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { presetById } from '@/lib/geometry';
 import type { Report } from '@/lib/geometry/contract';
@@ -20,36 +21,29 @@ import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
 import { Client } from './client';
 
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const SHOTS = join(ROOT, 'test-results');
 const baseUrl = inject('baseUrl');
 const dataDir = inject('dataDir');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
-let profile: string;
+let browser: LaunchedChromium | undefined;
 let work: string;
 let ctx: BrowserContext;
 let worker: WorkerProc;
 const api = new Client(baseUrl);
 
 beforeAll(async () => {
-  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
   work = mkdtempSync(join(tmpdir(), 'gridproof-report-'));
   mkdirSync(SHOTS, { recursive: true });
   worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
-  ctx = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-    viewport: { width: 1280, height: 900 },
-  });
+  browser = await launchChromium({ width: 1280, height: 900 });
+  ctx = browser.ctx;
   const r = await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD });
   expect(r.status).toBe(200);
 });
 afterAll(async () => {
-  await ctx?.close();
+  await browser?.close();
   if (worker) await stopWorker(worker);
-  rmSync(profile, { recursive: true, force: true });
   rmSync(work, { recursive: true, force: true });
 });
 

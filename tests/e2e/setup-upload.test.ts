@@ -10,40 +10,34 @@ import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync }
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { type BrowserContext, type Page } from 'playwright-core';
+import { launchChromium, type LaunchedChromium } from './chromium';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import sharp from 'sharp';
 import { PatternSchema } from '@/lib/geometry/contract';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
 
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const SHOTS = join(ROOT, 'test-results');
 const baseUrl = inject('baseUrl');
 const dataDir = inject('dataDir');
-let profile: string;
+let browser: LaunchedChromium | undefined;
 let work: string;
 let ctx: BrowserContext;
 let worker: WorkerProc;
 
 beforeAll(async () => {
-  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
   work = mkdtempSync(join(tmpdir(), 'gridproof-upload-'));
   mkdirSync(SHOTS, { recursive: true });
   // The worker that measures the upload, on the e2e server's database and storage.
   worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
-  ctx = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-    viewport: { width: 390, height: 844 },
-  });
+  browser = await launchChromium({ width: 390, height: 844 });
+  ctx = browser.ctx;
 });
 afterAll(async () => {
-  await ctx?.close();
+  await browser?.close();
   if (worker) await stopWorker(worker);
-  rmSync(profile, { recursive: true, force: true });
   rmSync(work, { recursive: true, force: true });
 });
 

@@ -8,11 +8,11 @@
  * The check's report is the measurement core's own, of a synthetic photo of the bed, written into the app's
  * database file as the worker would.
  */
-import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { eq } from 'drizzle-orm';
-import { chromium, type BrowserContext } from 'playwright-core';
+import { type BrowserContext } from 'playwright-core';
+import { launchChromium, type LaunchedChromium } from './chromium';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openDb } from '@/db/client';
@@ -23,7 +23,6 @@ import { makeScene } from '@/lib/geometry/synthetic';
 import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from '@/lib/services/demo-accounts';
 import { Client } from './client';
 
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const baseUrl = inject('baseUrl');
 const dataDir = inject('dataDir');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
@@ -37,7 +36,7 @@ const PATTERN: Pattern = {
 };
 
 const api = new Client(baseUrl);
-let profile: string;
+let browser: LaunchedChromium | undefined;
 let ctx: BrowserContext;
 let checkId: string;
 let shareUrl: string;
@@ -74,17 +73,11 @@ beforeAll(async () => {
   expect(share.status, share.text).toBe(201);
   ({ url: shareUrl, id: linkId } = (share.json as { link: { url: string; id: string } }).link);
 
-  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
-  ctx = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-    viewport: { width: 1280, height: 900 },
-  });
+  browser = await launchChromium({ width: 1280, height: 900 });
+  ctx = browser.ctx;
 });
 afterAll(async () => {
-  await ctx?.close();
-  if (profile) rmSync(profile, { recursive: true, force: true });
+  await browser?.close();
 });
 
 const SECRETS = () => [PHOTO_NAME, 'secret-site', CAMERA_MAKE, CAMERA_MODEL, DEMO_WORKSHOP_NAME, 'Main router spoilboard', 'Assembly table', ...DEMO_LOGINS.map((l) => l.email), 'focalSource', 'principalPoint', 'diagnostics', 'squareSidePx'];

@@ -5,11 +5,10 @@
  * outbox (the demo runs with it) showing the report mail sent to a helper. The check's report is the
  * measurement core's own, of a synthetic photo of the bed, written into the app's database file.
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { eq } from 'drizzle-orm';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { type BrowserContext, type Page } from 'playwright-core';
+import { launchChromium, type LaunchedChromium } from './chromium';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openDb } from '@/db/client';
@@ -20,7 +19,6 @@ import { makeScene } from '@/lib/geometry/synthetic';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { Client } from './client';
 
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 const baseUrl = inject('baseUrl');
 const dataDir = inject('dataDir');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
@@ -31,7 +29,7 @@ const PATTERN: Pattern = {
 };
 
 const api = new Client(baseUrl);
-let profile: string;
+let browser: LaunchedChromium | undefined;
 let ctx: BrowserContext;
 let page: Page;
 let checkId: string;
@@ -52,13 +50,8 @@ beforeAll(async () => {
   await db.update(checks).set({ status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() }).where(eq(checks.id, checkId));
   db.$client.close();
 
-  profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
-  ctx = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-    viewport: { width: 1280, height: 900 },
-  });
+  browser = await launchChromium({ width: 1280, height: 900 });
+  ctx = browser.ctx;
   page = await ctx.newPage();
   await page.goto(`${baseUrl}/sign-in`);
   await page.getByLabel('E-mail').fill(owner.email);
@@ -67,8 +60,7 @@ beforeAll(async () => {
   await page.waitForURL(`${baseUrl}/`);
 });
 afterAll(async () => {
-  await ctx?.close();
-  if (profile) rmSync(profile, { recursive: true, force: true });
+  await browser?.close();
 });
 
 describe('working together, in the browser', () => {
