@@ -1,15 +1,14 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
 import { AppShell } from '@/components/AppShell';
 import { BedActions } from '@/components/BedActions';
 import { SafetyNote } from '@/components/SafetyNote';
 import { Verdict } from '@/components/Verdict';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
 import { can } from '@/lib/services/actor';
 import { getBed } from '@/lib/services/beds';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Bed' };
 
@@ -19,13 +18,7 @@ const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle:
 export default async function BedPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
   const { actor, auth } = await requireActor();
-  let data: Awaited<ReturnType<typeof getBed>>;
-  try {
-    data = await getBed(await getDb(), actor, id);
-  } catch (err) {
-    if (err instanceof AppError && err.status === 404) notFound();
-    throw err;
-  }
+  const data = await orNotFound(getBed(await getDb(), actor, id));
   const { bed, checks, revisions } = data;
   const p = bed.pattern;
   return (

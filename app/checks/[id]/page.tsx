@@ -1,14 +1,13 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
 import { AppShell } from '@/components/AppShell';
 import { CheckStatus } from '@/components/check-status/CheckStatus';
 import { getBed } from '@/db/queries/beds';
 import { getCheckStatus } from '@/lib/checks/api';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
 import { can } from '@/lib/services/actor';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Check' };
 
@@ -16,13 +15,7 @@ export default async function CheckPage({ params }: { params: Promise<{ id: stri
   const { id } = await params;
   const { actor, auth } = await requireActor();
   const db = await getDb();
-  let view: Awaited<ReturnType<typeof getCheckStatus>>;
-  try {
-    view = await getCheckStatus(db, actor, id);
-  } catch (err) {
-    if (err instanceof AppError && err.status === 404) notFound();
-    throw err;
-  }
+  const view = await orNotFound(getCheckStatus(db, actor, id));
   const bed = await getBed(db, actor.workshopId, view.bedId);
   return (
     <AppShell auth={auth}>

@@ -1,11 +1,10 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { AppShell } from '@/components/AppShell';
 import { getDb } from '@/db/client';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
-import { listOutbox, type OutboxRow } from '@/lib/services/share-outbox';
+import { listOutbox } from '@/lib/services/share-outbox';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Outbox (development)' };
 export const dynamic = 'force-dynamic';
@@ -13,13 +12,7 @@ export const dynamic = 'force-dynamic';
 /** Owners, outside production or in the demo: the mail this workshop sent, as the local mail server got it. */
 export default async function OutboxPage() {
   const { actor, auth } = await requireActor();
-  let rows: OutboxRow[];
-  try {
-    rows = await listOutbox(await getDb(), actor);
-  } catch (e) {
-    if (e instanceof AppError && (e.status === 404 || e.status === 403)) notFound();
-    throw e;
-  }
+  const rows = await orNotFound(listOutbox(await getDb(), actor), [404, 403]);
   return (
     <AppShell auth={auth}>
       <div className="flex flex-col gap-6">

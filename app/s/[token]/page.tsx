@@ -1,10 +1,9 @@
 import type { Metadata } from 'next';
-import { notFound } from 'next/navigation';
 import { PlainBrand } from '@/components/share/PlainBrand';
 import { getDb } from '@/db/client';
-import { AppError } from '@/lib/http/errors';
-import { openSharedReport, type SharedReportView } from '@/lib/services/share';
+import { openSharedReport } from '@/lib/services/share';
 import { SharedReportClient } from './SharedReportClient';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-referrer', robots: { index: false, follow: false } };
@@ -15,14 +14,8 @@ export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-ref
  */
 export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
   const { token } = await params;
-  let view: SharedReportView;
-  try {
-    view = await openSharedReport(await getDb(), token, { countView: true });
-  } catch (e) {
-    // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
-    if (e instanceof AppError && (e.status === 404 || e.status === 410)) notFound();
-    throw e;
-  }
+  // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
+  const view = await orNotFound(openSharedReport(await getDb(), token, { countView: true }), [404, 410]);
   return (
     <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
       <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">

@@ -1,26 +1,19 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
 import { AppShell } from '@/components/AppShell';
 import { PatternEditor } from '@/components/pattern/PatternEditor';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
 import { can } from '@/lib/services/actor';
 import { getBed } from '@/lib/services/beds';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Bed setup' };
 
 export default async function BedSetupPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
   const { actor, auth } = await requireActor();
-  let data: Awaited<ReturnType<typeof getBed>>;
-  try {
-    data = await getBed(await getDb(), actor, id);
-  } catch (err) {
-    if (err instanceof AppError && err.status === 404) notFound();
-    throw err;
-  }
+  const data = await orNotFound(getBed(await getDb(), actor, id));
   return (
     <AppShell auth={auth}>
       <div className="flex flex-col gap-6">

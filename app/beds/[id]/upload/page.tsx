@@ -1,14 +1,13 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { getDb } from '@/db/client';
 import { AppShell } from '@/components/AppShell';
 import { UploadForm } from '@/components/upload/UploadForm';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
 import { can } from '@/lib/services/actor';
 import { getBed, listBeds } from '@/lib/services/beds';
 import { uploadMaxBytes } from '@/lib/storage';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Upload a photo' };
 
@@ -16,13 +15,7 @@ export default async function UploadPage({ params }: { params: Promise<{ id: str
   const { id } = await params;
   const { actor, auth } = await requireActor();
   const db = await getDb();
-  let bed: Awaited<ReturnType<typeof getBed>>['bed'];
-  try {
-    bed = (await getBed(db, actor, id)).bed;
-  } catch (err) {
-    if (err instanceof AppError && err.status === 404) notFound();
-    throw err;
-  }
+  const bed = (await orNotFound(getBed(db, actor, id))).bed;
   const beds = (await listBeds(db, actor)).map((b) => ({ id: b.id, name: b.name, hasPattern: b.pattern !== null }));
   return (
     <AppShell auth={auth}>

@@ -1,12 +1,10 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
 import { AppShell } from '@/components/AppShell';
 import { getDb } from '@/db/client';
-import type { OutgoingMailRow } from '@/db/queries/mail';
 import { requireActor } from '@/lib/auth/session';
-import { AppError } from '@/lib/http/errors';
 import { getOutboxMail } from '@/lib/services/share-outbox';
+import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Message (development)', referrer: 'no-referrer' };
 export const dynamic = 'force-dynamic';
@@ -15,13 +13,7 @@ export const dynamic = 'force-dynamic';
 export default async function OutboxMessagePage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
   const { actor, auth } = await requireActor();
-  let m: OutgoingMailRow;
-  try {
-    m = await getOutboxMail(await getDb(), actor, id);
-  } catch (e) {
-    if (e instanceof AppError && (e.status === 404 || e.status === 403)) notFound();
-    throw e;
-  }
+  const m = await orNotFound(getOutboxMail(await getDb(), actor, id), [404, 403]);
   const links = [...new Set(m.text.match(/https?:\/\/[^\s<>"]+/g) ?? [])];
   return (
     <AppShell auth={auth}>
