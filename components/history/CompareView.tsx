@@ -11,12 +11,13 @@ import { useMemo, useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
 import { useCheckDetail } from '@/components/report/CheckReport';
-import { BedMap, EXAGGERATIONS, autoExaggeration, type MapItem } from '@/components/report/BedMap';
+import { BedMap, autoExaggeration, type MapItem } from '@/components/report/BedMap';
 import { MarkShape } from '@/components/report/Mark';
 import type { Comparison } from '@/lib/geometry';
 import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
 
 const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
 
@@ -63,13 +64,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
       </section>
       <div className="no-print flex flex-wrap items-end gap-3">
         {(['mm', 'in'] as const).map((u) => <button key={u} type="button" className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-pressed={unit === u} onClick={() => setUnit(u)}>{u === 'mm' ? 'mm' : 'inch'}</button>)}
-        <label className="field">
-          <span className="text-sm">Arrow exaggeration</span>
-          <select className="input" value={String(exag)} onChange={(e) => setExag(e.target.value === 'auto' ? 'auto' : Number(e.target.value))}>
-            <option value="auto">Automatic (× {autoX.toLocaleString('en')})</option>
-            {EXAGGERATIONS.map((x) => <option key={x} value={x}>× {x.toLocaleString('en')}</option>)}
-          </select>
-        </label>
+        <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} />
       </div>
       <section className="panel flex flex-col gap-3" aria-labelledby="chg-h">
         <h2 id="chg-h" className="text-xl font-bold">Change map</h2>

@@ -18,13 +18,14 @@ import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
 import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
-import { BedMap, EXAGGERATIONS, autoExaggeration, type MapItem } from './BedMap';
+import { BedMap, autoExaggeration, type MapItem } from './BedMap';
 import { DeviationHistogram } from './DeviationHistogram';
 import { LatticeFigures } from './LatticeFigures';
 import { MarkChip } from './Mark';
 import { PanelsTable } from './PanelsTable';
 import { PhotoMarks, type PhotoMark } from './PhotoMarks';
 import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
+import { ExaggerationSelect } from './ExaggerationSelect';
 
 export interface CheckDetail {
   check: { id: string; bedId: string; bedName: string; title: string | null; status: string; stage: string | null; error: string | null; referenceMm: number; createdAt: number; finishedAt: number | null; edited: { byId: string | null; byName: string | null; at: number; edits: unknown } | null };
@@ -143,13 +144,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
       <section className="panel flex flex-col gap-3" aria-labelledby="map-h">
         <div className="flex flex-wrap items-end justify-between gap-3">
           <h2 id="map-h" className="text-xl font-bold">Deviation map</h2>
-          <label className="field no-print">
-            <span className="text-sm">Arrow exaggeration</span>
-            <select className="input" value={String(exag)} onChange={(e) => setExag(e.target.value === 'auto' ? 'auto' : Number(e.target.value))}>
-              <option value="auto">Automatic (× {autoX.toLocaleString('en')})</option>
-              {EXAGGERATIONS.map((x) => <option key={x} value={x}>× {x.toLocaleString('en')}</option>)}
-            </select>
-          </label>
+          <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} className="field no-print" />
         </div>
         <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
           {MARK_ORDER.filter((m) => m !== 'unmatched').map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
