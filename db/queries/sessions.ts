@@ -2,8 +2,8 @@
  * Server-side sessions. The sealed cookie names one row; a session is live while not revoked and not
  * expired (times in ms since the epoch). No cookies are read here.
  */
-import { and, eq, gt, isNull } from 'drizzle-orm';
-import { sessions } from '@/db/schema';
+import { and, asc, eq, gt, isNull } from 'drizzle-orm';
+import { memberships, sessions, users, workshops, type Role } from '@/db/schema';
 import { newId, type Queryable } from './types';
 
 export type SessionRow = typeof sessions.$inferSelect;
@@ -20,14 +20,37 @@ export async function insertSession(
   return row;
 }
 
-/** The session if it is live at `now`. */
-export async function getLiveSession(db: Queryable, id: string, now = Date.now()): Promise<SessionRow | undefined> {
-  const [row] = await db
-    .select()
+/** A live session with its user and the user's workshops (oldest membership first), read in one query. */
+export interface LiveSessionAuth {
+  session: Pick<SessionRow, 'id' | 'userId' | 'lastSeenAt' | 'expiresAt'>;
+  user: { id: string; email: string; name: string; units: 'mm' | 'in' };
+  workshops: { workshopId: string; name: string; role: Role }[];
+}
+
+/**
+ * The session `id` if it is live at `now`, with its user and every workshop the user belongs to: one query
+ * (sessions ⋈ users ⟕ memberships ⟕ workshops) instead of three, since every signed-in request needs all of it.
+ */
+export async function getLiveSessionAuth(db: Queryable, id: string, now = Date.now()): Promise<LiveSessionAuth | undefined> {
+  const rows = await db
+    .select({
+      sessionId: sessions.id, userId: sessions.userId, lastSeenAt: sessions.lastSeenAt, expiresAt: sessions.expiresAt,
+      email: users.email, name: users.name, units: users.units,
+      workshopId: workshops.id, workshopName: workshops.name, role: memberships.role,
+    })
     .from(sessions)
+    .innerJoin(users, eq(users.id, sessions.userId))
+    .leftJoin(memberships, eq(memberships.userId, sessions.userId))
+    .leftJoin(workshops, eq(workshops.id, memberships.workshopId))
     .where(and(eq(sessions.id, id), isNull(sessions.revokedAt), gt(sessions.expiresAt, now)))
-    .limit(1);
-  return row;
+    .orderBy(asc(memberships.createdAt));
+  const first = rows[0];
+  if (!first) return undefined;
+  return {
+    session: { id: first.sessionId, userId: first.userId, lastSeenAt: first.lastSeenAt, expiresAt: first.expiresAt },
+    user: { id: first.userId, email: first.email, name: first.name, units: first.units },
+    workshops: rows.flatMap((r) => (r.workshopId && r.workshopName !== null && r.role ? [{ workshopId: r.workshopId, name: r.workshopName, role: r.role }] : [])),
+  };
 }
 
 export async function touchSession(db: Queryable, id: string, now = Date.now()): Promise<void> {

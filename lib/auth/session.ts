@@ -17,9 +17,7 @@ import { cookies } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { z } from 'zod';
 import { getDb, type Db } from '@/db/client';
-import { listUserWorkshops } from '@/db/queries/memberships';
-import { getLiveSession, insertSession, revokeSession, touchSession } from '@/db/queries/sessions';
-import { getUserById, toPublicUser } from '@/db/queries/users';
+import { getLiveSessionAuth, insertSession, revokeSession, touchSession } from '@/db/queries/sessions';
 import { loadSessionSecret } from '@/lib/auth/secret';
 import type { Actor, ActorUser } from '@/lib/services/actor';
 
@@ -113,14 +111,11 @@ export async function startSession(
 export async function resolveAuth(db: Db, data: SessionCookieData | null): Promise<Auth | null> {
   if (!data) return null;
   const now = Date.now();
-  const session = await getLiveSession(db, data.sid, now);
-  if (!session) return null;
-  const userRow = await getUserById(db, session.userId);
-  if (!userRow) return null;
+  const live = await getLiveSessionAuth(db, data.sid, now);
+  if (!live) return null;
+  const { session, user, workshops } = live;
   if (!session.lastSeenAt || now - session.lastSeenAt > TOUCH_EVERY_MS) await touchSession(db, session.id, now);
-  const user = toPublicUser(userRow);
-  const workshops = (await listUserWorkshops(db, user.id)).map((w) => ({ workshopId: w.workshopId, name: w.name, role: w.role }));
-  // the chosen workshop's membership is one of the rows just read (memberships joined to workshops): no second query
+  // the chosen workshop's membership is one of the rows just read: the role is as fresh as this request
   const chosen = (data.wid ? workshops.find((w) => w.workshopId === data.wid) : undefined) ?? workshops[0];
   const actor: Actor | null = chosen ? { user, workshopId: chosen.workshopId, role: chosen.role } : null;
   return { sessionId: session.id, user, actor, workshops };
