@@ -115,6 +115,11 @@ export const checks = sqliteTable('checks', {
   detectionsJson: text('detections_json'),
   /** The report JSON of the measurement core's contract. */
   reportJson: text('report_json'),
+  /**
+   * Bumped by the `checks_report_rev` trigger (drizzle/0002) whenever report_json changes, whoever writes it:
+   * (id, reportRev) names one report text, so a process can keep the parsed report without re-reading it.
+   */
+  reportRev: integer('report_rev').notNull().default(0),
   /** Review edits (moved corners, added/removed holes), with who and when. */
   editsJson: text('edits_json'),
   editedBy: text('edited_by').references(() => users.id, { onDelete: 'set null' }),

@@ -81,9 +81,23 @@ export async function getCheck(db: Queryable, workshopId: string, id: string): P
 }
 
 /** The columns a report read needs (no photo, detections or edits blobs), scoped by workshop. */
-export async function getCheckReportRow(db: Queryable, workshopId: string, id: string): Promise<Pick<CheckRow, 'id' | 'status' | 'error' | 'reportJson'> | undefined> {
+/**
+ * What the report routes need before the report itself: status, error and the report's revision (bumped by a
+ * trigger whenever report_json changes), scoped by workshop. The report text is not read (see getCheckReportText).
+ */
+export async function getCheckReportRef(db: Queryable, workshopId: string, id: string): Promise<{ id: string; status: CheckStatus; error: string | null; hasReport: boolean; reportRev: number } | undefined> {
   const [row] = await db
-    .select({ id: checks.id, status: checks.status, error: checks.error, reportJson: checks.reportJson })
+    .select({ id: checks.id, status: checks.status, error: checks.error, hasReport: sql<number>`${checks.reportJson} is not null`, reportRev: checks.reportRev })
+    .from(checks)
+    .where(and(eq(checks.workshopId, workshopId), eq(checks.id, id)))
+    .limit(1);
+  return row && { ...row, hasReport: Boolean(row.hasReport) };
+}
+
+/** The stored report text of a check and its revision, scoped by workshop. */
+export async function getCheckReportText(db: Queryable, workshopId: string, id: string): Promise<{ reportJson: string | null; reportRev: number } | undefined> {
+  const [row] = await db
+    .select({ reportJson: checks.reportJson, reportRev: checks.reportRev })
     .from(checks)
     .where(and(eq(checks.workshopId, workshopId), eq(checks.id, id)))
     .limit(1);

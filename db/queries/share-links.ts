@@ -30,14 +30,16 @@ export async function findLiveShareLink(db: Queryable, tokenHash: string, now = 
 /**
  * The live link with this token hash at `now` joined to its check and bed (the same workshop as the link's,
  * enforced in the join), with only the columns a shared report shows: one indexed read per opening (the
- * unique token index, then two primary keys), no photo, detections or edits blobs. Undefined when the link is
+ * unique token index, then two primary keys), no photo, detections or edits blobs and not the report text
+ * either (its revision names it; lib/checks/report-cache.ts reads it once). Undefined when the link is
  * unknown, revoked or expired, or its check is gone.
  */
 export async function findLiveSharedCheck(db: Queryable, tokenHash: string, now = Date.now()) {
   const [row] = await db
     .select({
       linkId: shareLinks.id, workshopId: shareLinks.workshopId, checkId: shareLinks.checkId, expiresAt: shareLinks.expiresAt,
-      status: checks.status, title: checks.title, finishedAt: checks.finishedAt, createdAt: checks.createdAt, reportJson: checks.reportJson, bedName: beds.name,
+      status: checks.status, title: checks.title, finishedAt: checks.finishedAt, createdAt: checks.createdAt,
+      hasReport: sql<number>`${checks.reportJson} is not null`, reportRev: checks.reportRev, bedName: beds.name,
     })
     .from(shareLinks)
     .innerJoin(checks, and(eq(checks.id, shareLinks.checkId), eq(checks.workshopId, shareLinks.workshopId)))

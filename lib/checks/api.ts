@@ -5,7 +5,7 @@
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
-import { checkStatusView, getCheck, getCheckReportRow, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
+import { checkStatusView, getCheck, getCheckReportRef, getCheckReportText, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
 import { compareReports, type Comparison } from '@/lib/geometry';
 import { PointsSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
@@ -13,7 +13,7 @@ import { authorize, type Actor } from '@/lib/services/actor';
 import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
 import { bedPatternForUpload, CornersSchema, discardUpload, IntakeError, queueCheck, storeUpload, type StoredUpload } from './intake';
 import { boundaryOf, MultipartError, readParts, readText } from './multipart';
-import { parsedReport, reportBody } from './report-cache';
+import { reportAt, reportBodyAt } from './report-cache';
 
 /** Slack for the multipart envelope (boundaries, part headers, the small fields) above the photo limit. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -120,26 +120,35 @@ export async function getCheckStatus(db: Db, actor: Actor, id: string): Promise<
   return checkStatusView(row);
 }
 
-async function finishedRow(db: Db, actor: Actor, id: string): Promise<{ id: string; reportJson: string }> {
-  const row = await getCheckReportRow(db, actor.workshopId, id);
+/** The check's report revision once it is done (404 outside the actor's workshop, 409 until done). */
+async function finishedRef(db: Db, actor: Actor, id: string): Promise<{ id: string; reportRev: number }> {
+  const row = await getCheckReportRef(db, actor.workshopId, id);
   if (!row) throw notFound('check');
-  if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) {
+  if (!row.hasReport || (row.status !== 'done' && row.status !== 'needs-review')) {
     const why = row.status === 'failed' ? `The analysis failed: ${row.error ?? 'no reason recorded'}` : `The check is ${row.status}; the report is ready once it is done.`;
     throw new AppError('not_ready', 409, why);
   }
-  return { id: row.id, reportJson: row.reportJson };
+  return row;
 }
+
+// the report text changed or went between the two reads (a re-fit just started): as if not done yet
+const notReadyNow = () => new AppError('not_ready', 409, 'The check is being analysed again; the report is ready once it is done.');
 
 async function finishedReport(db: Db, actor: Actor, id: string): Promise<Report> {
-  const row = await finishedRow(db, actor, id);
-  return parsedReport(row.id, row.reportJson); // validated once per stored text (lib/checks/report-cache.ts)
+  const ref = await finishedRef(db, actor, id);
+  // validated once per report revision (lib/checks/report-cache.ts); the text is read only on a miss
+  const report = await reportAt(ref.id, ref.reportRev, () => getCheckReportText(db, actor.workshopId, ref.id));
+  if (!report) throw notReadyNow();
+  return report;
 }
 
-/** The same report as JSON text, validated and serialised once per stored text (the report route sends it). */
-export async function getCheckReportJson(db: Db, actor: Actor, id: string): Promise<string> {
+/** The same report as JSON bytes, validated, serialised and encoded once per revision (the report route sends it). */
+export async function getCheckReportJson(db: Db, actor: Actor, id: string): Promise<Uint8Array<ArrayBuffer>> {
   authorize(actor, 'workshop:read');
-  const row = await finishedRow(db, actor, id);
-  return reportBody(row.id, row.reportJson);
+  const ref = await finishedRef(db, actor, id);
+  const body = await reportBodyAt(ref.id, ref.reportRev, () => getCheckReportText(db, actor.workshopId, ref.id));
+  if (!body) throw notReadyNow();
+  return body;
 }
 
 /** `GET /api/checks/{id}/report`: the measurement core's report JSON; 409 until the check is done. */

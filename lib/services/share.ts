@@ -12,7 +12,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
-import { getCheck } from '@/db/queries/checks';
+import { getCheck, getCheckReportText } from '@/db/queries/checks';
 import { listComments, type CommentView } from '@/db/queries/comments';
 import { hitRateLimit } from '@/db/queries/rate-limits';
 import * as q from '@/db/queries/share-links';
@@ -20,7 +20,7 @@ import { getWorkshop } from '@/db/queries/workshops';
 import type { Report } from '@/lib/geometry/contract';
 import { AppError, notFound } from '@/lib/http/errors';
 import { queueMail, reportMailFromReport } from '@/lib/mail';
-import { parsedReport } from '@/lib/checks/report-cache';
+import { reportAt } from '@/lib/checks/report-cache';
 import { authorize, type Actor } from './actor';
 import { EmailSchema } from './auth';
 import { loadFinishedCheck, publicReport } from './share-report';
@@ -144,10 +144,12 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
     if (await q.findShareLinkByTokenHash(db, hash)) throw gone();
     throw unknown();
   }
-  if (!row.reportJson || (row.status !== 'done' && row.status !== 'needs-review')) throw unknown();
+  if (!row.hasReport || (row.status !== 'done' && row.status !== 'needs-review')) throw unknown();
   let report: Report;
   try {
-    report = sharedReportOf(parsedReport(row.checkId, row.reportJson));
+    const full = await reportAt(row.checkId, row.reportRev, () => getCheckReportText(db, row.workshopId, row.checkId));
+    if (!full) throw unknown();
+    report = sharedReportOf(full);
   } catch {
     throw unknown();
   }
@@ -161,7 +163,7 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   };
 }
 
-// publicReport of each cached parsed report, made once: parsedReport hands out the same object per stored text
+// publicReport of each cached parsed report, made once: reportAt hands out the same object per report revision
 const shared = new WeakMap<Report, Report>();
 function sharedReportOf(r: Report): Report {
   let out = shared.get(r);
