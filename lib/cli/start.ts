@@ -4,8 +4,8 @@
  *   2. builds the web app (`next build`) if .next is missing or older than the sources;
  *   3. migrates the database (DATABASE_URL, default file:data/gridproof.db);
  *   4. in demo mode (DEMO_MODE, default 1 here) seeds the demo workshop into an empty database;
- *   5. runs `next start -p ${PORT:-3000}` and the analysis worker (`tsx workers/worker.ts`, if present) side by
- *      side, forwarding SIGINT/SIGTERM to both, and exits when either of them exits (stopping the other).
+ *   5. runs the web server (lib/cli/web-server.mjs: the built app on ${PORT:-3000}, forwarding headers checked)
+ *      and the analysis worker (`tsx workers/worker.ts`, if present) side by side, forwarding SIGINT/SIGTERM to both, and exits when either of them exits (stopping the other).
  * `ensureBuilt()` is also used by the browser tests' global setup.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
@@ -18,6 +18,8 @@ import { z } from 'zod';
 
 export const ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 const NEXT_BIN = join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next');
+/** The production web server (Next's handler behind Node's HTTP server; see its header). */
+export const WEB_SERVER = join(ROOT, 'lib', 'cli', 'web-server.mjs');
 const TSX_BIN = join(ROOT, 'node_modules', '.bin', 'tsx');
 
 /** What the built app depends on; a change in any of these makes .next stale. */
@@ -87,10 +89,11 @@ const EnvSchema = z.object({
   PORT: z.coerce.number().int().min(1).max(65535).default(3000),
   APP_URL: z.url().optional(),
   DEMO_MODE: z.enum(['0', '1', 'true', 'false']).default('1'),
+  TRUST_PROXY_HOPS: z.coerce.number().int().min(0).max(10).optional(),
 });
 
 async function main() {
-  const parsed = EnvSchema.safeParse({ ...process.env, APP_URL: process.env.APP_URL || undefined, PORT: process.env.PORT || undefined, DEMO_MODE: process.env.DEMO_MODE || undefined });
+  const parsed = EnvSchema.safeParse({ ...process.env, APP_URL: process.env.APP_URL || undefined, PORT: process.env.PORT || undefined, DEMO_MODE: process.env.DEMO_MODE || undefined, TRUST_PROXY_HOPS: process.env.TRUST_PROXY_HOPS || undefined });
   if (!parsed.success) {
     for (const i of parsed.error.issues) console.error(`[gridproof] ${i.path.join('.')}: ${i.message}`);
     process.exit(2);
@@ -131,7 +134,7 @@ async function main() {
 
   const children: ChildProcess[] = [];
   const childEnv = { ...process.env, NEXT_TELEMETRY_DISABLED: '1' };
-  const web = spawn(process.execPath, [NEXT_BIN, 'start', '-p', String(env.PORT)], { cwd: ROOT, stdio: 'inherit', env: childEnv });
+  const web = spawn(process.execPath, [WEB_SERVER], { cwd: ROOT, stdio: 'inherit', env: { ...childEnv, PORT: String(env.PORT) } });
   children.push(web);
   const workerFile = join(ROOT, 'workers', 'worker.ts');
   if (existsSync(workerFile)) children.push(spawn(TSX_BIN, [workerFile], { cwd: ROOT, stdio: 'inherit', env: childEnv }));

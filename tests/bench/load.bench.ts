@@ -2,7 +2,7 @@
  * Load figures on this machine, printed as one JSON object (no assertions; targets are in issue 7 and the
  * README: ≥ 300 req/s with p99 ≤ 150 ms for the report API on 2 cores).
  *
- * 1. The web app built for production (`next build` when stale, then `next start`) on a fresh SQLite file with
+ * 1. The web app built for production (`next build` when stale, then lib/cli/web-server.mjs, what `npm start` runs) on a fresh SQLite file with
  *    a finished check (the measurement core's report of a 24 × 12 dog-hole bed, 288 positions) and a share
  *    link. autocannon, 50 connections for 20 s each (LOAD_SECONDS to change), against
  *    `GET /api/checks/{id}/report` (signed in) and the shared report page `GET /s/{token}` (no account):
@@ -27,7 +27,7 @@ import { insertSession } from '@/db/queries/sessions';
 import { loadSessionSecret } from '@/lib/auth/secret';
 import { intakePhoto } from '@/lib/checks/intake';
 import type { Pattern } from '@/lib/geometry/contract';
-import { ROOT } from '@/lib/cli/start';
+import { ROOT, WEB_SERVER } from '@/lib/cli/start';
 import { createShareLink } from '@/lib/services/share';
 import { LocalStorage } from '@/lib/storage';
 import { synthesize } from '@/lib/vision/render';
@@ -78,9 +78,9 @@ if (built.status !== 0) throw new Error('next build failed');
 const buildMs = Date.now() - buildStarted;
 const port = await freePort();
 const base = `http://127.0.0.1:${port}`;
-const server: ChildProcess = spawn(process.execPath, [join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
+const server: ChildProcess = spawn(process.execPath, [WEB_SERVER], {
   cwd: ROOT,
-  env: { ...process.env, NODE_ENV: 'production', COOKIE_SECURE: '0', NEXT_TELEMETRY_DISABLED: '1' },
+  env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', NODE_ENV: 'production', COOKIE_SECURE: '0', NEXT_TELEMETRY_DISABLED: '1' },
   stdio: ['ignore', 'ignore', 'pipe'],
 });
 let serverErr = '';
@@ -90,7 +90,7 @@ for (let i = 0; ; i++) {
     const r = await fetch(`${base}/api/target.pdf`);
     if (r.status < 500) break;
   } catch { /* not up yet */ }
-  if (i > 300 || server.exitCode !== null) throw new Error(`next start did not come up: ${serverErr.slice(-2000)}`);
+  if (i > 300 || server.exitCode !== null) throw new Error(`the web server did not come up: ${serverErr.slice(-2000)}`);
   await new Promise((r) => setTimeout(r, 200));
 }
 

@@ -1,6 +1,6 @@
 /**
  * Global setup of the `e2e` project: builds the web app if .next is missing or stale (once for the run),
- * migrates and seeds a fresh SQLite file in a temp folder, starts `next start` on a free port against it and
+ * migrates and seeds a fresh SQLite file in a temp folder, starts the production web server (lib/cli/web-server.mjs) on a free port against it and
  * provides `baseUrl` to the tests; the returned teardown stops the server and removes the folder.
  */
 import { spawn } from 'node:child_process';
@@ -11,7 +11,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { migrateDb, openDb } from '@/db/client';
-import { ensureBuilt, ROOT } from '@/lib/cli/start';
+import { ensureBuilt, ROOT, WEB_SERVER } from '@/lib/cli/start';
 import { seedDemo } from '@/lib/services/demo';
 
 declare module 'vitest' {
@@ -36,7 +36,7 @@ function freePort(): Promise<number> {
 async function waitForServer(url: string, child: { exitCode: number | null }, timeoutMs = 60_000): Promise<void> {
   const until = Date.now() + timeoutMs;
   while (Date.now() < until) {
-    if (child.exitCode !== null) throw new Error(`next start exited early (${child.exitCode})`);
+    if (child.exitCode !== null) throw new Error(`the web server exited early (${child.exitCode})`);
     try {
       const res = await fetch(url, { redirect: 'manual' });
       if (res.status < 500) return;
@@ -59,12 +59,13 @@ export default async function setup(project: TestProject) {
   db.$client.close();
 
   const port = await freePort();
-  const child = spawn(process.execPath, [join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-p', String(port)], {
+  const child = spawn(process.execPath, [WEB_SERVER], {
     cwd: ROOT,
     stdio: ['ignore', 'pipe', 'pipe'],
     env: {
       ...process.env,
       NODE_ENV: 'production',
+      PORT: String(port),
       NEXT_TELEMETRY_DISABLED: '1',
       DATABASE_URL: databaseUrl,
       DEMO_MODE: '1',

@@ -1,11 +1,18 @@
 /**
- * Security headers on the built app (next start, production): every answer — a page, an API answer, a static
+ * Security headers on the built app (the production web server): every answer — a page, an API answer, a static
  * asset, a 404 — carries the CSP without 'unsafe-eval' and with frame-ancestors 'none', nosniff, DENY framing
  * and the referrer policy. Header meanings: CSP Level 3 (W3C) and the OWASP HTTP headers cheat sheet.
- * Also the sign-in limits over real HTTP: the address comes from X-Forwarded-For as the proxy sets it.
+ * Also the client address over real HTTP: the web server (lib/cli/web-server.mjs, TRUST_PROXY_HOPS unset here,
+ * so no proxy is trusted) counts a sign-in against the socket's address whatever X-Forwarded-For says.
  */
-import { describe, expect, it } from 'vitest';
+import { join } from 'node:path';
+import { inArray } from 'drizzle-orm';
+import { describe, expect, inject, it } from 'vitest';
+import { openDb } from '@/db/client';
+import { rateLimits } from '@/db/schema';
 import { Client, e2eEmail } from './client';
+
+const dataDir = inject('dataDir');
 
 function assertHeaders(h: Headers, where: string) {
   const csp = h.get('content-security-policy') ?? '';
@@ -42,5 +49,26 @@ describe('security headers of the built app', () => {
     const r = await c.req('POST', '/api/auth/sign-in', { email: e2eEmail('x'), password: 'whatever it is' }, { origin: 'https://evil.example' });
     expect(r.status).toBe(403);
     expect(r.json).toMatchObject({ error: { code: 'cross_site' } });
+  });
+
+  it('counts a sign-in against the socket address, not an X-Forwarded-For the client wrote itself', async () => {
+    const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
+    try {
+      const keys = ['sign-in-ip:127.0.0.1', 'sign-in-ip:::1', 'sign-in-ip:198.51.100.23', 'sign-in-ip:198.51.100.24'];
+      const counts = async () => Object.fromEntries((await db.select().from(rateLimits).where(inArray(rateLimits.key, keys))).map((r) => [r.key, r.count]));
+      const before = await counts();
+      const c = new Client();
+      for (const spoof of ['198.51.100.23', '198.51.100.24, 198.51.100.23']) {
+        const r = await c.req('POST', '/api/auth/sign-in', { email: e2eEmail('spoof'), password: 'not the password' }, { 'x-forwarded-for': spoof, 'x-real-ip': spoof });
+        expect(r.status).toBe(401);
+      }
+      const after = await counts();
+      expect(after['sign-in-ip:198.51.100.23']).toBeUndefined();
+      expect(after['sign-in-ip:198.51.100.24']).toBeUndefined();
+      const local = (k: string) => (after[k] ?? 0) - (before[k] ?? 0);
+      expect(local('sign-in-ip:127.0.0.1') + local('sign-in-ip:::1')).toBe(2);
+    } finally {
+      db.$client.close();
+    }
   });
 });
