@@ -3,7 +3,10 @@
  * screws, dust, the camera, and the shading of a bed point. Bed frame: mm, origin front-left, +X right, +Y away.
  *
  * Injected errors, applied in this order to each nominal position p (bed centre c):
- *   lattice:  X = c.x + (1 + scaleX)(p.x − c.x) + tan(squarenessRad)(p.y − c.y),  Y = c.y + (1 + scaleY)(p.y − c.y)
+ *   lattice:  X = c.x + (1 + scaleX)(p.x − c.x) − (1 + scaleY)·sin(squarenessRad)(p.y − c.y),
+ *             Y = c.y + (1 + scaleY)·cos(squarenessRad)(p.y − c.y)
+ *             — the report's own terms (lib/geometry/affine.ts composeAffine with no rotation): squareness is the
+ *             angle between the lattice's X and Y axes minus 90°, so a report of this scene measures +squarenessDeg.
  *   panel:    rotation by panel.rotationRad about the panel centre, then + (panel.dx, panel.dy)
  *   misplace: + (dx, dy) for the few misplaced positions.
  */
@@ -137,7 +140,8 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
   const scaleX = (uniform(rng, -1, 1) * opts.scalePpm) / 1e6;
   const scaleY = (uniform(rng, -1, 1) * opts.scalePpm) / 1e6;
   const squarenessDeg = uniform(rng, -1, 1) * opts.squarenessDeg;
-  const shear = Math.tan((squarenessDeg * Math.PI) / 180);
+  const squarenessRad = (squarenessDeg * Math.PI) / 180;
+  const yAxis = [-(1 + scaleY) * Math.sin(squarenessRad), (1 + scaleY) * Math.cos(squarenessRad)] as const;
   const panels = (pattern.panels ?? []).map((p) => ({
     ...p,
     dx: uniform(rng, -1, 1) * opts.panelOffsetMm,
@@ -262,8 +266,8 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
       for (let col = 0; col < f.count.x; col++, index++) {
         const nx = f.origin.x + col * f.pitch.x;
         const ny = f.origin.y + row * f.pitch.y;
-        let X = cx0 + (1 + scaleX) * (nx - cx0) + shear * (ny - cy0);
-        let Y = cy0 + (1 + scaleY) * (ny - cy0);
+        let X = cx0 + (1 + scaleX) * (nx - cx0) + yAxis[0] * (ny - cy0);
+        let Y = cy0 + yAxis[1] * (ny - cy0);
         const pn = panels.find((p) => nx >= p.x && nx <= p.x + p.width && ny >= p.y && ny <= p.y + p.height);
         if (pn) {
           const a = (pn.rotationDeg * Math.PI) / 180;
