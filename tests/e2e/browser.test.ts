@@ -1,7 +1,8 @@
 /**
  * The app in Debian's chromium (playwright-core, no browser download): sign up, sign out, sign in; a
  * reviewer sees no way to add a bed and the server refuses one posted from the page; another workshop's
- * bed page is a 404.
+ * bed page is a 404; the colours follow the device's light or dark preference until the theme button picks one,
+ * and the pick outlives a reload.
  */
 import { type BrowserContext, type Page } from 'playwright-core';
 import { launchChromium, type LaunchedChromium } from './chromium';
@@ -97,6 +98,34 @@ describe('in the browser', () => {
     const res = await page.goto(`${baseUrl}/beds/${bedId}`);
     expect(res?.status()).toBe(404);
     expect(await page.getByRole('heading', { name: 'Not found' }).isVisible()).toBe(true);
+    await page.close();
+  });
+
+  it('follows the device theme until one is picked, and keeps the pick after a reload', async () => {
+    const page = await freshPage();
+    const PAPER = 'rgb(245, 243, 236)'; // --paper, light
+    const SLATE = 'rgb(18, 20, 22)'; // --paper, dark
+    const ground = () => page.evaluate(() => getComputedStyle(document.documentElement).backgroundColor);
+    await page.emulateMedia({ colorScheme: 'dark' });
+    await page.goto(`${baseUrl}/sign-in`);
+    await page.evaluate(() => localStorage.removeItem('gp-theme'));
+    await page.reload();
+    expect(await ground()).toBe(SLATE);
+    await page.emulateMedia({ colorScheme: 'light' });
+    expect(await ground()).toBe(PAPER);
+    const toggle = page.getByRole('button', { name: /Change theme/ });
+    await toggle.click(); // device → light
+    await expect.poll(ground).toBe(PAPER);
+    await page.emulateMedia({ colorScheme: 'dark' });
+    expect(await ground()).toBe(PAPER); // picked light holds against a dark device
+    await toggle.click(); // light → dark
+    await expect.poll(ground).toBe(SLATE);
+    await page.emulateMedia({ colorScheme: 'light' });
+    await page.reload();
+    expect(await ground()).toBe(SLATE); // the pick is kept (localStorage, applied before paint)
+    await page.getByRole('button', { name: /Change theme/ }).click(); // dark → device
+    await expect.poll(ground).toBe(PAPER);
+    await page.evaluate(() => localStorage.removeItem('gp-theme'));
     await page.close();
   });
 });
