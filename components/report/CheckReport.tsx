@@ -10,8 +10,7 @@ import Link from 'next/link';
 import { useMemo, useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
-import type { PatternMm } from '@/lib/geometry';
-import type { Points, Report } from '@/lib/geometry/contract';
+import type { Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
 import { MARK_ORDER, type Mark } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
@@ -26,16 +25,10 @@ import { PanelsTable } from './PanelsTable';
 import { PhotoMarks, type PhotoMark } from './PhotoMarks';
 import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
 import { ExaggerationSelect } from './ExaggerationSelect';
+import type { CheckDetail } from '@/lib/services/check-views';
 
-export interface CheckDetail {
-  check: { id: string; bedId: string; bedName: string; title: string | null; status: string; stage: string | null; error: string | null; referenceMm: number; createdAt: number; finishedAt: number | null; edited: { byId: string | null; byName: string | null; at: number; edits: unknown } | null };
-  pattern: PatternMm | null;
-  patternRevision: number | null;
-  detections: Points | null;
-  photo: { available: boolean; widthPx: number | null; heightPx: number | null };
-  can: { review: boolean };
-  units: LengthUnit;
-}
+/** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
+export type { CheckDetail };
 
 const VERDICT_BOX: Record<Report['summary']['verdict'], string> = {
   pass: 'border-pass bg-pass-bg text-pass',

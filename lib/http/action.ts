@@ -18,10 +18,10 @@ import { unstable_rethrow } from 'next/navigation';
 import { z } from 'zod';
 import { getDb, type Db } from '@/db/client';
 import { currentCookieData, resolveAuth, type Auth } from '@/lib/auth/session';
-import { authorize, type Actor, type Permission } from '@/lib/services/actor';
-import { AppError, fromZodError, toAppError, unauthenticated, type ErrorBody } from './errors';
+import type { Actor, Permission } from '@/lib/services/actor';
+import { fromZodError, toAppError, type ErrorBody } from './errors';
 import { assertSameOrigin, clientIp } from './origin';
-import type { AuthMode } from './route';
+import { admit, type AuthMode } from './route';
 
 export type ActionResult<R> = { ok: true; data: R } | { ok: false; error: ErrorBody['error'] };
 
@@ -49,13 +49,7 @@ export function action<A extends AuthMode = 'actor', IS extends z.ZodType = z.Zo
       assertSameOrigin('POST', h);
       const db = await getDb();
       const auth = await resolveAuth(db, await currentCookieData());
-      if (mode !== 'none' && !auth) throw unauthenticated();
-      if (mode === 'actor' && !auth?.actor) throw new AppError('no_workshop', 403, 'You are not a member of any workshop.');
-      const actor = auth?.actor ?? null;
-      if (opts.permission) {
-        if (!actor) throw unauthenticated();
-        authorize(actor, opts.permission);
-      }
+      const actor = admit(mode, auth, opts.permission);
       let input: unknown = undefined;
       if (opts.input) {
         const r = opts.input.safeParse(toObject(raw));

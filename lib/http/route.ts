@@ -74,6 +74,22 @@ function parseWith<S extends z.ZodType>(schema: S, value: unknown, what: string)
   return r.data;
 }
 
+/**
+ * The access rules both wrappers (this one and action()) apply once the session is read: 401 without a
+ * session unless the mode is 'none', 403 `no_workshop` for 'actor' mode without a workshop, then the
+ * permission. Returns the actor (null when there is none and none is needed).
+ */
+export function admit(mode: AuthMode, auth: Auth | null, permission?: Permission): Actor | null {
+  if (mode !== 'none' && !auth) throw unauthenticated();
+  if (mode === 'actor' && !auth?.actor) throw new AppError('no_workshop', 403, 'You are not a member of any workshop.');
+  const actor = auth?.actor ?? null;
+  if (permission) {
+    if (!actor) throw unauthenticated();
+    authorize(actor, permission);
+  }
+  return actor;
+}
+
 export function route<
   A extends AuthMode = 'actor',
   BS extends z.ZodType = z.ZodUndefined,
@@ -89,13 +105,7 @@ export function route<
       assertSameOrigin(req.method, req.headers, req.url);
       const db = await getDb();
       const auth = mode === 'none' ? await authFromRequest(db, req).catch(() => null) : await authFromRequest(db, req);
-      if (mode !== 'none' && !auth) throw unauthenticated();
-      if (mode === 'actor' && !auth?.actor) throw new AppError('no_workshop', 403, 'You are not a member of any workshop.');
-      const actor = auth?.actor ?? null;
-      if (opts.permission) {
-        if (!actor) throw unauthenticated();
-        authorize(actor, opts.permission);
-      }
+      const actor = admit(mode, auth, opts.permission);
       const rawParams = nextCtx?.params ? await nextCtx.params : {};
       const params = opts.params ? parseWith(opts.params, rawParams, 'address') : undefined;
       const query = opts.query ? parseWith(opts.query, Object.fromEntries(new URL(req.url).searchParams), 'query') : undefined;

@@ -16,7 +16,6 @@
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import autocannon from 'autocannon';
@@ -33,6 +32,7 @@ import { LocalStorage } from '@/lib/storage';
 import { synthesize } from '@/lib/vision/render';
 import { coreReport, finishedCheck } from '@/tests/services/share-fixtures';
 import { newOwner } from '@/tests/web/helpers';
+import { freePort } from '@/tests/free-port';
 
 const SECONDS = Number(process.env.LOAD_SECONDS ?? 20);
 const CONNECTIONS = Number(process.env.LOAD_CONNECTIONS ?? 50);
@@ -58,17 +58,6 @@ const token = share.link.url.split('/').pop()!;
 const session = await insertSession(db, { userId: owner.user.id, expiresAt: Date.now() + 24 * 3600_000 });
 const cookie = `gp_session=${await sealData({ sid: session.id, wid: owner.workshopId }, { password: loadSessionSecret(), ttl: 30 * 24 * 3600 })}`;
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = createServer();
-    srv.once('error', reject);
-    srv.listen(0, () => {
-      const a = srv.address();
-      const port = typeof a === 'object' && a ? a.port : 0;
-      srv.close(() => resolve(port));
-    });
-  });
-}
 
 // build in a child whose output goes to stderr, so stdout carries only the JSON
 const buildStarted = Date.now();

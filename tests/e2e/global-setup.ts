@@ -6,13 +6,13 @@
 import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { migrateDb, openDb } from '@/db/client';
 import { ensureBuilt, ROOT, WEB_SERVER } from '@/lib/cli/start';
 import { seedDemo } from '@/lib/services/demo';
+import { freePort } from '@/tests/free-port';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -21,17 +21,6 @@ declare module 'vitest' {
   }
 }
 
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = createServer();
-    srv.once('error', reject);
-    srv.listen(0, () => {
-      const addr = srv.address();
-      const port = typeof addr === 'object' && addr ? addr.port : 0;
-      srv.close(() => resolve(port));
-    });
-  });
-}
 
 async function waitForServer(url: string, child: { exitCode: number | null }, timeoutMs = 60_000): Promise<void> {
   const until = Date.now() + timeoutMs;

@@ -1,6 +1,5 @@
 /** Shared set-up for the mail tests: a migrated SQLite database in a temp dir and a free local port. */
 import { mkdtemp, rm } from 'node:fs/promises';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { migrateDb, openDb, type Db } from '@/db/client';
@@ -20,15 +19,3 @@ export async function migratedDb(dir: string): Promise<{ db: Db; workshopId: str
   return { db, workshopId };
 }
 
-/** A port nothing listens on (bound once by the OS, then released). */
-export async function freePort(): Promise<number> {
-  return new Promise((ok, fail) => {
-    const s = createServer();
-    s.once('error', fail);
-    s.listen(0, '127.0.0.1', () => {
-      const addr = s.address();
-      const port = typeof addr === 'object' && addr ? addr.port : 0;
-      s.close(() => ok(port));
-    });
-  });
-}

@@ -11,7 +11,8 @@ import { mailConfigFromEnv } from '@/lib/mail/config';
 import { ensureLocalSmtp, listLocalMail, startLocalSmtp } from '@/lib/mail/local-smtp';
 import { deliverPendingMail, runMailDelivery } from '@/lib/mail/outbox';
 import { createMailer, type Mailer } from '@/lib/mail/transport';
-import { freePort, migratedDb, tempDir } from './helpers';
+import { freePort } from '@/tests/free-port';
+import { migratedDb, tempDir } from './helpers';
 
 let cleanup: () => Promise<void>;
 let dir: string;

@@ -1,18 +1,11 @@
 /** Seeded pseudo-random numbers (mulberry32) and value noise for the renderer. Deterministic for a seed. */
 
+import { mulberry32 } from '@/lib/geometry/random';
+
 export type Rng = () => number;
 
-/** A generator of uniform numbers in [0, 1) for a 32-bit seed. */
-export function makeRng(seed: number): Rng {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A generator of uniform numbers in [0, 1) for a 32-bit seed (the measurement core's mulberry32). */
+export const makeRng: (seed: number) => Rng = mulberry32;
 
 /** Uniform in [lo, hi). */
 export function uniform(rng: Rng, lo: number, hi: number): number {
