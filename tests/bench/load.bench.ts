@@ -103,7 +103,10 @@ async function hammer(path: string, headers: Record<string, string>) {
 }
 
 log(`report API… (load average ${loadavg().map((x) => x.toFixed(2)).join(' ')})`);
-const reportApi = await hammer(`/api/checks/${done.checkId}/report`, { cookie });
+const reportRun = await hammer(`/api/checks/${done.checkId}/report`, { cookie });
+// issue 7's target on this 2-core machine, judged here so the JSON says whether this run met it
+const TARGET = { requestsPerSecond: 300, p99Ms: 150 };
+const reportApi = { ...reportRun, target: TARGET, targetMet: reportRun.errors === 0 && reportRun.non2xx === 0 && reportRun.requestsPerSecond >= TARGET.requestsPerSecond && reportRun.latencyMs.p99 <= TARGET.p99Ms };
 log('shared page…');
 const sharedPage = await hammer(`/s/${token}`, { accept: 'text/html' });
 server.kill('SIGTERM');
