@@ -89,9 +89,12 @@ export async function runMailDelivery(db: Db, transport: MailTransport, opts: De
     } catch (err) {
       opts.onError?.(err);
     }
+    // one listener per wait, removed when the wait ends either way: a loop that runs for days must not pile
+    // them up on the signal
     await new Promise<void>((ok) => {
-      const t = setTimeout(ok, interval);
-      opts.signal?.addEventListener('abort', () => { clearTimeout(t); ok(); }, { once: true });
+      const done = () => { clearTimeout(t); opts.signal?.removeEventListener('abort', done); ok(); };
+      const t = setTimeout(done, interval);
+      opts.signal?.addEventListener('abort', done, { once: true });
     });
   }
 }

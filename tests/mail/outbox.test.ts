@@ -11,6 +11,7 @@ import { mailConfigFromEnv } from '@/lib/mail/config';
 import { ensureLocalSmtp, listLocalMail, startLocalSmtp } from '@/lib/mail/local-smtp';
 import { deliverPendingMail, runMailDelivery } from '@/lib/mail/outbox';
 import { createMailer, type Mailer } from '@/lib/mail/transport';
+import { getEventListeners } from 'node:events';
 import { freePort } from '@/tests/free-port';
 import { migratedDb, tempDir } from './helpers';
 
@@ -153,6 +154,22 @@ describe('mail delivery loop', () => {
     await loop;
     expect((await getOutgoingMail(db, id))?.status).toBe('sent');
     expect((await listLocalMail({ dir: `${dir}/inbox-loop` })).map((x) => x.to)).toEqual([['loop@example.test']]);
+  });
+
+  it('keeps at most one listener on its stop signal however many passes it makes', async () => {
+    const inbox = await startLocalSmtp({ port: 0, dir: `${dir}/inbox-idle` });
+    closers.push(() => inbox.close());
+    const stop = new AbortController();
+    const loop = runMailDelivery(db, mailerAt(inbox.port).transport, { intervalMs: 2, signal: stop.signal });
+    let most = 0;
+    for (let k = 0; k < 40; k += 1) { // about 100 passes of 2 ms
+      await new Promise((r) => setTimeout(r, 5));
+      most = Math.max(most, getEventListeners(stop.signal, 'abort').length);
+    }
+    stop.abort();
+    await loop;
+    // Node warns past 10 listeners on one signal; a wait that forgot its listener would leave one per pass
+    expect(most).toBeLessThanOrEqual(1);
   });
 });
 
