@@ -176,7 +176,8 @@ export async function listLocalMail(options: { dir?: string; limit?: number } = 
   const dir = mailDir(options.dir);
   let names: string[];
   try {
-    names = await readdir(dir);
+    // the folder is chosen at run time (LOCAL_MAIL_DIR): nothing for the build to trace
+    names = await readdir(/*turbopackIgnore: true*/ dir);
   } catch (err) {
     if ((err as NodeJS.ErrnoException).code === 'ENOENT') return [];
     throw err;
