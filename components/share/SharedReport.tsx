@@ -1,8 +1,9 @@
 'use client';
 /**
- * The report as a stranger with a share link sees it: verdict, figures, the deviation map, the positions and
- * panels, the lattice figures and the comments — built from the report helper's own pieces — and nothing of
- * the photo or the rest of the workshop (the server sends none of it: lib/services/share-report.ts).
+ * The report as a stranger with a share link sees it, below the verdict (SharedVerdict, drawn by the server):
+ * figures, the deviation map, the positions and panels, the lattice figures and the comments — built from the
+ * report helper's own pieces — and nothing of the photo or the rest of the workshop (the server sends none of
+ * it: lib/services/share-report.ts).
  */
 import '@/components/report/report.css';
 import { useMemo, useState } from 'react';
@@ -24,9 +25,6 @@ export interface SharedReportData {
   comments: CommentItem[];
 }
 
-const BOX = { pass: 'border-pass bg-pass-bg text-pass', marginal: 'border-warn bg-warn-bg text-warn', fail: 'border-fail bg-fail-bg text-fail' } as const;
-const WORD = { pass: 'Pass', marginal: 'Marginal', fail: 'Fail' } as const;
-
 export function SharedReport({ data, token }: { data: SharedReportData; token: string }) {
   const [unit, setUnit] = useState<LengthUnit>('mm');
   const [selected, setSelected] = useState<string | null>(null);
@@ -39,14 +37,8 @@ export function SharedReport({ data, token }: { data: SharedReportData; token: s
     title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off, allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen`,
   })), [r, unit]);
   const rows = useMemo(() => positionRows(r), [r]);
-  const when = data.checkedAt ? new Date(data.checkedAt).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) : null;
   return (
-    <article className="flex flex-col gap-6" data-testid="shared-report">
-      <section className={`rounded-xl border-4 p-5 ${BOX[s.verdict]}`} aria-label="Verdict">
-        <p className="text-sm font-bold uppercase tracking-wide">{data.bedName}{data.checkTitle ? ` · ${data.checkTitle}` : ''}{when ? ` · ${when}` : ''}</p>
-        <h1 className="mt-1 text-3xl font-bold">{WORD[s.verdict]}</h1>
-        <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{s.sentence}</p>
-      </section>
+    <div className="flex flex-col gap-6" data-testid="shared-report-body">
       <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
         {([['Measured', `${s.matched}`], ['Out', `${s.out}`], ['Marginal', `${s.marginal}`], ['Not seen', `${s.missing}`], ['RMS off', formatLength(s.rmsMm, unit)], ['Largest', formatLength(s.maxMm, unit)]] as const).map(([k, v]) => (
           <div key={k} className="panel !p-3"><dt className="text-sm text-muted">{k}</dt><dd className="font-mono text-2xl font-bold">{v}</dd></div>
@@ -78,6 +70,6 @@ export function SharedReport({ data, token }: { data: SharedReportData; token: s
         <h2 id="shared-comments-h" className="text-xl font-bold">Comments</h2>
         <CommentList comments={data.comments} onSelectPosition={setSelected} />
       </section>
-    </article>
+    </div>
   );
 }

@@ -107,6 +107,12 @@ describe('a shared report opened without an account', () => {
     for (const r of seen) expect(new URL(r.url).pathname).not.toMatch(/^\/api\/(checks|beds|members|me|accessories)|\/photo/);
     expect(seen.filter((r) => r.url.startsWith(baseUrl)).every((r) => r.status < 400)).toBe(true);
     await page.close();
+    // one opening in a browser is one view (the page and the data it loads do not count twice), and a client
+    // that fetches the page alone (a chat app's link preview) counts none
+    const views = async () => ((await api.req('GET', `/api/checks/${checkId}/share`)).json as { links: { id: string; viewCount: number }[] }).links.find((l) => l.id === linkId)!.viewCount;
+    expect(await views()).toBe(1);
+    expect((await fetch(shareUrl, { headers: { accept: 'text/html', 'user-agent': 'LinkPreviewBot/1.0' } })).status).toBe(200);
+    expect(await views()).toBe(1);
   });
 
   it('answers the report JSON at the same address for Accept: application/json', async () => {

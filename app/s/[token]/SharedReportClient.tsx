@@ -1,17 +1,34 @@
 'use client';
 /**
- * The shared report, drawn in the browser only: the deviation map (one SVG mark per position) and the
- * positions table are the bulk of the page, and rendering them on the server for every opening cost most of
- * its time. The server sends the data (already stripped by lib/services/share-report.ts) and the page's frame.
+ * The shared report's map, tables and comments, drawn in the browser from the JSON the same link answers
+ * (`/api/shared/{token}`, which counts the view). The page itself sends only its frame and the verdict, so it
+ * is quick to serve and paints at once; a chat app unfurling the link fetches the page only and is not counted
+ * as a view.
  */
 import dynamic from 'next/dynamic';
+import { useQuery } from '@tanstack/react-query';
+import { api, errorText } from '@/components/api';
 import type { SharedReportData } from '@/components/share/SharedReport';
 
 const SharedReport = dynamic(() => import('@/components/share/SharedReport').then((m) => m.SharedReport), {
   ssr: false,
-  loading: () => <p className="text-muted" role="status">Loading the report…</p>,
+  loading: () => <Loading />,
 });
 
-export function SharedReportClient({ data, token }: { data: SharedReportData; token: string }) {
-  return <SharedReport data={data} token={token} />;
+function Loading() {
+  return <p className="text-muted" role="status">Loading the map and the tables…</p>;
+}
+
+export function SharedReportClient({ token }: { token: string }) {
+  const q = useQuery({
+    queryKey: ['shared-report', token],
+    queryFn: () => api<SharedReportData>(`/api/shared/${encodeURIComponent(token)}`),
+    retry: 1,
+    refetchOnWindowFocus: false,
+  });
+  if (q.isPending) return <Loading />;
+  if (q.isError) {
+    return <p className="field-error" role="alert">The map and the tables could not be loaded: {errorText(q.error)} Reload the page to try again.</p>;
+  }
+  return <SharedReport data={q.data} token={token} />;
 }

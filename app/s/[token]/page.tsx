@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import { PlainBrand } from '@/components/share/PlainBrand';
+import { SharedVerdict } from '@/components/share/SharedVerdict';
 import { getDb } from '@/db/client';
 import { openSharedReport } from '@/lib/services/share';
 import { SharedReportClient } from './SharedReportClient';
@@ -10,20 +11,24 @@ export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-ref
 
 /**
  * A shared report, read only, no account: /s/{token}. The same address with `Accept: application/json`
- * answers the JSON (next.config.mjs rewrites it to /api/shared/{token}). Each opening counts a view.
+ * answers the JSON (next.config.mjs rewrites it to /api/shared/{token}). The page sends its frame and the
+ * verdict; the browser then loads the map and tables from that JSON, which counts the view.
  */
 export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
   const { token } = await params;
   // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
-  const view = await orNotFound(openSharedReport(await getDb(), token, { countView: true }), [404, 410]);
+  const view = await orNotFound(openSharedReport(await getDb(), token), [404, 410]);
   return (
     <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
       <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">
         <PlainBrand />
         <span className="text-sm text-muted">A bed check shared with you · read only</span>
       </header>
-      <SharedReportClient data={view} token={token} />
-      <noscript><p className="text-lg font-bold">{view.bedName}: {view.report.summary.sentence}</p></noscript>
+      <article className="flex flex-col gap-6" data-testid="shared-report">
+        <SharedVerdict bedName={view.bedName} checkTitle={view.checkTitle} checkedAt={view.checkedAt} summary={view.report.summary} />
+        <SharedReportClient token={token} />
+        <noscript><p className="text-lg">The deviation map, the tables and the comments need JavaScript; the PDF has the map, the positions out of tolerance and the comments: <a className="underline" href={`/api/shared/${token}/report.pdf`}>download the PDF</a>.</p></noscript>
+      </article>
       <p className="text-sm text-muted">
         This link works until {new Date(view.expiresAt).toISOString().slice(0, 16).replace('T', ' ')} UTC unless its owner revokes it sooner.
         Before anyone reaches onto the machine to act on this report: spindle stopped, machine switched off; the machine maker&apos;s manual and local rules come first.
