@@ -15,6 +15,7 @@ import { outgoingMail, rateLimits, shareLinks } from '@/db/schema';
 import { startSession } from '@/lib/auth/session';
 import type { Actor } from '@/lib/services/actor';
 import { addComment } from '@/lib/services/comments';
+import { openSharedReport } from '@/lib/services/share';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { coreReport, finishedCheck, requeue, SECRET_PHOTO_NAME } from '@/tests/services/share-fixtures';
 import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
@@ -95,6 +96,12 @@ describe('share links', () => {
     const list = await call(shareList, { cookie: cookie(reviewer), params: { id: checkId } });
     const links = (list.json as { links: { id: string; viewCount: number; live: boolean }[] }).links;
     expect(links.find((l) => l.id === linkId)).toMatchObject({ viewCount: 2, live: true });
+    // the answer is the service's view, whole: the report text is cached per revision, the rest made each time
+    const second = await openShared(token);
+    const { comments, ...rest } = second.json as Record<string, unknown>;
+    expect(second.json).toEqual(JSON.parse(JSON.stringify(await openSharedReport(t.db, token))));
+    expect(Object.keys(rest).sort()).toEqual(['bedName', 'checkTitle', 'checkedAt', 'expiresAt', 'report']);
+    expect(comments).toHaveLength(1);
     expect(JSON.stringify(list.json)).not.toContain(token);
   });
 
