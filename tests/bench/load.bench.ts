@@ -2,10 +2,11 @@
  * Load figures on this machine, printed as one JSON object (no assertions; targets are in issue 7 and the
  * README: ≥ 300 req/s with p99 ≤ 150 ms for the report API on 2 cores).
  *
- * 1. The web app built for production (`next build` when stale, then lib/cli/web-server.mjs, what `npm start` runs) on a fresh SQLite file with
- *    a finished check (the measurement core's report of a 24 × 12 dog-hole bed, 288 positions) and a share
+ * 1. The web app built for production (`next build` when stale, then lib/cli/web-server.mjs, what `npm start`
+ *    runs) on a fresh SQLite file with a finished check (the measurement core's report of a 24 × 12 dog-hole bed, 288 positions) and a share
  *    link. autocannon, 50 connections for 20 s each (LOAD_SECONDS to change), against
- *    `GET /api/checks/{id}/report` (signed in) and the shared report page `GET /s/{token}` (no account):
+ *    `GET /api/checks/{id}/report` (signed in), the shared report page `GET /s/{token}` (no account) and the
+ *    JSON that page loads in the browser, `GET /api/shared/{token}` (which counts a view each time):
  *    requests/s, median, p99, errors and non-2xx answers.
  * 2. A queue of 20 rendered bed photos (lib/vision/render) with two real worker processes: all finished, none
  *    twice (each job started and finished once across both workers' logs), photos per second.
@@ -109,6 +110,8 @@ const TARGET = { requestsPerSecond: 300, p99Ms: 150 };
 const reportApi = { ...reportRun, target: TARGET, targetMet: reportRun.errors === 0 && reportRun.non2xx === 0 && reportRun.requestsPerSecond >= TARGET.requestsPerSecond && reportRun.latencyMs.p99 <= TARGET.p99Ms };
 log('shared page…');
 const sharedPage = await hammer(`/s/${token}`, { accept: 'text/html' });
+log('shared report data (what the page loads in the browser)…');
+const sharedData = await hammer(`/api/shared/${token}`, { accept: 'application/json' });
 server.kill('SIGTERM');
 
 // 2. twenty photos, two workers
@@ -181,7 +184,7 @@ const queue = {
   photosPerSecond: Math.round((PHOTOS / elapsedS) * 100) / 100,
 };
 
-process.stdout.write(`${JSON.stringify({ bench: 'load', buildMs, reportApi, sharedPage, queue, cpus: (await import('node:os')).cpus().length }, null, 2)}\n`);
+process.stdout.write(`${JSON.stringify({ bench: 'load', buildMs, reportApi, sharedPage, sharedData, queue, cpus: (await import('node:os')).cpus().length }, null, 2)}\n`);
 await closeDb();
 rmSync(dir, { recursive: true, force: true });
 process.exit(0);
