@@ -18,11 +18,11 @@ export interface LaunchedChromium {
   close: () => Promise<void>;
 }
 
-/** Starts headless Chromium with a fresh profile and the given viewport (CSS px). */
-export async function launchChromium(viewport: { width: number; height: number }): Promise<LaunchedChromium> {
+/** Starts headless Chromium with a fresh profile and the given viewport (CSS px); `javaScript: false` for a reader without it. */
+export async function launchChromium(viewport: { width: number; height: number }, opts: { javaScript?: boolean } = {}): Promise<LaunchedChromium> {
   const profile = mkdtempSync(join(tmpdir(), 'gridproof-chromium-'));
   try {
-    const ctx = await chromium.launchPersistentContext(profile, { executablePath: CHROMIUM_PATH, headless: true, args: CHROMIUM_ARGS, viewport });
+    const ctx = await chromium.launchPersistentContext(profile, { executablePath: CHROMIUM_PATH, headless: true, args: CHROMIUM_ARGS, viewport, javaScriptEnabled: opts.javaScript ?? true });
     return {
       ctx,
       close: async () => {

@@ -115,6 +115,20 @@ describe('a shared report opened without an account', () => {
     expect(await views()).toBe(1);
   });
 
+  it('shows the verdict without JavaScript, and says where the map and tables are', async () => {
+    const plain = await launchChromium({ width: 412, height: 900 }, { javaScript: false });
+    try {
+      const page = await plain.ctx.newPage();
+      expect((await page.goto(shareUrl))?.status()).toBe(200);
+      expect(await page.getByTestId('verdict-sentence').textContent()).toBe(sentence);
+      expect(await page.getByTestId('shared-report').textContent()).toContain('Shared dog table');
+      const pdf = page.getByRole('link', { name: 'download the PDF' });
+      expect(await pdf.getAttribute('href')).toBe(`${new URL(shareUrl).pathname.replace(/^\/s\//, '/api/shared/')}/report.pdf`);
+    } finally {
+      await plain.close();
+    }
+  });
+
   it('answers the report JSON at the same address for Accept: application/json', async () => {
     const r = await fetch(shareUrl, { headers: { accept: 'application/json' } });
     expect(r.status).toBe(200);
