@@ -129,6 +129,17 @@ describe('a shared report opened without an account', () => {
     }
   });
 
+  it('sends the members\' report API gzipped to a client that takes gzip, and as plain JSON to one that does not', async () => {
+    // undici's fetch undoes one Content-Encoding, so a body that decodes to the report was compressed once
+    const zipped = await fetch(`${baseUrl}/api/checks/${checkId}/report`, { headers: { cookie: api.cookie, 'accept-encoding': 'gzip' } });
+    expect(zipped.status).toBe(200);
+    expect(zipped.headers.get('content-encoding')).toBe('gzip');
+    expect((JSON.parse(await zipped.text()) as { summary: { sentence: string } }).summary.sentence).toBe(sentence);
+    const plain = await fetch(`${baseUrl}/api/checks/${checkId}/report`, { headers: { cookie: api.cookie, 'accept-encoding': 'identity' } });
+    expect(plain.headers.get('content-encoding')).toBeNull();
+    expect((JSON.parse(await plain.text()) as { summary: { sentence: string } }).summary.sentence).toBe(sentence);
+  });
+
   it('answers the report JSON at the same address for Accept: application/json', async () => {
     const r = await fetch(shareUrl, { headers: { accept: 'application/json' } });
     expect(r.status).toBe(200);
