@@ -87,6 +87,15 @@ describe('a check that needs review', () => {
     expect(await banner.textContent()).toContain(reason);
     const review = banner.getByRole('link', { name: 'Review the detections' });
     expect(await review.getAttribute('href')).toBe(`/checks/${checkId}/review`);
+    // the report's own colours follow the theme too: the map's ground is paper-light, then slate-dark
+    const map = page.locator('svg[role="img"][viewBox]').first();
+    await map.waitFor();
+    const ground = () => map.evaluate((el) => getComputedStyle(el).backgroundColor);
+    await page.emulateMedia({ colorScheme: 'light' });
+    expect(await ground()).toBe('rgb(251, 250, 245)');
+    await page.emulateMedia({ colorScheme: 'dark' });
+    expect(await ground()).toBe('rgb(22, 25, 28)');
+    await page.emulateMedia({ colorScheme: 'light' });
     await page.close();
   });
 
