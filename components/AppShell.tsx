@@ -6,15 +6,13 @@ import { isDemoMode } from '@/lib/auth/secret';
 import { ROLE_LABELS } from '@/lib/services/actor';
 import { SignOutButton } from './SignOutButton';
 import { ThemeToggle } from './ThemeToggle';
+import { BrandMark } from './BrandMark';
 import { WorkshopSwitch } from './WorkshopSwitch';
 
 export function Brand() {
   return (
     <Link href="/" className="flex items-center gap-2 text-xl font-bold no-underline">
-      <svg width="28" height="28" viewBox="0 0 28 28" aria-hidden="true">
-        <rect x="1.5" y="1.5" width="25" height="25" rx="4" fill="none" stroke="currentColor" strokeWidth="3" />
-        {[8, 14, 20].map((x) => [8, 14, 20].map((y) => <circle key={`${x}-${y}`} cx={x} cy={y} r="2" fill="currentColor" />))}
-      </svg>
+      <BrandMark />
       Gridproof
     </Link>
   );
