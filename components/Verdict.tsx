@@ -10,6 +10,12 @@ const STYLES: Record<string, { label: string; cls: string }> = {
   none: { label: 'Not checked yet', cls: 'bg-idle-bg text-idle border-idle' },
 };
 
+type ReportVerdict = 'pass' | 'marginal' | 'fail';
+/** Border, ground and text classes of a report's verdict box. */
+export const VERDICT_BOX: Record<ReportVerdict, string> = { pass: 'border-pass bg-pass-bg text-pass', marginal: 'border-warn bg-warn-bg text-warn', fail: 'border-fail bg-fail-bg text-fail' };
+/** The verdict in one word. */
+export const VERDICT_WORD: Record<ReportVerdict, string> = { pass: STYLES.pass!.label, marginal: STYLES.marginal!.label, fail: STYLES.fail!.label };
+
 export function Verdict({ status, verdict }: { status?: string | null; verdict?: string | null }) {
   const key = status === 'done' ? (verdict ?? 'none') : (status ?? 'none');
   const s = STYLES[key] ?? { label: key, cls: 'bg-idle-bg text-idle border-idle' };

@@ -26,16 +26,11 @@ import { PhotoMarks, type PhotoMark } from './PhotoMarks';
 import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
 import { ExaggerationSelect } from './ExaggerationSelect';
 import type { CheckDetail } from '@/lib/services/check-views';
+import { VERDICT_BOX, VERDICT_WORD } from '@/components/Verdict';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
 export type { CheckDetail };
 
-const VERDICT_BOX: Record<Report['summary']['verdict'], string> = {
-  pass: 'border-pass bg-pass-bg text-pass',
-  marginal: 'border-warn bg-warn-bg text-warn',
-  fail: 'border-fail bg-fail-bg text-fail',
-};
-const VERDICT_WORD: Record<Report['summary']['verdict'], string> = { pass: 'Pass', marginal: 'Marginal', fail: 'Fail' };
 
 export function useCheckDetail(checkId: string) {
   return useQuery({ queryKey: ['check-detail', checkId], queryFn: () => api<CheckDetail>(`/api/checks/${checkId}/detail`) });

@@ -80,14 +80,16 @@ export async function getCheck(db: Queryable, workshopId: string, id: string): P
   return row;
 }
 
-/** The columns a report read needs (no photo, detections or edits blobs), scoped by workshop. */
 /**
  * What the report routes need before the report itself: status, error and the report's revision (bumped by a
  * trigger whenever report_json changes), scoped by workshop. The report text is not read (see getCheckReportText).
  */
+/** 1 when a check has a report text, 0 otherwise, without reading the text (SQLite knows from the record header). */
+export const hasReportSql = sql<number>`${checks.reportJson} is not null`;
+
 export async function getCheckReportRef(db: Queryable, workshopId: string, id: string): Promise<{ id: string; status: CheckStatus; error: string | null; hasReport: boolean; reportRev: number } | undefined> {
   const [row] = await db
-    .select({ id: checks.id, status: checks.status, error: checks.error, hasReport: sql<number>`${checks.reportJson} is not null`, reportRev: checks.reportRev })
+    .select({ id: checks.id, status: checks.status, error: checks.error, hasReport: hasReportSql, reportRev: checks.reportRev })
     .from(checks)
     .where(and(eq(checks.workshopId, workshopId), eq(checks.id, id)))
     .limit(1);

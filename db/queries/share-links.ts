@@ -4,6 +4,7 @@
  */
 import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm';
 import { beds, checks, shareLinks } from '@/db/schema';
+import { hasReportSql } from './checks';
 import { newId, type Queryable } from './types';
 
 export type ShareLinkRow = typeof shareLinks.$inferSelect;
@@ -39,7 +40,7 @@ export async function findLiveSharedCheck(db: Queryable, tokenHash: string, now 
     .select({
       linkId: shareLinks.id, workshopId: shareLinks.workshopId, checkId: shareLinks.checkId, expiresAt: shareLinks.expiresAt,
       status: checks.status, title: checks.title, finishedAt: checks.finishedAt, createdAt: checks.createdAt,
-      hasReport: sql<number>`${checks.reportJson} is not null`, reportRev: checks.reportRev, bedName: beds.name,
+      hasReport: hasReportSql, reportRev: checks.reportRev, bedName: beds.name,
     })
     .from(shareLinks)
     .innerJoin(checks, and(eq(checks.id, shareLinks.checkId), eq(checks.workshopId, shareLinks.workshopId)))

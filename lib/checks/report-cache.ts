@@ -20,10 +20,11 @@ const cache = new Map<string, Entry>();
 const keyOf = (checkId: string, rev: number) => `${checkId}:${rev}`;
 
 async function entry(checkId: string, rev: number, load: () => Promise<StoredReportText | undefined>): Promise<Entry | undefined> {
-  const hit = cache.get(keyOf(checkId, rev));
+  const key = keyOf(checkId, rev);
+  const hit = cache.get(key);
   if (hit) {
-    cache.delete(keyOf(checkId, rev));
-    cache.set(keyOf(checkId, rev), hit);
+    cache.delete(key); // to the back: least recently used goes first
+    cache.set(key, hit);
     return hit;
   }
   const stored = await load();
