@@ -132,9 +132,9 @@ const unknown = () => new AppError('not_found', 404, 'No report is shared at thi
 
 /**
  * Opens a shared report by its token: 404 for a malformed or unknown (tampered) token, 410 for a revoked or
- * expired one. `countView` counts the opening.
+ * expired one. `countView` counts the opening; `comments: false` leaves the comments unread (answers none).
  */
-export async function openSharedReport(db: Db, token: string, opts: { countView?: boolean; now?: number } = {}): Promise<SharedReportView> {
+export async function openSharedReport(db: Db, token: string, opts: { countView?: boolean; comments?: boolean; now?: number } = {}): Promise<SharedReportView> {
   if (!SHARE_TOKEN_PATTERN.test(token)) throw unknown();
   const now = opts.now ?? Date.now();
   const hash = hashShareToken(token);
@@ -154,7 +154,7 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
     throw unknown();
   }
   const [comments] = await Promise.all([
-    listComments(db, row.workshopId, row.checkId),
+    opts.comments === false ? [] : listComments(db, row.workshopId, row.checkId),
     opts.countView ? q.recordShareLinkView(db, row.linkId, now) : undefined,
   ]);
   return {

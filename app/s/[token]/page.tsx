@@ -17,7 +17,7 @@ export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-ref
 export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
   const { token } = await params;
   // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
-  const view = await orNotFound(openSharedReport(await getDb(), token), [404, 410]);
+  const view = await orNotFound(openSharedReport(await getDb(), token, { comments: false }), [404, 410]);
   return (
     <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
       <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">

@@ -102,6 +102,8 @@ describe('share links', () => {
     expect(second.json).toEqual(JSON.parse(JSON.stringify(await openSharedReport(t.db, token))));
     expect(Object.keys(rest).sort()).toEqual(['bedName', 'checkTitle', 'checkedAt', 'expiresAt', 'report']);
     expect(comments).toHaveLength(1);
+    // the page draws only the verdict: it asks for no comments and gets none
+    expect((await openSharedReport(t.db, token, { comments: false })).comments).toEqual([]);
     expect(JSON.stringify(list.json)).not.toContain(token);
   });
 
