@@ -149,7 +149,7 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   }
   points = PointsSchema.parse(points);
   ctx.assertHeld();
-  await fitAndSave(ctx, deps, check.id, pattern, points, report, () => writes);
+  await fitAndSave(ctx, deps, check.id, pattern, points, corners !== null, report, () => writes);
   await setPhotoSize(ctx.db, photo.id, points.image.width, points.image.height).catch(() => undefined);
 }
 
@@ -174,19 +174,20 @@ export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'a
     writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, p)).catch(() => undefined);
   };
   if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
-  await fitAndSave(ctx, deps, check.id, pattern, parsed.data, report, () => writes);
+  // The edited detections carry the corners the reviewer placed.
+  await fitAndSave(ctx, deps, check.id, pattern, parsed.data, true, report, () => writes);
 }
 
 async function fitAndSave(
   ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>, checkId: string, pattern: Pattern, points: Points,
-  report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
+  cornersGiven: boolean, report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
 ) {
   report('fitting');
   let result: Report;
   try {
     result = await deps.analyze(points, pattern);
   } catch (e) {
-    if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, false), { cause: e });
+    if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, cornersGiven), { cause: e });
     throw e;
   }
   await pending();
