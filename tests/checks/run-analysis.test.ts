@@ -41,7 +41,7 @@ describe('a re-fit of hand-marked detections that cannot be fitted', () => {
     const first = await claimJob(t.db, { workerId: 'test', leaseMs: 60_000 });
     expect(first?.kind).toBe('check.analyze');
     await failJob(t.db, first!.id, first!.lockToken, { error: 'no square', retryable: false });
-    await requestRefit(t.db, { workshopId: shop.workshopId, checkId: check.id, userId: shop.userId, detections });
+    await requestRefit(t.db, { workshopId: shop.workshopId, checkId: check.id, userId: shop.userId, detections, edits: { kind: 'marked by hand' } });
     const job = await claimJob(t.db, { workerId: 'test', leaseMs: 60_000 });
     expect(job?.kind).toBe('check.refit');
 
