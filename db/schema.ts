@@ -91,6 +91,8 @@ export const photos = sqliteTable('photos', {
   byteSize: integer('byte_size').notNull(),
   widthPx: integer('width_px'),
   heightPx: integer('height_px'),
+  /** Why no display copy could be made of this photo (undecodable, too many pixels…), or null. */
+  previewError: text('preview_error'),
   originalName: text('original_name'),
   uploadedBy: text('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
@@ -283,4 +285,6 @@ export const rateLimits = sqliteTable('rate_limits', {
   key: text('key').primaryKey(),
   count: integer('count').notNull(),
   resetAt: integer('reset_at').notNull(),
+  /** No further attempt is admitted before this time, ms (the growing delay of a sign-in pair), or null. */
+  blockedUntil: integer('blocked_until'),
 });
