@@ -14,6 +14,7 @@ import { useCheckDetail } from '@/components/report/CheckReport';
 import { BedMap, autoExaggeration, type MapItem } from '@/components/report/BedMap';
 import { MarkShape } from '@/components/report/Mark';
 import type { Comparison } from '@/lib/geometry';
+import { BAND_K, bandRadiusMm } from '@/lib/geometry/band';
 import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
@@ -39,7 +40,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
       const n = nominal.get(`${c.family}:${c.col}:${c.row}`);
       if (!n) return [];
       return [{ key: c.label, label: c.label, x: n.x, y: n.y, dx: c.dx, dy: c.dy, mark: c.significant ? 'out' as const : 'in' as const, emphasis: c.significant,
-        title: `${c.label}: moved ${formatLength(c.r, unit)} (X ${formatLength(c.dx, unit, { signed: true })}, Y ${formatLength(c.dy, unit, { signed: true })}); 95 % noise band ${formatLength(2.448 * c.uncertaintyMm, unit)}${c.significant ? ' — a real change' : ''}` }];
+        title: `${c.label}: moved ${formatLength(c.r, unit)} (X ${formatLength(c.dx, unit, { signed: true })}, Y ${formatLength(c.dy, unit, { signed: true })}); 95 % noise band ${formatLength(bandRadiusMm(c.uncertaintyMm), unit)}${c.significant ? ' — a real change' : ''}` }];
     });
   }, [data, reportB.data, unit]);
 
@@ -60,7 +61,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
         <p><strong>Before:</strong> <Link className="underline" href={`/checks/${a}/report`}>{label(detA.data)}</Link></p>
         <p><strong>After:</strong> <Link className="underline" href={`/checks/${b}/report`}>{label(detB.data)}</Link></p>
         <p className="text-xl font-bold" data-testid="compare-sentence">{data.summary.sentence}</p>
-        <p className="text-sm text-muted">A change is marked real when it is larger than the two measurements’ combined uncertainty at 95 % (2.45 σ for a move in the plane). {data.summary.compared} positions compared; RMS change {formatLength(data.summary.rmsChangeMm, unit)}.{data.onlyInA.length + data.onlyInB.length > 0 ? ` Seen in one check only: ${data.onlyInA.length} before, ${data.onlyInB.length} after.` : ''}</p>
+        <p className="text-sm text-muted">A change is marked real when it is larger than the two measurements’ combined uncertainty at 95 % ({BAND_K.toFixed(2)} σ for a move in the plane). {data.summary.compared} positions compared; RMS change {formatLength(data.summary.rmsChangeMm, unit)}.{data.onlyInA.length + data.onlyInB.length > 0 ? ` Seen in one check only: ${data.onlyInA.length} before, ${data.onlyInB.length} after.` : ''}</p>
       </section>
       <div className="no-print flex flex-wrap items-end gap-3">
         {(['mm', 'in'] as const).map((u) => <button key={u} type="button" className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-pressed={unit === u} onClick={() => setUnit(u)}>{u === 'mm' ? 'mm' : 'inch'}</button>)}
@@ -106,7 +107,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
             <tbody className="font-mono">
               {(showAll ? sorted : sorted.slice(0, 25)).map((c) => (
                 <tr key={c.label} className={`border-b border-line ${c.significant ? 'font-bold' : ''}`} data-significant={c.significant}>
-                  <td className="py-2 pr-4">{c.label}</td><td className="pr-4">{formatLength(c.r, unit)}</td><td className="pr-4">{formatLength(c.dx, unit, { signed: true })}</td><td className="pr-4">{formatLength(c.dy, unit, { signed: true })}</td><td className="pr-4">{formatLength(2.448 * c.uncertaintyMm, unit)}</td><td>{c.significant ? 'yes' : 'no'}</td>
+                  <td className="py-2 pr-4">{c.label}</td><td className="pr-4">{formatLength(c.r, unit)}</td><td className="pr-4">{formatLength(c.dx, unit, { signed: true })}</td><td className="pr-4">{formatLength(c.dy, unit, { signed: true })}</td><td className="pr-4">{formatLength(bandRadiusMm(c.uncertaintyMm), unit)}</td><td>{c.significant ? 'yes' : 'no'}</td>
                 </tr>
               ))}
             </tbody>

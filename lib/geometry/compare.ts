@@ -1,12 +1,11 @@
 /**
  * Comparison of two reports of one bed (bed frame, mm): per-position change vectors (b − a of the measured
  * positions, each already placed on the bed by its own best rigid fit), panel moves, and whether each change is
- * larger than the two measurements' combined uncertainty at 95 % (2-D: r > 2.448 σ, σ = √(σa² + σb²)).
+ * larger than the two measurements' combined uncertainty at 95 % (the 2-D band of band.ts: r > 2.448 σ,
+ * σ = √(σa² + σb²)).
  */
+import { beyondBand, combinedSigmaMm } from './band';
 import type { Report } from './contract';
-
-/** 95 % radius of a 2-D isotropic normal in units of its per-axis σ: √(−2 ln 0.05). */
-export const R95_2D = Math.sqrt(-2 * Math.log(0.05));
 
 export interface PositionChange { label: string; family: string; col: number; row: number; dx: number; dy: number; r: number; uncertaintyMm: number; significant: boolean }
 export interface PanelChange { id: string; dx: number; dy: number; rotationDeg: number; uncertaintyMm: number; significant: boolean }
@@ -28,8 +27,8 @@ export function compareReports(a: Report, b: Report): Comparison {
     const q = bm.get(key(p));
     if (!p.measured || !q?.measured) { if (p.measured && !q?.measured) onlyInA.push(p.label); continue; }
     const dx = q.measured.x - p.measured.x, dy = q.measured.y - p.measured.y, r = Math.hypot(dx, dy);
-    const u = Math.hypot(p.uncertaintyMm ?? 0, q.uncertaintyMm ?? 0);
-    positions.push({ label: p.label, family: p.family, col: p.col, row: p.row, dx, dy, r, uncertaintyMm: u, significant: r > R95_2D * u });
+    const u = combinedSigmaMm(p.uncertaintyMm ?? 0, q.uncertaintyMm ?? 0);
+    positions.push({ label: p.label, family: p.family, col: p.col, row: p.row, dx, dy, r, uncertaintyMm: u, significant: beyondBand(r, u) });
   }
   const am = new Map(a.positions.map((p) => [key(p), p]));
   for (const q of b.positions) if (q.measured && !am.get(key(q))?.measured) onlyInB.push(q.label);
@@ -39,8 +38,8 @@ export function compareReports(a: Report, b: Report): Comparison {
     const q = bp.get(p.id);
     if (!q) continue;
     const dx = q.dx - p.dx, dy = q.dy - p.dy;
-    const u = Math.hypot(p.uncertaintyMm, q.uncertaintyMm);
-    panels.push({ id: p.id, dx, dy, rotationDeg: q.rotationDeg - p.rotationDeg, uncertaintyMm: u, significant: Math.hypot(dx, dy) > R95_2D * u });
+    const u = combinedSigmaMm(p.uncertaintyMm, q.uncertaintyMm);
+    panels.push({ id: p.id, dx, dy, rotationDeg: q.rotationDeg - p.rotationDeg, uncertaintyMm: u, significant: beyondBand(Math.hypot(dx, dy), u) });
   }
   const sig = positions.filter((c) => c.significant);
   const max = positions.reduce((m, c) => Math.max(m, c.r), 0);

@@ -1,19 +1,18 @@
 /**
- * Verdicts. Per position (bed frame, mm): `in` when the deviation's 95 % band (r ± 1.96σ) lies below the
- * radial tolerance, `out` when it lies above, `marginal` when the tolerance falls inside it, `missing` when the
+ * Verdicts. Per position (bed frame, mm): `in` when the deviation's 95 % band (r ± 2.448σ, the 2-D radius of
+ * band.ts) lies below the radial tolerance, `out` when it lies above, `marginal` when the tolerance falls inside it, `missing` when the
  * position was expected but not seen. Per panel: the move that puts it back, in mm and inches. Whole bed: pass,
  * marginal or fail, with the reasons in one sentence.
  */
 import { MM_PER_IN, type Report, type Verdict } from './contract';
+import { bandRadiusMm } from './band';
 import type { Lattice } from './lattice';
 
-/** Two-sided 95 % normal quantile. */
-export const Z95 = 1.959964;
-
-/** Verdict of a position with deviation r (mm), 1σ uncertainty u (mm) and radial tolerance t (mm). */
+/** Verdict of a position with deviation r (mm), per-axis 1σ uncertainty u (mm) and radial tolerance t (mm). */
 export function positionVerdict(rMm: number, uMm: number, tolMm: number): Verdict {
-  if (rMm + Z95 * uMm <= tolMm) return 'in';
-  if (rMm - Z95 * uMm > tolMm) return 'out';
+  const bandMm = bandRadiusMm(uMm);
+  if (rMm + bandMm <= tolMm) return 'in';
+  if (rMm - bandMm > tolMm) return 'out';
   return 'marginal';
 }
 
