@@ -18,6 +18,7 @@ import { globalSigma, latticeShape, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
 import { bedVerdict, positionVerdict, panelCorrection } from './verdict';
+import { formFit, positionForm, shapeCheck } from './form';
 import { patternToMm } from './units';
 
 export interface AnalyzeOptions {
@@ -284,6 +285,16 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     return { ...base, measured: { x, y }, deviation: { dx, dy, r }, uncertaintyMm: u, verdict: positionVerdict(r, u, fam.toleranceMm) };
   });
 
+  // Hole to hole (form.ts): lattice-frame positions, before the square's shape, after the best robust affine.
+  const formAt = positions.flatMap((p, pos) => (p.measured ? [pos] : []));
+  const detAt = (pos: number) => asg.detOf[pos]!;
+  const form = formFit(formAt.flatMap((pos) => [lat.positions[pos]!.x, lat.positions[pos]!.y]), formAt.flatMap((pos) => toLattice(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)),
+    formAt.map((pos) => sigmaPx * localScaleModel(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)), formAt.map((pos) => inFit[detAt(pos)]!));
+  formAt.forEach((pos, k) => { positions[pos]!.form = positionForm(form, k, positions[pos]!.toleranceMm); });
+  // Overall size and squareness: the square's shape with the stretch or shear the panels' offsets make together.
+  const Lf = form.affine.L, Lt: Mat2 = [Ls[0] * Lf[0] + Ls[1] * Lf[2], Ls[0] * Lf[1] + Ls[1] * Lf[3], Ls[2] * Lf[0] + Ls[3] * Lf[2], Ls[2] * Lf[1] + Ls[3] * Lf[3]];
+  const shapeOk = shapeCheck(lat.positions.flatMap((q) => [q.x, q.y]), P, observed ? decomposeAffine(Lt) : null, observed ? sig : null, Math.min(...lat.families.map((f) => f.toleranceMm)));
+
   // Panels.
   const cov = model.cov, np = model.np;
   const covAt = (a: number, b: number) => cov[a * np + b]!;
@@ -331,6 +342,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
       rotationDeg: rotationSigmaDeg,
       scaleX: observed ? sig.scaleX : null, scaleY: observed ? sig.scaleY : null, squarenessDeg: observed ? sig.squarenessRad * DEG : null,
     },
+    shapeCheck: shapeOk,
   };
 
   const rk = fOut / model.lens.fPx;
@@ -348,7 +360,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const warnings: string[] = [];
   if (init.tiedShifts > 1) warnings.push(`the photo does not show where the lattice starts (${init.tiedShifts} whole-pitch placements fit equally well); labels assume the holes seen are centred on the pattern`);
   if (reason) warnings.push(`lattice shape not observed: ${reason}`);
-  const summary = bedVerdict(positions, panels, lat, notExpected);
+  const summary = bedVerdict(positions, panels, lat, notExpected, shapeOk);
   if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,

@@ -111,6 +111,26 @@ export type Points = z.infer<typeof PointsSchema>;
 export const VERDICTS = ['in', 'marginal', 'out', 'missing'] as const;
 export type Verdict = (typeof VERDICTS)[number];
 
+/** A verdict on a measured quantity (no `missing`). */
+const MeasuredVerdict = z.enum(['in', 'marginal', 'out']);
+
+/**
+ * Hole-to-hole (form) deviation of a measured position, bed frame mm: its deviation once the lattice's own shape is
+ * taken out (after the best robust 2-D affine of all matched positions onto nominal, panels' misplacement kept), with
+ * its 1σ (centre noise and the affine fit; the reference square does not enter) and its verdict. Absent in reports
+ * made before it existed.
+ */
+export const ReportFormSchema = z.object({ dx: finite, dy: finite, r: finite, uncertaintyMm: finite, verdict: MeasuredVerdict });
+export type ReportForm = z.infer<typeof ReportFormSchema>;
+
+/**
+ * Overall size and squareness: the largest displacement (mm) that the measured scale X, scale Y and squareness make
+ * at any nominal position after the best rigid placement, its 1σ, and its verdict against the tightest tolerance
+ * (mm). `worstMm` and `uncertaintyMm` are null (verdict `marginal`) when the reference could not observe the shape.
+ */
+export const ReportShapeCheckSchema = z.object({ verdict: MeasuredVerdict, worstMm: finite.nullable(), uncertaintyMm: finite.nullable(), toleranceMm: finite });
+export type ReportShapeCheck = z.infer<typeof ReportShapeCheckSchema>;
+
 export const ReportPositionSchema = z.object({
   family: z.string(),
   col: z.number().int(),
@@ -127,6 +147,8 @@ export const ReportPositionSchema = z.object({
   hidden: z.boolean().optional(),
   /** True when a missing position falls outside the photo. */
   outOfView: z.boolean().optional(),
+  /** Hole-to-hole deviation; `deviation`, `uncertaintyMm` and `verdict` above are the rigid ones (whole bed). */
+  form: ReportFormSchema.optional(),
 });
 export type ReportPosition = z.infer<typeof ReportPositionSchema>;
 
@@ -164,6 +186,8 @@ export const ReportSchema = z.object({
     observed: z.boolean(),
     reason: z.string().optional(),
     uncertainty: z.object({ rotationDeg: Uncertain, scaleX: Uncertain, scaleY: Uncertain, squarenessDeg: Uncertain }),
+    /** Overall size and squareness against the tightest tolerance; absent in older reports. */
+    shapeCheck: ReportShapeCheckSchema.optional(),
   }),
   camera: z.object({ focalPx: finite, k1: finite, k2: finite }),
   summary: z.object({
@@ -177,6 +201,11 @@ export const ReportSchema = z.object({
     verdict: z.enum(['pass', 'marginal', 'fail']),
     /** The verdict and its reasons in one sentence a machinist understands. */
     sentence: z.string(),
+    /** Positions out and too close to call hole to hole (form); absent in older reports. */
+    formOut: z.number().int().optional(),
+    formMarginal: z.number().int().optional(),
+    /** Overall size and squareness in one sentence, with what would settle it when the reference cannot; absent in older reports. */
+    shapeSentence: z.string().optional(),
   }),
   /** Things the reader should know that are not figures (ambiguous placement, unobserved terms…). */
   warnings: z.array(z.string()).optional(),
