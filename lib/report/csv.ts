@@ -19,10 +19,14 @@ export function toCsv(rows: readonly (readonly (string | number | boolean | null
   return rows.map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n';
 }
 
-/** The positions table of a report as CSV, lengths in `unit`. */
+/**
+ * The positions table of a report as CSV, lengths in `unit`. `deviation`, its uncertainty and `verdict` are against the
+ * whole bed (rigid); the `hole_to_hole_*` columns are the form deviation (empty for reports made before it existed).
+ */
 export function positionsCsv(report: Report, unit: LengthUnit): string {
   const u = unit;
-  const header = ['label', 'family', 'col', 'row', 'panel', `nominal_x_${u}`, `nominal_y_${u}`, `measured_x_${u}`, `measured_y_${u}`, `dx_${u}`, `dy_${u}`, `deviation_${u}`, `uncertainty_1sigma_${u}`, `tolerance_${u}`, 'verdict', 'under_reference'];
+  const header = ['label', 'family', 'col', 'row', 'panel', `nominal_x_${u}`, `nominal_y_${u}`, `measured_x_${u}`, `measured_y_${u}`, `dx_${u}`, `dy_${u}`, `deviation_${u}`, `uncertainty_1sigma_${u}`, `tolerance_${u}`, 'verdict', 'under_reference',
+    `hole_to_hole_dx_${u}`, `hole_to_hole_dy_${u}`, `hole_to_hole_deviation_${u}`, `hole_to_hole_uncertainty_1sigma_${u}`, 'hole_to_hole_verdict'];
   const rows = report.positions.map((p) => [
     p.label, p.family, p.col, p.row, p.panel ?? '',
     csvLength(p.nominal.x, u), csvLength(p.nominal.y, u),
@@ -30,6 +34,7 @@ export function positionsCsv(report: Report, unit: LengthUnit): string {
     csvLength(p.deviation?.dx, u), csvLength(p.deviation?.dy, u), csvLength(p.deviation?.r, u),
     csvLength(p.uncertaintyMm, u), csvLength(p.toleranceMm, u),
     p.verdict, p.hidden ? 'yes' : '',
+    csvLength(p.form?.dx, u), csvLength(p.form?.dy, u), csvLength(p.form?.r, u), csvLength(p.form?.uncertaintyMm, u), p.form?.verdict ?? '',
   ]);
   return toCsv([header, ...rows]);
 }

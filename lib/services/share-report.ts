@@ -46,6 +46,7 @@ export function publicReport(r: Report): Report {
     positions: r.positions.map((p) => ({
       family: p.family, col: p.col, row: p.row, label: p.label, panel: p.panel, nominal: p.nominal, measured: p.measured,
       deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}),
+      ...(p.form ? { form: { dx: p.form.dx, dy: p.form.dy, r: p.form.r, uncertaintyMm: p.form.uncertaintyMm, verdict: p.form.verdict } } : {}),
     })),
     unmatched: [],
     panels: r.panels.map((q) => ({ id: q.id, dx: q.dx, dy: q.dy, rotationDeg: q.rotationDeg, positions: q.positions, uncertaintyMm: q.uncertaintyMm, ...(q.rotationUncertaintyDeg !== undefined ? { rotationUncertaintyDeg: q.rotationUncertaintyDeg } : {}), correction: q.correction })),
@@ -54,9 +55,12 @@ export function publicReport(r: Report): Report {
       rotationDeg: r.lattice.rotationDeg, scaleX: r.lattice.scaleX, scaleY: r.lattice.scaleY, squarenessDeg: r.lattice.squarenessDeg,
       observed: r.lattice.observed, ...(r.lattice.reason ? { reason: r.lattice.reason } : {}),
       uncertainty: { rotationDeg: r.lattice.uncertainty.rotationDeg, scaleX: r.lattice.uncertainty.scaleX, scaleY: r.lattice.uncertainty.scaleY, squarenessDeg: r.lattice.uncertainty.squarenessDeg },
+      ...(r.lattice.shapeCheck ? { shapeCheck: { ...r.lattice.shapeCheck } } : {}),
     },
     // The contract requires a camera; a shared report carries neutral values, not the photo's.
     camera: { focalPx: 0, k1: 0, k2: 0 },
-    summary: { matched: r.summary.matched, missing: r.summary.missing, rmsMm: r.summary.rmsMm, maxMm: r.summary.maxMm, out: r.summary.out, marginal: r.summary.marginal, verdict: r.summary.verdict, sentence: r.summary.sentence },
+    summary: { matched: r.summary.matched, missing: r.summary.missing, rmsMm: r.summary.rmsMm, maxMm: r.summary.maxMm, out: r.summary.out, marginal: r.summary.marginal, verdict: r.summary.verdict, sentence: r.summary.sentence,
+      ...(r.summary.formOut !== undefined ? { formOut: r.summary.formOut } : {}), ...(r.summary.formMarginal !== undefined ? { formMarginal: r.summary.formMarginal } : {}),
+      ...(r.summary.shapeSentence ? { shapeSentence: r.summary.shapeSentence } : {}) },
   };
 }

@@ -16,6 +16,10 @@ describe('analyze CLI', () => {
     const report = ReportSchema.parse(JSON.parse(r.stdout));
     expect(report.summary.matched).toBeGreaterThan(60);
     expect(report.positions[0]!.label).toBe('insert A1');
+    // Both verdicts: every measured position has its hole-to-hole deviation, and the lattice its size check.
+    expect(report.positions.filter((p) => p.measured).every((p) => p.form && ['in', 'marginal', 'out'].includes(p.form.verdict))).toBe(true);
+    expect(report.lattice.shapeCheck?.toleranceMm).toBeGreaterThan(0);
+    expect(report.summary.shapeSentence).toMatch(/^Overall size and squareness: /);
   });
 
   it('exits 2 with one line naming the field on bad input', () => {

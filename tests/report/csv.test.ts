@@ -16,17 +16,18 @@ describe('CSV export', () => {
 
   const report = {
     positions: [
-      { family: 'ins', col: 0, row: 0, label: 'insert A1', panel: 'P1', nominal: { x: 50.8, y: 25.4 }, measured: { x: 50.9, y: 25.2 }, deviation: { dx: 0.1, dy: -0.2, r: Math.hypot(0.1, 0.2) }, uncertaintyMm: 0.05, toleranceMm: 0.5, verdict: 'in' },
+      { family: 'ins', col: 0, row: 0, label: 'insert A1', panel: 'P1', nominal: { x: 50.8, y: 25.4 }, measured: { x: 50.9, y: 25.2 }, deviation: { dx: 0.1, dy: -0.2, r: Math.hypot(0.1, 0.2) }, uncertaintyMm: 0.05, toleranceMm: 0.5, verdict: 'in', form: { dx: 0.03, dy: -0.04, r: 0.05, uncertaintyMm: 0.01, verdict: 'in' } },
       { family: 'ins', col: 1, row: 0, label: 'insert B1', panel: null, nominal: { x: 101.6, y: 25.4 }, measured: null, deviation: null, uncertaintyMm: null, toleranceMm: 0.5, verdict: 'missing', hidden: true },
     ],
   } as unknown as Report;
 
   it('writes every position with lengths in mm', () => {
     const lines = positionsCsv(report, 'mm').split('\r\n');
-    expect(lines[0]).toBe('label,family,col,row,panel,nominal_x_mm,nominal_y_mm,measured_x_mm,measured_y_mm,dx_mm,dy_mm,deviation_mm,uncertainty_1sigma_mm,tolerance_mm,verdict,under_reference');
+    expect(lines[0]).toBe('label,family,col,row,panel,nominal_x_mm,nominal_y_mm,measured_x_mm,measured_y_mm,dx_mm,dy_mm,deviation_mm,uncertainty_1sigma_mm,tolerance_mm,verdict,under_reference,'
+      + 'hole_to_hole_dx_mm,hole_to_hole_dy_mm,hole_to_hole_deviation_mm,hole_to_hole_uncertainty_1sigma_mm,hole_to_hole_verdict');
     // √(0.1² + 0.2²) = 0.2236… → 0.224
-    expect(lines[1]).toBe('insert A1,ins,0,0,P1,50.800,25.400,50.900,25.200,0.100,-0.200,0.224,0.050,0.500,in,');
-    expect(lines[2]).toBe('insert B1,ins,1,0,,101.600,25.400,,,,,,,0.500,missing,yes');
+    expect(lines[1]).toBe('insert A1,ins,0,0,P1,50.800,25.400,50.900,25.200,0.100,-0.200,0.224,0.050,0.500,in,,0.030,-0.040,0.050,0.010,in');
+    expect(lines[2]).toBe('insert B1,ins,1,0,,101.600,25.400,,,,,,,0.500,missing,yes,,,,,');
     expect(lines).toHaveLength(4);
     expect(lines[3]).toBe('');
   });

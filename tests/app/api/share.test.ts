@@ -13,6 +13,7 @@ import { GET as sharedGet } from '@/app/api/shared/[token]/route';
 import { GET as sharedPdf } from '@/app/api/shared/[token]/report.pdf/route';
 import { outgoingMail, rateLimits, shareLinks } from '@/db/schema';
 import { startSession } from '@/lib/auth/session';
+import type { Report } from '@/lib/geometry/contract';
 import type { Actor } from '@/lib/services/actor';
 import { addComment } from '@/lib/services/comments';
 import { openSharedReport } from '@/lib/services/share';
@@ -118,6 +119,16 @@ describe('share links', () => {
     for (const secret of [SECRET_PHOTO_NAME, 'Hidden second bed', 'Private check', 'comment on the other check', 'Sharing shop', owner.user.email, reviewer.user.email, owner.workshopId, otherCheckId, 'focalSource', 'principalPoint', 'photoId', 'sha256']) {
       expect(text).not.toContain(secret);
     }
+  });
+
+  it('carries the hole-to-hole verdicts and the overall size and squareness line of the report', async () => {
+    const v = (await openShared(token)).json as { report: Report };
+    const core = coreReport(SMALL_PATTERN);
+    // The same figures the measurement core wrote, position by position (the link's report is the stored one).
+    expect(v.report.positions.map((p) => p.form)).toEqual(core.positions.map((p) => p.form));
+    expect(v.report.positions.some((p) => p.form)).toBe(true);
+    expect(v.report.lattice.shapeCheck).toEqual(core.lattice.shapeCheck);
+    expect(v.report.summary.shapeSentence).toBe(core.summary.shapeSentence);
   });
 
   it('refuses a tampered or truncated token with 404', async () => {
