@@ -14,7 +14,7 @@ import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, nearestNode, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { huberWeight, madSigma, median, ransac } from './robust';
-import { globalSigma, latticeShape, type ShapeEstimate } from './shape';
+import { globalSigma, latticeShape, shapeDisplacementVar, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
 import { bedVerdict, positionVerdict, panelCorrection } from './verdict';
@@ -22,7 +22,10 @@ import { formFit, positionForm, shapeCheck } from './form';
 import { patternToMm } from './units';
 
 export interface AnalyzeOptions {
-  /** Assumed 1σ precision of the reference square's corners, px (default 0.1). */
+  /**
+   * 1σ precision of the reference square's corners, px. Overrides `points.reference.cornerSigmaPx`; without either,
+   * 0.1 px raised to the square's own residual (shape.ts).
+   */
   cornerSigmaPx?: number;
   /** Relative diameter mismatch (e.g. 0.35 = ±35 %) within which a detection may belong to a family. */
   diameterTolerance?: number;
@@ -218,7 +221,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
 
   // Shape from the square; the focal length (EXIF, else from the metric homography when the view is oblique
   // enough, else assumed) is needed only to correct for a thick reference sheet and to report the camera.
-  const cornerSigma = options.cornerSigmaPx ?? 0.1;
+  const cornerSigma = options.cornerSigmaPx ?? pts.reference.cornerSigmaPx;
   let shape: ShapeEstimate = latticeShape(model, corners, pts.reference.sizeMm, cornerSigma);
   const metricH = mat3Mul(model.H, affineToMat3(invert2x2(shape.L)));
   const fEst = pts.image.focalPx ? null : focalFromHomography(metricH, W / 2, Hh / 2);
@@ -280,7 +283,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     const dx = x - q.x, dy = y - q.y, r = Math.hypot(dx, dy);
     const s = localScaleModel(model, det.u[d]!, det.v[d]!);
     const ex = q.x - cxm, ey = q.y - cym;
-    const shapeVar = observed ? ((ex * sig.scaleX) ** 2 + (ey * sig.scaleY) ** 2 + ((Math.hypot(ex, ey) * sig.squarenessRad) / 2) ** 2) / 2 : 0;
+    const shapeVar = observed ? shapeDisplacementVar(shape.cov, ex, ey) : 0;
     const u = Math.sqrt((sigmaPx * s) ** 2 + shapeVar);
     return { ...base, measured: { x, y }, deviation: { dx, dy, r }, uncertaintyMm: u, verdict: positionVerdict(r, u, fam.toleranceMm) };
   });
@@ -364,7 +367,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
-    diagnostics: { diameterRatio: kappa, residualSigmaPx: model.sigmaPx, centreSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
+    diagnostics: { scaleSigmaParts: { corners: shape.parts.cornersScale, fit: shape.parts.fitScale }, diameterRatio: kappa, residualSigmaPx: model.sigmaPx, centreSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
   } as Report;
 }
 

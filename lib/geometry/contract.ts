@@ -93,6 +93,8 @@ export const PointsSchema = z.object({
     sizeMm: positive.max(2000),
     /** The reference square's four corners in image px, in order around the square. */
     corners: z.tuple([PointPx, PointPx, PointPx, PointPx]),
+    /** 1σ of each corner coordinate, px, as the detector knows it (from its fitted edges' residuals). */
+    cornerSigmaPx: positive.max(10).optional(),
   }),
   holes: z
     .array(

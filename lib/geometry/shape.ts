@@ -19,6 +19,11 @@ export interface ShapeEstimate {
   L: Mat2;
   terms: AffineTerms;
   sigma: { scaleX: number; scaleY: number; squarenessRad: number };
+  /** Covariance of (scaleX, scaleY, squarenessRad), row-major 3 × 3 (scales unitless, squareness rad). */
+  cov: number[];
+  /** 1σ of scale X and Y from the corners alone and from the fit (homography and lens) alone (unitless). */
+  parts: { cornersScale: number; fitScale: number };
+  /** Corner precision used, px: the stated one, or the square's own residual when that shows it too optimistic. */
   cornerSigmaPx: number;
   /** RMS of the square's affine fit, px (2 degrees of freedom). */
   squareResidualPx: number;
@@ -43,27 +48,43 @@ function shapeOf(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, g: Array
 
 const wrap = (a: number) => Math.atan2(Math.sin(a), Math.cos(a));
 
-/** Lattice shape from the square, with 1σ uncertainties. `cornerSigmaPx` is the assumed corner precision. */
-export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, cornerSigmaPx: number): ShapeEstimate {
+/**
+ * The square's residual (8 coordinates, 6 affine terms: 2 degrees of freedom) over the stated corner σ, above which
+ * the stated σ is judged too optimistic: √(χ²₂ at 99 % / 2) = √(9.2103 / 2) (χ² quantile, standard tables).
+ */
+export const CORNER_RESIDUAL_GATE = Math.sqrt(9.2103 / 2);
+
+/** The assumed corner precision (px) when neither the points nor the caller state one. */
+export const DEFAULT_CORNER_SIGMA_PX = 0.1;
+
+/**
+ * Lattice shape from the square, with 1σ uncertainties and their covariance.
+ * @param cornerSigmaPx stated 1σ of each corner coordinate, px (independent corners); undefined: the default,
+ *   raised to the square's own residual whenever that is larger
+ * Model: corners independent and isotropic with σ_c; a stated σ_c is replaced by the square's residual only when the
+ * residual exceeds it by `CORNER_RESIDUAL_GATE` (χ² test at 99 %), since a residual of 2 degrees of freedom
+ * scatters widely (its square is exponential) and taking the larger of the two would inflate σ by chance.
+ */
+export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, cornerSigmaPx?: number): ShapeEstimate {
   const g0 = Float64Array.from([...m.hHat.subarray(0, 8), m.lens.k1, m.lens.k2]);
   const base = shapeOf(m, cornersPx, sizeMm, g0);
   const t0 = decomposeAffine(base.L);
   const side = (cornersPx.reduce((s, c, i) => { const d = cornersPx[(i + 1) % 4]!; return s + Math.hypot(d[0] - c[0], d[1] - c[1]); }, 0)) / 4;
   const pxPerMm = side / sizeMm;
   const resPx = base.resMm * pxPerMm;
-  const sc = Math.max(cornerSigmaPx, resPx);
+  const sc = cornerSigmaPx === undefined ? Math.max(DEFAULT_CORNER_SIGMA_PX, resPx) : resPx > CORNER_RESIDUAL_GATE * cornerSigmaPx ? resPx : cornerSigmaPx;
   const vec = (L: Mat2) => { const t = decomposeAffine(L); return [t.scaleX, t.scaleY, wrap(t.squarenessRad - t0.squarenessRad)]; };
   const v0 = vec(base.L);
-  const var3 = [0, 0, 0];
-  // Corners: independent, isotropic σ.
+  // Corners: independent, isotropic σ. Jc is 3 × 8.
   const h = 0.01;
+  const Jc: number[][] = [[], [], []];
   for (let k = 0; k < 8; k++) {
     const c = cornersPx.map((p) => [p[0], p[1]] as [number, number]);
     c[k >> 1]![k & 1]! += h;
     const v = vec(shapeOf(m, c, sizeMm, g0).L);
-    for (let a = 0; a < 3; a++) var3[a]! += ((v[a]! - v0[a]!) / h) ** 2 * sc * sc;
+    for (let a = 0; a < 3; a++) Jc[a]![k] = (v[a]! - v0[a]!) / h;
   }
-  // Homography and lens: full covariance of the 10 global parameters.
+  // Homography and lens: full covariance of the 10 global parameters. Jg is 3 × 10.
   const Jg: number[][] = [[], [], []];
   for (let p = 0; p < 10; p++) {
     const sd = Math.sqrt(Math.max(m.cov[p * m.np + p]!, 0));
@@ -73,16 +94,35 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
     const v = vec(shapeOf(m, cornersPx, sizeMm, g).L);
     for (let a = 0; a < 3; a++) Jg[a]![p] = (v[a]! - v0[a]!) / step;
   }
-  for (let a = 0; a < 3; a++) {
+  const covC = new Array<number>(9).fill(0), covG = new Array<number>(9).fill(0);
+  for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) {
     let s = 0;
-    for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) s += Jg[a]![p]! * m.cov[p * m.np + q]! * Jg[a]![q]!;
-    var3[a]! += Number.isFinite(s) ? Math.max(s, 0) : Infinity;
+    for (let k = 0; k < 8; k++) s += Jc[a]![k]! * Jc[b]![k]!;
+    covC[a * 3 + b] = s * sc * sc;
+    let t = 0;
+    for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) t += Jg[a]![p]! * m.cov[p * m.np + q]! * Jg[b]![q]!;
+    covG[a * 3 + b] = Number.isFinite(t) ? t : a === b ? Infinity : 0;
   }
+  const cov = covC.map((c, i) => c + covG[i]!);
+  const sd = (c: number[], i: number) => Math.sqrt(Math.max(c[i * 4]!, 0));
   return {
     L: base.L, terms: t0,
-    sigma: { scaleX: Math.sqrt(var3[0]!), scaleY: Math.sqrt(var3[1]!), squarenessRad: Math.sqrt(var3[2]!) },
+    sigma: { scaleX: sd(cov, 0), scaleY: sd(cov, 1), squarenessRad: sd(cov, 2) },
+    cov,
+    parts: { cornersScale: Math.hypot(sd(covC, 0), sd(covC, 1)) / Math.SQRT2, fitScale: Math.hypot(sd(covG, 0), sd(covG, 1)) / Math.SQRT2 },
     cornerSigmaPx: sc, squareResidualPx: resPx, squareSidePx: side,
   };
+}
+
+/**
+ * Mean per-axis variance (mm²) of the displacement that an error of the shape terms makes at (ex, ey) mm from the
+ * centroid of the fitted positions, once the best rigid fit has taken out turn and offset. With δL =
+ * [[δsx, −δq], [0, δsy]] (X axis kept fixed), the shear's antisymmetric half is a turn the rigid fit absorbs, so
+ * dx = ex·δsx − ey·δq/2 and dy = ey·δsy − ex·δq/2; the variance uses the full covariance of (sx, sy, q).
+ */
+export function shapeDisplacementVar(cov: readonly number[], ex: number, ey: number): number {
+  const quad = (g: readonly number[]) => { let s = 0; for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) s += g[a]! * cov[a * 3 + b]! * g[b]!; return s; };
+  return Math.max(0, (quad([ex, 0, -ey / 2]) + quad([0, ey, -ex / 2])) / 2);
 }
 
 /**

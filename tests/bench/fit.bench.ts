@@ -1,13 +1,18 @@
 /**
  * Benchmark of the measurement core (prints JSON): time of analyzePoints at about 256, 1,000 and 5,000 holes, and
  * accuracy on seeded synthetic scenes at 0.33 mm/px with 0.08 px centre noise (camera tilted 10°, Brown–Conrady
- * distortion, panels shifted and turned, lattice scale and squareness errors, 3 % missing, 5 % spurious).
- * Run: npm run bench:fit
+ * distortion, panels shifted and turned, lattice scale and squareness errors, 3 % missing, 5 % spurious), and the
+ * calibration of the stated uncertainty: over 60 seeded scenes that vary bed size, square size, image scale, tilt,
+ * centre and corner noise, the RMS of error/σ of scale X, scale Y, squareness and positions (honest: 0.7–1.4), the
+ * stated scale 1σ of a 150 mm square at 0.36 mm/px with the vision detector's corner precision, and the positions
+ * too close to call with a 4 in square on a 36 × 24 in bed.
+ * Run: npm run bench:fit [-- --part timing,accuracy,calibration]
  */
 import { analyzePoints } from '../../lib/geometry/analyze';
 import { buildLattice } from '../../lib/geometry/lattice';
 import { PRESETS } from '../../lib/geometry/presets';
-import { makeScene, type SceneSpec } from '../../lib/geometry/synthetic';
+import { makeScene, type Scene, type SceneSpec } from '../../lib/geometry/synthetic';
+import { mulberry32 } from '../../lib/geometry/random';
 import { patternToMm } from '../../lib/geometry/units';
 import { fitAffine } from '../../lib/geometry/affine';
 import { rigid2, umeyama } from '../../lib/geometry/umeyama';
@@ -124,15 +129,119 @@ function accuracy(cornerNoisePx: number, seeds: number[]) {
   };
 }
 
-const t = timing();
-const growth = (t[2]!.medianCpuMs / t[1]!.medianCpuMs) / ((t[2]!.holes * Math.log(t[2]!.holes)) / (t[1]!.holes * Math.log(t[1]!.holes)));
-const result = {
-  bench: 'fit', node: process.version, date: new Date().toISOString(),
-  timing: t,
+/** RMS of (measured − true)/σ over the measured positions, per axis, after the best rigid fit of truth onto measured. */
+function positionZ(r: Report, sc: Scene): { sumZ2: number; n: number } {
+  const idx = r.positions.map((_, i) => i).filter((i) => r.positions[i]!.measured && sc.truth.seen[i]);
+  const t = sc.truth.trueXY;
+  const rg = rigid2(idx.flatMap((i) => [t[2 * i]!, t[2 * i + 1]!]), idx.flatMap((i) => [r.positions[i]!.measured!.x, r.positions[i]!.measured!.y]), idx.length);
+  const c = Math.cos(rg.angleRad), s = Math.sin(rg.angleRad);
+  let sumZ2 = 0;
+  for (const i of idx) {
+    const p = r.positions[i]!, x = t[2 * i]!, y = t[2 * i + 1]!;
+    sumZ2 += ((c * x - s * y + rg.tx - p.measured!.x) ** 2 + (s * x + c * y + rg.ty - p.measured!.y) ** 2) / p.uncertaintyMm! ** 2;
+  }
+  return { sumZ2, n: 2 * idx.length };
+}
+
+/** One seeded scene of the calibration set: everything that matters to the uncertainty varies with the seed. */
+function calibrationScene(seed: number): { pattern: Pattern; spec: SceneSpec; cornerNoisePx: number } {
+  const r = mulberry32(1000 + seed);
+  const side = [800, 1200, 1600, 2400][seed % 4]!;
+  const pattern = m6.size({ bedWidthMm: side, bedHeightMm: Math.round(side * (0.6 + 0.4 * r())), stripWidthMm: side / 8 });
+  const cornerNoisePx = 0.03 + 0.09 * r();
+  const spec: SceneSpec = {
+    pattern, seed, mmPerPx: 0.25 + 0.2 * r(), tiltDeg: 20 * r(), tiltAzimuthDeg: 360 * r(), k1: -0.05, k2: 0.01, rollDeg: 10 * r() - 5,
+    scaleX: 1 + (r() - 0.5) * 0.004, scaleY: 1 + (r() - 0.5) * 0.004, squarenessDeg: (r() - 0.5) * 0.2,
+    panelShiftMm: 1, panelTurnDeg: 0.1, centreNoisePx: 0.03 + 0.12 * r(), cornerNoisePx, missingFraction: 0.03, spuriousFraction: 0.03,
+    square: { sizeMm: [100, 150, 250][seed % 3]!, x: (0.2 + 0.2 * r()) * side, y: 0.3 * Number(pattern.bed.height), angleDeg: 20 * r() },
+  };
+  return { pattern, spec, cornerNoisePx };
+}
+
+/**
+ * Error over stated σ on the calibration set, `stated`: the points carry the corners' true precision (as the vision
+ * detector states it); otherwise the analysis assumes its default.
+ */
+function calibration(stated: boolean, seeds: number) {
+  const z = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
+  let pz2 = 0, pn = 0;
+  const scalePpm: number[] = [], errPpm: number[] = [];
+  for (let seed = 1; seed <= seeds; seed++) {
+    const { pattern, spec, cornerNoisePx } = calibrationScene(seed);
+    const sc = makeScene(spec);
+    if (stated) sc.points.reference.cornerSigmaPx = cornerNoisePx;
+    const r = analyzePoints(sc.points, pattern);
+    const u = r.lattice.uncertainty;
+    z.scaleX.push((r.lattice.scaleX! - sc.truth.scaleX) / u.scaleX!);
+    z.scaleY.push((r.lattice.scaleY! - sc.truth.scaleY) / u.scaleY!);
+    z.squareness.push((r.lattice.squarenessDeg! - sc.truth.squarenessDeg) / u.squarenessDeg!);
+    scalePpm.push(u.scaleX! * 1e6, u.scaleY! * 1e6);
+    errPpm.push(Math.abs(r.lattice.scaleX! - sc.truth.scaleX) * 1e6, Math.abs(r.lattice.scaleY! - sc.truth.scaleY) * 1e6);
+    const p = positionZ(r, sc);
+    pz2 += p.sumZ2; pn += p.n;
+  }
+  const rms = (a: number[]) => +Math.sqrt(a.reduce((s, v) => s + v * v, 0) / a.length).toFixed(3);
+  return {
+    cornerSigma: stated ? 'stated (true corner noise)' : 'not stated (default)', scenes: seeds,
+    rmsErrorOverSigma: { scaleX: rms(z.scaleX), scaleY: rms(z.scaleY), squareness: rms(z.squareness), positions: +Math.sqrt(pz2 / pn).toFixed(3) },
+    stated1SigmaScalePpm: { median: +median(scalePpm).toFixed(1), min: +Math.min(...scalePpm).toFixed(1), max: +Math.max(...scalePpm).toFixed(1) },
+    scaleErrorPpm: { rms: rms(errPpm), max: +Math.max(...errPpm).toFixed(1) },
+  };
+}
+
+/** Stated scale 1σ of a 150 mm square at 0.36 mm/px on a 1200 × 900 mm bed, corners of the given precision. */
+function target150(cornerSigmaPx: number) {
+  const pattern = m6.size({ bedWidthMm: 1200, bedHeightMm: 900, stripWidthMm: 150 });
+  const ppm: number[] = [], corners: number[] = [], fit: number[] = [];
+  for (const seed of [1, 2, 3, 4, 5]) {
+    const sc = makeScene({ pattern, seed, mmPerPx: 0.36, tiltDeg: 5, k1: -0.05, k2: 0.01, centreNoisePx: 0.08, cornerNoisePx: cornerSigmaPx, panelShiftMm: 1, panelTurnDeg: 0.1, missingFraction: 0.03, square: { sizeMm: 150, x: 400, y: 300, angleDeg: 5 } });
+    sc.points.reference.cornerSigmaPx = cornerSigmaPx;
+    const r = analyzePoints(sc.points, pattern);
+    const d = r.diagnostics as { scaleSigmaParts?: { corners: number; fit: number } };
+    ppm.push(Math.max(r.lattice.uncertainty.scaleX!, r.lattice.uncertainty.scaleY!) * 1e6);
+    if (d.scaleSigmaParts) { corners.push(d.scaleSigmaParts.corners * 1e6); fit.push(d.scaleSigmaParts.fit * 1e6); }
+  }
+  return {
+    cornerSigmaPx, stated1SigmaScalePpm: +median(ppm).toFixed(1), target: 150,
+    ...(corners.length ? { fromCornersPpm: +median(corners).toFixed(1), fromFitPpm: +median(fit).toFixed(1) } : {}),
+    squareSidePx: Math.round(150 / 0.36),
+  };
+}
+
+/** Positions too close to call: 4 in square on a 36 × 24 in bed of 1/4-20 inserts on 3 in (true bed within tolerance). */
+function fourInchSquare(cornerSigmaPx: number | undefined) {
+  const preset = PRESETS.find((p) => p.id === 'in-3-quarter20-dogs')!;
+  const pattern = preset.size({ bedWidthMm: 36 * 25.4, bedHeightMm: 24 * 25.4 });
+  const marginal: number[] = [];
+  let measured = 0;
+  for (const seed of [1, 2, 3]) {
+    const sc = makeScene({ pattern, seed, mmPerPx: 0.3, tiltDeg: 5, k1: -0.03, centreNoisePx: 0.06, cornerNoisePx: cornerSigmaPx ?? 0.05, holeSigmaMm: 0.02, missingFraction: 0, square: { sizeMm: 101.6, x: 250, y: 200, angleDeg: 4 } });
+    if (cornerSigmaPx !== undefined) sc.points.reference.cornerSigmaPx = cornerSigmaPx;
+    const r = analyzePoints(sc.points, pattern);
+    marginal.push(r.summary.marginal);
+    measured = r.summary.matched;
+  }
+  return { cornerSigmaPx: cornerSigmaPx ?? 'not stated', measured, tooCloseToCall: marginal };
+}
+
+const parts = (() => { const i = process.argv.indexOf('--part'); return i > 0 ? process.argv[i + 1]!.split(',') : ['timing', 'accuracy', 'calibration']; })();
+const result: Record<string, unknown> = { bench: 'fit', node: process.version, date: new Date().toISOString() };
+if (parts.includes('timing')) {
+  const t = timing();
+  result.timing = t;
   /** CPU-time growth 1,000 → 5,000 holes divided by the n log n ratio (≤ 1: no faster than n log n). */
-  growthVsNLogN_1000to5000: +growth.toFixed(3),
-  targets: { msAt1000: 50, growth: '≤ n log n (ratio ≤ 1)', positionRmsMm: 0.05, panelDetrendedMm: 0.03, scalePpm: 300, squarenessDeg: 0.02, spuriousMatched: 0 },
-  accuracyExactCorners: accuracy(0, [1, 2, 3, 4, 5]),
-  accuracyCornerNoise01px: accuracy(0.1, [1, 2, 3, 4, 5, 6, 7, 8, 9, 10]),
-};
+  result.growthVsNLogN_1000to5000 = +((t[2]!.medianCpuMs / t[1]!.medianCpuMs) / ((t[2]!.holes * Math.log(t[2]!.holes)) / (t[1]!.holes * Math.log(t[1]!.holes)))).toFixed(3);
+}
+result.targets = { msAt1000: 50, growth: '≤ n log n (ratio ≤ 1)', positionRmsMm: 0.05, panelDetrendedMm: 0.03, scalePpm: 300, squarenessDeg: 0.02, spuriousMatched: 0, rmsErrorOverSigma: '0.7–1.4', stated1SigmaScalePpmAt150mm036: 150 };
+if (parts.includes('accuracy')) {
+  result.accuracyExactCorners = accuracy(0, [1, 2, 3, 4, 5]);
+  result.accuracyCornerNoise01px = accuracy(0.1, [1, 2, 3, 4, 5, 6, 7, 8, 9, 10]);
+}
+if (parts.includes('calibration')) {
+  result.calibrationStated = calibration(true, 60);
+  result.calibrationDefault = calibration(false, 60);
+  // The vision detector's corners: 0.036–0.065 px RMS (lib/vision/README.md).
+  result.target150mmAt036 = [0.036, 0.05, 0.065, 0.1].map(target150);
+  result.fourInchSquareOn36x24in = [fourInchSquare(undefined), fourInchSquare(0.05)];
+}
 console.log(JSON.stringify(result, null, 2));
