@@ -1,11 +1,14 @@
 /**
  * CLI: `npm run -s analyze -- --points POINTS.json --pattern PATTERN.json [--corner-sigma PX] [--centre-sigma PX]
- *      [--sheet-thickness MM]`
+ *      [--sheet-thickness MM] [--distances DISTANCES.json]`
+ * DISTANCES.json: measured distances between positions, `[{ "from": "insert A1", "to": "insert R12", "mm": 1700.4,
+ * "sigmaMm": 0.3 }]`, combined with the reference square in the fit.
  * Prints the report JSON (bed frame, mm) on stdout and exits 0. Bad input exits 2 with one line on stderr that
  * names the field (bad JSON, schema violation, too few matched holes, reference corners not convex…).
  */
 import { readFileSync } from 'node:fs';
 import { analyzePoints, GeometryInputError, type Pattern, type Points } from '../geometry/index';
+import { readDistancesArg } from './distances-arg';
 
 function fail(message: string): never {
   process.stderr.write(`analyze: ${message}\n`);
@@ -34,7 +37,7 @@ if (args.includes('--image')) {
   process.exit(0);
 }
 const pointsPath = argValue(args, '--points'), patternPath = argValue(args, '--pattern');
-if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX] [--centre-sigma PX] [--sheet-thickness MM]');
+if (!pointsPath || !patternPath) fail('usage: analyze --points POINTS.json --pattern PATTERN.json [--corner-sigma PX] [--centre-sigma PX] [--sheet-thickness MM] [--distances DISTANCES.json]');
 /** A positive number option, or undefined when absent. */
 function positiveArg(name: string, unit: string): number | undefined {
   const v = argValue(args, name);
@@ -46,10 +49,11 @@ function positiveArg(name: string, unit: string): number | undefined {
 const cornerSigmaPx = positiveArg('--corner-sigma', 'px');
 const centreSigmaPx = positiveArg('--centre-sigma', 'px');
 const referenceThicknessMm = positiveArg('--sheet-thickness', 'mm');
+const distances = readDistancesArg(args, fail);
 const points = readJson(pointsPath, 'points') as Points;
 const pattern = readJson(patternPath, 'pattern') as Pattern;
 try {
-  const report = analyzePoints(points, pattern, { cornerSigmaPx, centreSigmaPx, referenceThicknessMm });
+  const report = analyzePoints(points, pattern, { cornerSigmaPx, centreSigmaPx, referenceThicknessMm, ...(distances ? { distances } : {}) });
   process.stdout.write(`${JSON.stringify(report)}\n`);
 } catch (e) {
   if (e instanceof GeometryInputError) fail(e.message);

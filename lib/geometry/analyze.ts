@@ -4,7 +4,8 @@
  * (correspond.ts), joint lens + bed fit (bedfit.ts), shape from the square (shape.ts), positions placed on the
  * bed by the best rigid fit, verdicts (verdict.ts), panels and seams.
  */
-import { PatternSchema, PointsSchema, type Pattern, type Points, type Report } from './contract';
+import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report } from './contract';
+import { applyDistances } from './distances';
 import { decomposeAffine, type Mat2 } from './affine';
 import { fitBed, predictPx, toLattice, type BedModel } from './bedfit';
 import { defaultFocalPx, focalFromHomography, type Lens } from './camera';
@@ -36,6 +37,11 @@ export interface AnalyzeOptions {
    * used, which also holds the holes' own scatter and so errs on the cautious side.
    */
   centreSigmaPx?: number;
+  /**
+   * Distances measured between two positions (labels as the report writes them), combined with the reference
+   * square's estimate of scale and squareness (distances.ts).
+   */
+  distances?: readonly MeasuredDistance[];
   /** Fit Brown–Conrady k1, k2 (default true). */
   fitDistortion?: boolean;
   /** Least-accurate shape terms still reported as observed: 1σ of scale (default 0.003) and squareness (° , 0.2). */
@@ -232,6 +238,18 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     const distMm = fOut * (pts.reference.sizeMm / sidePx);
     shape = latticeShape(model, corners, (pts.reference.sizeMm * distMm) / Math.max(distMm - tMm, 1e-6), cornerSigma);
   }
+  // Measured distances between positions, combined with the square as weighted information (distances.ts).
+  let distanceRows: Report['distances'];
+  if (options.distances?.length) {
+    const given = parseOrThrow(MeasuredDistancesSchema, options.distances, 'distances');
+    const centreSigma = Math.max(options.centreSigmaPx ?? model.sigmaPx, 1e-4);
+    const r = applyDistances(shape, given, lat, (pos) => {
+      const d = asg.detOf[pos]!;
+      return d < 0 ? null : { xyMm: toLattice(model, det.u[d]!, det.v[d]!), sigmaMm: centreSigma * localScaleModel(model, det.u[d]!, det.v[d]!) };
+    });
+    shape = r.shape;
+    distanceRows = r.rows;
+  }
   const maxSS = options.maxScaleSigma ?? 0.003, maxSq = (options.maxSquarenessSigmaDeg ?? 0.2) / DEG;
   const sig = shape.sigma;
   let observed = Number.isFinite(sig.scaleX) && Number.isFinite(sig.scaleY) && Number.isFinite(sig.squarenessRad) && sig.scaleX <= maxSS && sig.scaleY <= maxSS && sig.squarenessRad <= maxSq;
@@ -363,10 +381,15 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const warnings: string[] = [];
   if (init.tiedShifts > 1) warnings.push(`the photo does not show where the lattice starts (${init.tiedShifts} whole-pitch placements fit equally well); labels assume the holes seen are centred on the pattern`);
   if (reason) warnings.push(`lattice shape not observed: ${reason}`);
+  for (const d of distanceRows ?? []) {
+    if (!d.used) warnings.push(`the distance ${d.from} to ${d.to} was not used: ${d.note}`);
+    else if (Math.abs(d.residualSigmas!) > 3) warnings.push(`the distance ${d.from} to ${d.to} (${d.mm} mm) disagrees with the photo by ${d.residualMm!.toFixed(2)} mm, ${Math.abs(d.residualSigmas!).toFixed(1)} times its uncertainty: check the measurement and the labels`);
+  }
   const summary = bedVerdict(positions, panels, lat, notExpected, shapeOk);
   if (init.tiedShifts > 1) summary.sentence = summary.sentence.replace(/\.$/, '; labels are uncertain because the photo does not show where the lattice starts.');
   return {
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
+    ...(distanceRows ? { distances: distanceRows } : {}),
     diagnostics: { scaleSigmaParts: { corners: shape.parts.cornersScale, fit: shape.parts.fitScale }, diameterRatio: kappa, residualSigmaPx: model.sigmaPx, centreSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
   } as Report;
 }

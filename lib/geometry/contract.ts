@@ -110,6 +110,33 @@ export const PointsSchema = z.object({
 });
 export type Points = z.infer<typeof PointsSchema>;
 
+/**
+ * Distances measured between two positions (a steel tape between hole centres, or the machine's coordinates with the
+ * spindle jogged over both), given with a check: labels as the report writes them (`insert A1`), length and 1σ in mm.
+ */
+export const MeasuredDistanceSchema = z.object({
+  from: z.string().trim().min(1).max(60),
+  to: z.string().trim().min(1).max(60),
+  mm: positive.max(100_000),
+  sigmaMm: positive.max(1_000),
+}).strict();
+export type MeasuredDistance = z.infer<typeof MeasuredDistanceSchema>;
+export const MeasuredDistancesSchema = z.array(MeasuredDistanceSchema).max(50);
+
+/** A given distance in the report: what was given, what the photo made of it, and its residual after the fit (mm). */
+export const ReportDistanceSchema = MeasuredDistanceSchema.extend({
+  /** Whether it entered the fit; when not, `note` says why (a position not seen, say). */
+  used: z.boolean(),
+  /** The length from the photo with the reference square alone, and after combining every distance with it. */
+  squareMm: finite.nullable(),
+  fittedMm: finite.nullable(),
+  /** Given − fitted, mm, and that over its own 1σ (given and photo together). */
+  residualMm: finite.nullable(),
+  residualSigmas: finite.nullable(),
+  note: z.string().optional(),
+});
+export type ReportDistance = z.infer<typeof ReportDistanceSchema>;
+
 export const VERDICTS = ['in', 'marginal', 'out', 'missing'] as const;
 export type Verdict = (typeof VERDICTS)[number];
 
@@ -211,5 +238,7 @@ export const ReportSchema = z.object({
   }),
   /** Things the reader should know that are not figures (ambiguous placement, unobserved terms…). */
   warnings: z.array(z.string()).optional(),
+  /** Measured distances given with the check (absent when none were). */
+  distances: z.array(ReportDistanceSchema).optional(),
 }).passthrough();
 export type Report = z.infer<typeof ReportSchema>;

@@ -1,12 +1,14 @@
 /**
  * Photo mode of `npm run analyze`:
  *   analyze --image PHOTO --pattern P.json --reference-mm 150 [--corners x1,y1,…,x4,y4] [--detections-out D.json]
+ *           [--distances DISTANCES.json]
  * Prints the report JSON; D.json receives the detections in the points format (re-fit them with --points).
  * Unreadable photos, no square (and no corners), too few holes: exit 2 with one line.
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { GeometryInputError, PatternSchema } from '@/lib/geometry';
 import { analyzeImage, VisionInputError } from './index';
+import { readDistancesArg } from '../cli/distances-arg';
 
 export async function runImageMode(args: string[], fail: (message: string) => never): Promise<void> {
   const val = (name: string): string | undefined => {
@@ -19,7 +21,7 @@ export async function runImageMode(args: string[], fail: (message: string) => ne
   const imagePath = val('--image');
   const patternPath = val('--pattern');
   const refArg = val('--reference-mm');
-  if (!imagePath || !patternPath || !refArg) fail('usage: analyze --image PHOTO --pattern P.json --reference-mm MM [--corners x1,y1,…,x4,y4] [--detections-out D.json]');
+  if (!imagePath || !patternPath || !refArg) fail('usage: analyze --image PHOTO --pattern P.json --reference-mm MM [--corners x1,y1,…,x4,y4] [--detections-out D.json] [--distances DISTANCES.json]');
   const referenceMm = Number(refArg);
   if (!(referenceMm > 0)) fail('--reference-mm: must be a positive number of mm');
   let corners: [[number, number], [number, number], [number, number], [number, number]] | undefined;
@@ -44,7 +46,8 @@ export async function runImageMode(args: string[], fail: (message: string) => ne
   const parsed = PatternSchema.safeParse(patternJson);
   if (!parsed.success) fail(`pattern.${parsed.error.issues[0]?.path.join('.') ?? ''}: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
   try {
-    const { report, points } = await analyzeImage(bytes, parsed.data, { referenceMm, ...(corners ? { corners } : {}) });
+    const distances = readDistancesArg(args, fail);
+    const { report, points } = await analyzeImage(bytes, parsed.data, { referenceMm, ...(corners ? { corners } : {}), ...(distances ? { analyze: { distances } } : {}) });
     const out = val('--detections-out');
     if (out) writeFileSync(out, `${JSON.stringify(points, null, 1)}\n`);
     process.stdout.write(`${JSON.stringify(report)}\n`);

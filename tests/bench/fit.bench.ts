@@ -158,11 +158,23 @@ function calibrationScene(seed: number): { pattern: Pattern; spec: SceneSpec; co
   return { pattern, spec, cornerNoisePx };
 }
 
+/** A ±0.2 mm tape between the two farthest seen inserts of one row, read with its own seeded error. */
+function tapeAlongRow(pattern: Pattern, sc: Scene, seed: number) {
+  const lat = buildLattice(patternToMm(pattern));
+  const row = Math.floor(Math.max(...lat.positions.map((q) => q.row)) / 2);
+  const seen = lat.positions.map((q, i) => ({ q, i })).filter(({ q, i }) => q.family === 0 && q.row === row && sc.truth.seen[i]);
+  const a = seen.reduce((p, c) => (c.q.col < p.q.col ? c : p)), b = seen.reduce((p, c) => (c.q.col > p.q.col ? c : p));
+  const t = sc.truth.trueXY, sigmaMm = 0.2;
+  const g = mulberry32(5000 + seed);
+  const noise = Math.sqrt(-2 * Math.log(1 - g())) * Math.cos(2 * Math.PI * g());
+  return { from: a.q.label, to: b.q.label, mm: Math.hypot(t[2 * b.i]! - t[2 * a.i]!, t[2 * b.i + 1]! - t[2 * a.i + 1]!) + sigmaMm * noise, sigmaMm };
+}
+
 /**
  * Error over stated σ on the calibration set, `stated`: the points carry the corners' true precision (as the vision
  * detector states it); otherwise the analysis assumes its default.
  */
-function calibration(stated: boolean, seeds: number) {
+function calibration(stated: boolean, seeds: number, withDistance = false) {
   const z = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
   let pz2 = 0, pn = 0;
   const scalePpm: number[] = [], errPpm: number[] = [];
@@ -170,7 +182,7 @@ function calibration(stated: boolean, seeds: number) {
     const { pattern, spec, cornerNoisePx } = calibrationScene(seed);
     const sc = makeScene(spec);
     if (stated) sc.points.reference.cornerSigmaPx = cornerNoisePx;
-    const r = analyzePoints(sc.points, pattern);
+    const r = analyzePoints(sc.points, pattern, withDistance ? { distances: [tapeAlongRow(pattern, sc, seed)] } : {});
     const u = r.lattice.uncertainty;
     z.scaleX.push((r.lattice.scaleX! - sc.truth.scaleX) / u.scaleX!);
     z.scaleY.push((r.lattice.scaleY! - sc.truth.scaleY) / u.scaleY!);
@@ -182,7 +194,7 @@ function calibration(stated: boolean, seeds: number) {
   }
   const rms = (a: number[]) => +Math.sqrt(a.reduce((s, v) => s + v * v, 0) / a.length).toFixed(3);
   return {
-    cornerSigma: stated ? 'stated (true corner noise)' : 'not stated (default)', scenes: seeds,
+    cornerSigma: stated ? 'stated (true corner noise)' : 'not stated (default)', scenes: seeds, ...(withDistance ? { distance: '±0.2 mm along the middle row' } : {}),
     rmsErrorOverSigma: { scaleX: rms(z.scaleX), scaleY: rms(z.scaleY), squareness: rms(z.squareness), positions: +Math.sqrt(pz2 / pn).toFixed(3) },
     stated1SigmaScalePpm: { median: +median(scalePpm).toFixed(1), min: +Math.min(...scalePpm).toFixed(1), max: +Math.max(...scalePpm).toFixed(1) },
     scaleErrorPpm: { rms: rms(errPpm), max: +Math.max(...errPpm).toFixed(1) },
@@ -240,6 +252,7 @@ if (parts.includes('accuracy')) {
 if (parts.includes('calibration')) {
   result.calibrationStated = calibration(true, 60);
   result.calibrationDefault = calibration(false, 60);
+  result.calibrationStatedWithDistance = calibration(true, 30, true);
   // The vision detector's corners: 0.036–0.065 px RMS (lib/vision/README.md).
   result.target150mmAt036 = [0.036, 0.05, 0.065, 0.1].map(target150);
   result.fourInchSquareOn36x24in = [fourInchSquare(undefined), fourInchSquare(0.05)];

@@ -35,4 +35,24 @@ describe('analyze CLI', () => {
     expect(few.status).toBe(2);
     expect(few.stderr).toMatch(/^analyze: holes: /);
   });
+
+  it('combines the distances of --distances FILE with the square and reports each with its residual', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'gp-cli-'));
+    const plain = ReportSchema.parse(JSON.parse(run('--points', join(fixtures, 'small-bed.points.json'), '--pattern', join(fixtures, 'small-bed.pattern.json')).stdout));
+    // The photo's own length between two far measured positions, given back as a tape reading of ±0.2 mm.
+    const seen = plain.positions.filter((p) => p.measured);
+    const a = seen[0]!, b = seen.reduce((p, c) => (Math.hypot(c.nominal.x - a.nominal.x, c.nominal.y - a.nominal.y) > Math.hypot(p.nominal.x - a.nominal.x, p.nominal.y - a.nominal.y) ? c : p));
+    const mm = Math.hypot(b.measured!.x - a.measured!.x, b.measured!.y - a.measured!.y);
+    writeFileSync(join(dir, 'd.json'), JSON.stringify([{ from: a.label, to: b.label, mm, sigmaMm: 0.2 }]));
+    const r = run('--points', join(fixtures, 'small-bed.points.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'), '--distances', join(dir, 'd.json'));
+    expect(r.status).toBe(0);
+    const report = ReportSchema.parse(JSON.parse(r.stdout));
+    expect(report.distances).toHaveLength(1);
+    expect(report.distances![0]).toMatchObject({ from: a.label, to: b.label, used: true });
+    expect(Math.abs(report.distances![0]!.residualSigmas!)).toBeLessThan(3);
+    writeFileSync(join(dir, 'bad.json'), JSON.stringify([{ from: a.label, to: b.label, mm: -5, sigmaMm: 0.2 }]));
+    const bad = run('--points', join(fixtures, 'small-bed.points.json'), '--pattern', join(fixtures, 'small-bed.pattern.json'), '--distances', join(dir, 'bad.json'));
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/^analyze: distances\.0\.mm: /);
+  });
 });
