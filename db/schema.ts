@@ -108,6 +108,11 @@ export const checks = sqliteTable('checks', {
   referenceMm: real('reference_mm').notNull(),
   /** User-given reference corners [[x,y]×4] in image px, or null to detect them. */
   cornersJson: text('corners_json'),
+  /**
+   * Measured distances between two positions given with the upload (`[{ from, to, mm, sigmaMm }]`, labels as the
+   * report writes them, mm), combined with the reference square in the fit; null when none were given.
+   */
+  distancesJson: text('distances_json'),
   status: text('status', { enum: CHECK_STATUSES }).notNull().default('queued'),
   stage: text('stage'),
   progress: real('progress').notNull().default(0),

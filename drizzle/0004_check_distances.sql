@@ -1,0 +1,1 @@
+ALTER TABLE `checks` ADD `distances_json` text;
