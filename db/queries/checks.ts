@@ -27,6 +27,8 @@ export interface NewCheckInput {
   referenceMm: number;
   /** Reference corners in image px, or null to detect them. */
   corners: [[number, number], [number, number], [number, number], [number, number]] | null;
+  /** Measured distances between positions given with the upload, or null. */
+  distances?: { from: string; to: string; mm: number; sigmaMm: number }[] | null;
   title?: string | null;
   createdBy: string | null;
 }
@@ -42,6 +44,7 @@ export async function insertCheckWithJob(tx: Queryable, input: NewCheckInput, no
     title: input.title ?? null,
     referenceMm: input.referenceMm,
     cornersJson: input.corners ? JSON.stringify(input.corners) : null,
+    distancesJson: input.distances?.length ? JSON.stringify(input.distances) : null,
     status: 'queued',
     stage: 'waiting for a worker',
     progress: 0,
@@ -56,11 +59,12 @@ export async function insertCheckWithJob(tx: Queryable, input: NewCheckInput, no
 }
 
 /**
- * A check that already measures exactly this (photo, pattern, reference size, corners) and has not failed:
+ * A check that already measures exactly this (photo, pattern, reference size, corners, distances) and has not failed:
  * uploading the same photo again with the same inputs returns it instead of queueing the same work twice.
  */
 export async function findSameCheck(db: Queryable, input: Omit<NewCheckInput, 'title' | 'createdBy'>): Promise<CheckRow | undefined> {
   const corners = input.corners ? JSON.stringify(input.corners) : null;
+  const distances = input.distances?.length ? JSON.stringify(input.distances) : null;
   const [row] = await db.select().from(checks).where(and(
     eq(checks.workshopId, input.workshopId),
     eq(checks.bedId, input.bedId),
@@ -68,6 +72,7 @@ export async function findSameCheck(db: Queryable, input: Omit<NewCheckInput, 't
     eq(checks.patternId, input.patternId),
     eq(checks.referenceMm, input.referenceMm),
     corners === null ? isNull(checks.cornersJson) : eq(checks.cornersJson, corners),
+    distances === null ? isNull(checks.distancesJson) : eq(checks.distancesJson, distances),
     inArray(checks.status, ['queued', 'running', 'needs-review', 'done']),
     isNull(checks.editedAt),
   )).orderBy(desc(checks.createdAt)).limit(1);

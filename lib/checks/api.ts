@@ -7,7 +7,7 @@ import type { Db } from '@/db/client';
 import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
 import { checkStatusView, getCheck, getCheckReportRef, getCheckReportText, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
 import { compareReports, type Comparison } from '@/lib/geometry';
-import { PointsSchema, type Report } from '@/lib/geometry/contract';
+import { MeasuredDistancesSchema, PointsSchema, type Report } from '@/lib/geometry/contract';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from '@/lib/services/actor';
 import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
@@ -41,6 +41,18 @@ const UploadFieldsSchema = z.object({
     return z.NEVER;
   }),
   title: z.string().trim().max(120).optional(),
+  distances: z.string().max(8192).optional().transform((s, ctx) => {
+    if (s === undefined || s.trim() === '') return null;
+    try {
+      const parsed = MeasuredDistancesSchema.safeParse(JSON.parse(s));
+      if (parsed.success) return parsed.data.length ? parsed.data : null;
+      const i = parsed.error.issues[0];
+      ctx.addIssue({ code: 'custom', message: `Distance ${typeof i?.path[0] === 'number' ? `${i.path[0] + 1}: ` : ''}${i?.path.slice(1).join('.') || 'list'} ${i?.message ?? 'is not valid'}.` });
+      return z.NEVER;
+    } catch { /* reported below */ }
+    ctx.addIssue({ code: 'custom', message: 'Distances must be a JSON list like [{"from": "insert A1", "to": "insert R12", "mm": 1700.4, "sigmaMm": 0.3}].' });
+    return z.NEVER;
+  }),
 });
 
 export interface UploadAnswer {
@@ -51,7 +63,8 @@ export interface UploadAnswer {
 }
 
 /**
- * `POST /api/beds/{bedId}/checks`: multipart `photo`, `referenceMm`, optional `corners` (JSON), `title`, in any
+ * `POST /api/beds/{bedId}/checks`: multipart `photo`, `referenceMm`, optional `corners` (JSON), `title` and
+ * `distances` (JSON `[{ from, to, mm, sigmaMm }]`, labels as the report writes them), in any
  * order. The photo streams to storage as it arrives (hashed and limited on the way); the fields are checked
  * once the form is read, and a refused upload leaves no stored file behind.
  */
@@ -82,8 +95,8 @@ export async function uploadCheck(db: Db, storage: Storage, actor: Actor, bedId:
       if (part.name === 'photo' && part.filename !== undefined && !stored) {
         name = part.filename || null;
         stored = await storeUpload(storage, actor.workshopId, part.body, maxBytes);
-      } else if (part.filename === undefined && ['referenceMm', 'corners', 'title'].includes(part.name)) {
-        text[part.name] = await readText(part, 4096);
+      } else if (part.filename === undefined && ['referenceMm', 'corners', 'title', 'distances'].includes(part.name)) {
+        text[part.name] = await readText(part, part.name === 'distances' ? 8192 : 4096);
       }
       // other parts are skipped unread
     }
@@ -100,6 +113,7 @@ export async function uploadCheck(db: Db, storage: Storage, actor: Actor, bedId:
       name,
       referenceMm: fields.data.referenceMm,
       corners: fields.data.corners,
+      distances: fields.data.distances,
       title: fields.data.title ?? null,
     });
     stored = undefined; // recorded (queueCheck cleans up itself when it fails)

@@ -6,7 +6,7 @@ import { analyzePoints, GeometryInputError } from '@/lib/geometry';
 import { runCheckRefit, type AnalysisDeps, type JobContext } from './run-analysis';
 
 export const fitDeps: Pick<AnalysisDeps, 'analyze' | 'isInputError'> = {
-  analyze: (points, pattern) => analyzePoints(points, pattern),
+  analyze: (points, pattern, options) => analyzePoints(points, pattern, options ?? {}),
   isInputError: (e) => e instanceof GeometryInputError,
 };
 

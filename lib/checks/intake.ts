@@ -13,6 +13,10 @@
  */
 import { z } from 'zod';
 import type { Db } from '@/db/client';
+import { getPattern } from '@/db/queries/patterns';
+import { MeasuredDistancesSchema, PatternSchema, type MeasuredDistance } from '@/lib/geometry/contract';
+import { buildLattice } from '@/lib/geometry/lattice';
+import { patternToMm } from '@/lib/geometry/units';
 import { getBed } from '@/db/queries/beds';
 import { findSameCheck, insertCheckWithJob, type CheckRow } from '@/db/queries/checks';
 import { withBusyRetry, type Job } from '@/db/queries/jobs';
@@ -43,6 +47,8 @@ export const IntakeFieldsSchema = z.object({
   referenceMm: z.number().finite().positive().max(2000),
   corners: CornersSchema.nullable().optional(),
   title: z.string().trim().max(120).nullable().optional(),
+  /** Measured distances between two positions (labels as the report writes them), for the fit. */
+  distances: MeasuredDistancesSchema.nullable().optional(),
 });
 
 export interface IntakeInput {
@@ -56,6 +62,7 @@ export interface IntakeInput {
   referenceMm: number;
   corners?: Corners | null;
   title?: string | null;
+  distances?: MeasuredDistance[] | null;
   /** Upload limit in bytes; `UPLOAD_MAX_BYTES` or 40 MB by default. */
   maxBytes?: number;
 }
@@ -112,8 +119,8 @@ export interface StoredUpload {
   contentType: ImageType;
 }
 
-function validateFields(input: Pick<IntakeInput, 'referenceMm' | 'corners' | 'title'>) {
-  const fields = IntakeFieldsSchema.safeParse({ referenceMm: input.referenceMm, corners: input.corners ?? null, title: input.title ?? null });
+function validateFields(input: Pick<IntakeInput, 'referenceMm' | 'corners' | 'title' | 'distances'>) {
+  const fields = IntakeFieldsSchema.safeParse({ referenceMm: input.referenceMm, corners: input.corners ?? null, title: input.title ?? null, distances: input.distances?.length ? input.distances : null });
   if (!fields.success) {
     const f: Record<string, string> = {};
     for (const issue of fields.error.issues) f[String(issue.path[0] ?? 'form')] ??= issue.message;
@@ -130,6 +137,22 @@ export async function bedPatternForUpload(db: Db, workshopId: string, bedId: str
     throw new IntakeError('no-pattern', 409, 'This bed has no pattern yet. Describe its holes and panels first, then upload a photo.');
   }
   return bed.currentPatternId;
+}
+
+/** Refuses distances whose labels the bed's pattern does not have (before the photo is measured, not after). */
+async function checkDistanceLabels(db: Db, bedId: string, patternId: string, distances: readonly MeasuredDistance[]): Promise<void> {
+  const row = await getPattern(db, bedId, patternId);
+  const parsed = row ? PatternSchema.safeParse(JSON.parse(row.json)) : null;
+  if (!parsed?.success) return; // the analysis reports a broken pattern itself
+  const labels = new Set(buildLattice(patternToMm(parsed.data)).positions.map((q) => q.label.toLowerCase()));
+  const norm = (l: string) => l.trim().replace(/\s+/g, ' ').toLowerCase();
+  for (const d of distances) {
+    for (const label of [d.from, d.to]) {
+      if (!labels.has(norm(label))) {
+        throw new IntakeError('bad-input', 400, 'Some fields of the upload have problems.', { distances: `This bed has no position "${label}". Write labels as the report does, e.g. "${[...labels][0] ?? 'insert A1'}".` });
+      }
+    }
+  }
 }
 
 /**
@@ -169,6 +192,8 @@ export async function queueCheck(
     const fields = validateFields(input);
     const patternId = await bedPatternForUpload(db, stored.workshopId, input.bedId);
     const corners = fields.corners ?? null;
+    const distances = fields.distances ?? null;
+    if (distances) await checkDistanceLabels(db, input.bedId, patternId, distances);
     return await withBusyRetry('save the upload', () => db.transaction(async (tx) => {
       const { photo, created } = await insertOrFindPhoto(tx, {
         workshopId: stored.workshopId,
@@ -181,7 +206,7 @@ export async function queueCheck(
         uploadedBy: input.userId,
       });
       const same = created ? undefined : await findSameCheck(tx, {
-        workshopId: stored.workshopId, bedId: input.bedId, photoId: photo.id, patternId, referenceMm: fields.referenceMm, corners,
+        workshopId: stored.workshopId, bedId: input.bedId, photoId: photo.id, patternId, referenceMm: fields.referenceMm, corners, distances,
       });
       if (same) return { check: same, job: null, photo, photoCreated: false, reusedCheck: true };
       const { check, job } = await insertCheckWithJob(tx, {
@@ -191,6 +216,7 @@ export async function queueCheck(
         patternId,
         referenceMm: fields.referenceMm,
         corners,
+        distances,
         title: fields.title ?? null,
         createdBy: input.userId,
       });

@@ -15,7 +15,7 @@ import { ANALYSIS_VERSION, getCheckById, saveAnalysisResult, setCheckStage } fro
 import { LeaseLostError, type ClaimedJob } from '@/db/queries/jobs';
 import { getPattern } from '@/db/queries/patterns';
 import { getPhotoById, setPhotoSize } from '@/db/queries/photos';
-import { PatternSchema, PointsSchema, type Pattern, type Points, type Report } from '@/lib/geometry/contract';
+import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report } from '@/lib/geometry/contract';
 import { BlobNotFoundError, type Storage } from '@/lib/storage';
 import { CornersSchema, type Corners } from './intake';
 import { needsReview } from './review';
@@ -40,11 +40,14 @@ export interface DetectOptions {
   onStage?: (stage: string, fraction?: number) => void;
 }
 
+/** What the fit takes besides the points and the pattern: the measured distances given with the check. */
+export interface FitOptions { distances?: MeasuredDistance[] }
+
 export interface AnalysisDeps {
   /** Photo bytes → detected points (image px). */
   detect: (bytes: Buffer, options: DetectOptions) => Promise<Points>;
   /** Detected points + nominal pattern → report (bed mm). */
-  analyze: (points: Points, pattern: Pattern) => Report | Promise<Report>;
+  analyze: (points: Points, pattern: Pattern, options?: FitOptions) => Report | Promise<Report>;
   /** True for vision's input errors (no square, unreadable image…), which another attempt cannot fix. */
   isInputError: (error: unknown) => boolean;
 }
@@ -149,8 +152,15 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   }
   points = PointsSchema.parse(points);
   ctx.assertHeld();
-  await fitAndSave(ctx, deps, check.id, pattern, points, corners !== null, report, () => writes);
+  await fitAndSave(ctx, deps, check.id, pattern, points, fitOptionsOf(check), corners !== null, report, () => writes);
   await setPhotoSize(ctx.db, photo.id, points.image.width, points.image.height).catch(() => undefined);
+}
+
+/** The check's stored distances (parsed at upload; a row that no longer parses is fitted without them). */
+function fitOptionsOf(check: { distancesJson: string | null }): FitOptions {
+  if (!check.distancesJson) return {};
+  const parsed = MeasuredDistancesSchema.safeParse(JSON.parse(check.distancesJson));
+  return parsed.success && parsed.data.length ? { distances: parsed.data } : {};
 }
 
 function withHint(message: string, cornersGiven: boolean): string {
@@ -175,17 +185,17 @@ export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'a
   };
   if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
   // The edited detections carry the corners the reviewer placed.
-  await fitAndSave(ctx, deps, check.id, pattern, parsed.data, true, report, () => writes);
+  await fitAndSave(ctx, deps, check.id, pattern, parsed.data, fitOptionsOf(check), true, report, () => writes);
 }
 
 async function fitAndSave(
-  ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>, checkId: string, pattern: Pattern, points: Points,
+  ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>, checkId: string, pattern: Pattern, points: Points, options: FitOptions,
   cornersGiven: boolean, report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
 ) {
   report('fitting');
   let result: Report;
   try {
-    result = await deps.analyze(points, pattern);
+    result = await deps.analyze(points, pattern, options);
   } catch (e) {
     if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, cornersGiven), { cause: e });
     throw e;

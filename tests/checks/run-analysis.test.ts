@@ -7,11 +7,15 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { requestRefit } from '@/db/queries/checks';
+import { getCheckById, requestRefit } from '@/db/queries/checks';
 import { claimJob, failJob } from '@/db/queries/jobs';
 import { intakePhoto } from '@/lib/checks/intake';
 import { PermanentJobError, runCheckRefit } from '@/lib/checks/run-analysis';
+import { fitDeps } from '@/lib/checks/fit';
 import { analyzePoints } from '@/lib/geometry/analyze';
+import { ReportSchema } from '@/lib/geometry/contract';
+import { buildLattice } from '@/lib/geometry/lattice';
+import { patternToMm } from '@/lib/geometry/units';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { LocalStorage } from '@/lib/storage';
 import { tempDb, type TempDb } from '../queue/helpers';
@@ -53,5 +57,30 @@ describe('a re-fit of hand-marked detections that cannot be fitted', () => {
     const message = await run.catch((e: Error) => e.message);
     expect(message).toMatch(/check the marked corners/i);
     expect(message).not.toMatch(/mark the reference square's corners by hand/i);
+  });
+});
+
+describe('a check with measured distances', () => {
+  it('fits them with the detections and shows each in the report with its residual', async () => {
+    const shop = await makeShop(t.db, 'tape shop');
+    const storage = new LocalStorage(storeDir);
+    const plain = await sharp(Buffer.alloc(32 * 32 * 3, 190), { raw: { width: 32, height: 32, channels: 3 } }).png().toBuffer();
+    const scene = makeScene({ pattern: SMALL_PATTERN, seed: 4, missingFraction: 0, spuriousFraction: 0, centreNoisePx: 0.05, square: { sizeMm: 80, x: 60, y: 350, angleDeg: 3 } });
+    // dog A1 (100, 100) to dog D1 (388, 100): 288 mm nominal; the true length of the scene, read to ±0.2 mm.
+    const lat = buildLattice(patternToMm(SMALL_PATTERN));
+    const a = lat.positions.findIndex((q) => q.label === 'dog A1'), b = lat.positions.findIndex((q) => q.label === 'dog D1');
+    const tr = scene.truth.trueXY;
+    const mm = Math.hypot(tr[2 * b]! - tr[2 * a]!, tr[2 * b + 1]! - tr[2 * a + 1]!);
+    const { check } = await intakePhoto(t.db, storage, { workshopId: shop.workshopId, bedId: shop.bedId, userId: shop.userId, source: plain, referenceMm: 80, distances: [{ from: 'dog A1', to: 'dog D1', mm, sigmaMm: 0.2 }] });
+    const first = await claimJob(t.db, { workerId: 'test', leaseMs: 60_000 });
+    await failJob(t.db, first!.id, first!.lockToken, { error: 'no square', retryable: false });
+    await requestRefit(t.db, { workshopId: shop.workshopId, checkId: check.id, userId: shop.userId, detections: scene.points, edits: { kind: 'marked by hand' } });
+    const job = await claimJob(t.db, { workerId: 'test', leaseMs: 60_000 });
+    await runCheckRefit({ db: t.db, storage, job: job!, assertHeld: () => undefined, testDelayMs: 0 }, fitDeps);
+    const row = await getCheckById(t.db, check.id);
+    const report = ReportSchema.parse(JSON.parse(row!.reportJson!));
+    expect(report.distances).toHaveLength(1);
+    expect(report.distances![0]).toMatchObject({ from: 'dog A1', to: 'dog D1', mm, sigmaMm: 0.2, used: true });
+    expect(Math.abs(report.distances![0]!.residualSigmas!)).toBeLessThan(3);
   });
 });

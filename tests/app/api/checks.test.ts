@@ -13,7 +13,8 @@ import { GET as checkGet } from '@/app/api/checks/[id]/route';
 import { GET as reportGet } from '@/app/api/checks/[id]/report/route';
 import { GET as compareGet } from '@/app/api/checks/[id]/compare/[other]/route';
 import { POST as refitPost } from '@/app/api/checks/[id]/refit/route';
-import { photos } from '@/db/schema';
+import { eq } from 'drizzle-orm';
+import { checks, photos } from '@/db/schema';
 import { startSession } from '@/lib/auth/session';
 import { createBed } from '@/lib/services/beds';
 import type { Actor } from '@/lib/services/actor';
@@ -127,6 +128,26 @@ describe('checks API', () => {
     expect(c.json.error?.fields?.corners).toMatch(/four \[x, y\] pixel pairs/);
     const p = await upload(machinistCookie, bedId, { referenceMm: '150' });
     expect(p.json.error?.fields?.photo).toBeDefined();
+  });
+
+  it('stores measured distances given with the upload, as a new check of the same photo', async () => {
+    const distances = [{ from: 'dog A1', to: 'dog D3', mm: 339.4, sigmaMm: 0.3 }];
+    const r = await upload(machinistCookie, bedId, { photo: photoBlob(), referenceMm: '150', distances: JSON.stringify(distances) });
+    expect(r.status).toBe(202);
+    expect(r.json).toMatchObject({ reused: false, photo: { duplicate: true } });
+    const [row] = await t.db.select().from(checks).where(eq(checks.id, (r.json.check as { id: string }).id));
+    expect(JSON.parse(row!.distancesJson!)).toEqual(distances);
+  });
+
+  it('names the distances field for a list it cannot read or a label the bed does not have', async () => {
+    const bad = await upload(machinistCookie, bedId, { photo: photoBlob(), referenceMm: '150', distances: '[{"from": "dog A1"}' });
+    expect(bad.status).toBe(422);
+    expect(bad.json.error?.fields?.distances).toMatch(/JSON list/);
+    const neg = await upload(machinistCookie, bedId, { photo: photoBlob(), referenceMm: '150', distances: '[{"from": "dog A1", "to": "dog B1", "mm": -3, "sigmaMm": 0.2}]' });
+    expect(neg.json.error?.fields?.distances).toMatch(/^Distance 1: mm /);
+    const label = await upload(machinistCookie, bedId, { photo: photoBlob(), referenceMm: '150', distances: '[{"from": "dog A1", "to": "insert Z9", "mm": 300, "sigmaMm": 0.2}]' });
+    expect(label.status).toBe(422);
+    expect(label.json.error?.fields?.distances).toMatch(/no position "insert Z9"/);
   });
 
   it('refuses a text file named .jpg (415) and an oversize photo (413), keeping nothing', async () => {

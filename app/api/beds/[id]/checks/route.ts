@@ -7,7 +7,8 @@ const Params = z.object({ id: z.string().min(1).max(64) });
 
 /**
  * POST /api/beds/{id}/checks — multipart: `photo` (file), `referenceMm`, optional `corners` (JSON of four
- * [x, y] px pairs) and `title` → 202 `{ check: { id, status }, photo: { id, duplicate }, reused }`.
+ * [x, y] px pairs), `title` and `distances` (JSON `[{ "from": "insert A1", "to": "insert R12", "mm": 1700.4,
+ * "sigmaMm": 0.3 }]`: measured distances between positions, labels as the report writes them) → 202 `{ check: { id, status }, photo: { id, duplicate }, reused }`.
  */
 export const POST = route({ params: Params, permission: 'photo:upload' }, async ({ db, actor, params, req }) =>
   json(await uploadCheck(db, getStorage(), actor, params.id, req), 202));
