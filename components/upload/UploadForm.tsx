@@ -7,6 +7,8 @@
 import { useRouter } from 'next/navigation';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import { useDropzone } from 'react-dropzone';
+import { DistancesFields } from './DistancesFields';
+import { EMPTY_DISTANCE_ROW, parseDistanceRows, type DistanceRow } from './distances';
 import { photoProblem, REFERENCE_CHOICES, UploadFormSchema } from './schema';
 import { xhrUpload, type UploadProgress, type XhrUpload } from './xhr';
 
@@ -25,6 +27,8 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
   const [size, setSize] = useState(userUnits === 'in' ? '4' : '150');
   const [units, setUnits] = useState<Units>(userUnits);
   const [title, setTitle] = useState('');
+  const [distanceRows, setDistanceRows] = useState<DistanceRow[]>([EMPTY_DISTANCE_ROW]);
+  const [distanceUnits, setDistanceUnits] = useState<Units>(userUnits);
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [message, setMessage] = useState<string | null>(null);
   const [progress, setProgress] = useState<UploadProgress | null>(null);
@@ -63,12 +67,15 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
     const photo = photoProblem(file, maxBytes);
     if (photo) fieldErrors.photo = photo;
     if (bed && !bed.hasPattern) fieldErrors.bedId = 'This bed has no pattern yet; set it up first.';
+    const distances = parseDistanceRows(distanceRows, distanceUnits);
+    if (!distances.ok) fieldErrors.distances = distances.message;
     setErrors(fieldErrors);
     if (!parsed.success || photo || !file || Object.keys(fieldErrors).length) return;
 
     const form = new FormData();
     form.set('referenceMm', String(parsed.data.referenceMm));
     if (parsed.data.title) form.set('title', parsed.data.title);
+    if (distances.ok && distances.distances.length) form.set('distances', JSON.stringify(distances.distances));
     form.set('photo', file, file.name || 'photo.jpg');
     setPhase('sending');
     setProgress({ loaded: 0, total: file.size });
@@ -85,7 +92,7 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
       setPhase('idle');
       setProgress(null);
       const f = b?.error?.fields ?? {};
-      setErrors({ ...(f.photo ? { photo: f.photo } : {}), ...(f.referenceMm ? { size: f.referenceMm } : {}) });
+      setErrors({ ...(f.photo ? { photo: f.photo } : {}), ...(f.referenceMm ? { size: f.referenceMm } : {}), ...(f.distances ? { distances: f.distances } : {}) });
       setMessage(b?.error?.message ?? `The server answered ${status}. Try again.`);
     } catch (e) {
       setPhase('idle');
@@ -159,6 +166,7 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
           {errors.size && <span role="alert" className="field-error">{errors.size}</span>}
           <span className="text-sm text-muted">Measure the printed square edge to edge with a steel rule: printers often scale by a percent or two, and the whole check scales with it.</span>
         </fieldset>
+        <DistancesFields rows={distanceRows} units={distanceUnits} error={errors.distances} disabled={phase !== 'idle'} onChange={setDistanceRows} onUnits={setDistanceUnits} />
         <div className="field">
           <label htmlFor={ids.title} className="font-bold">Title <span className="font-normal text-muted">(optional)</span></label>
           <input id={ids.title} className="input" value={title} onChange={(e) => setTitle(e.target.value)} placeholder="e.g. after reseating strip 3" />
