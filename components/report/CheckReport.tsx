@@ -19,6 +19,7 @@ import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
 import { BedMap, autoExaggeration, type MapItem } from './BedMap';
 import { DeviationHistogram } from './DeviationHistogram';
+import { DistancesTable } from './DistancesTable';
 import { LatticeFigures } from './LatticeFigures';
 import { MarkChip } from './Mark';
 import { PanelsTable } from './PanelsTable';
@@ -160,6 +161,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
       <section className="panel flex flex-col gap-3" aria-labelledby="lat-h">
         <h2 id="lat-h" className="text-xl font-bold">Lattice scale and squareness</h2>
         <LatticeFigures report={report} unit={unit} bedWidthMm={detail.pattern?.bed.width ?? null} bedHeightMm={detail.pattern?.bed.height ?? null} />
+        <DistancesTable report={report} unit={unit} />
       </section>
 
       <section className="panel flex flex-col gap-3" aria-labelledby="hist-h">
