@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
+import { WhichReference } from '@/components/guide/WhichReference';
 import { PublicFrame } from '@/components/share/PublicFrame';
 
 export const metadata: Metadata = { title: 'How to photograph a bed' };
@@ -73,6 +74,7 @@ export default function PhotoGuidePage() {
             </li>
           ))}
         </ol>
+        <WhichReference />
         <p><Link className="btn" href="/target">Print the reference target</Link></p>
       </article>
     </PublicFrame>
