@@ -117,6 +117,12 @@ describe('bed setup, upload and check status in the browser', () => {
     await expect.poll(() => page.getByRole('alert').first().textContent()).toMatch(/more than 0/);
     await page.getByTestId('reference-units').selectOption('mm');
     await page.getByTestId('reference-size').fill('150');
+    // A measured distance along the front row of inserts: 11 pitches of 50 mm, read to ±0.5 mm.
+    await page.getByTestId('distances').locator('summary').click();
+    await page.getByTestId('distance-0-from').fill('insert A1');
+    await page.getByTestId('distance-0-to').fill('insert L1');
+    await page.getByTestId('distance-0-length').fill('550');
+    await page.getByTestId('distance-0-sigma').fill('0.5');
 
     // Throttle the upload so the XMLHttpRequest progress events are seen between 0 and 100 %.
     const cdp = await ctx.newCDPSession(page);
@@ -160,6 +166,10 @@ describe('bed setup, upload and check status in the browser', () => {
     // The report of the measurement core is there once the check has settled.
     const report = await page.request.get(`${baseUrl}/api/checks/${checkId}/report`);
     expect(report.status()).toBe(200);
+    // The distance given with the upload went into the fit and is shown with its residual.
+    const given = ((await report.json()) as { distances?: { from: string; to: string; mm: number; used: boolean }[] }).distances;
+    expect(given).toEqual([expect.objectContaining({ from: 'insert A1', to: 'insert L1', mm: 550, used: true })]);
+    await expect.poll(() => page.getByTestId('distances-table').textContent()).toContain('insert L1');
     await page.waitForTimeout(500);
     await shoot(page, 'check-report');
     console.log(JSON.stringify({ e2eUpload: { photoBytes, throttledUploadMs: uploadMs, uploadToSettledMs: settleMs, progressSeen: [...seen].sort((a, b) => a - b), stages: [...stages], status: view.status } }));
