@@ -80,7 +80,8 @@ function Editor({ checkId, points, report, canReview, photo, edited }: { checkId
     mutationFn: async () => {
       const detections: Points = {
         ...points,
-        reference: { ...points.reference, corners: draft.corners },
+        // Corners placed by hand are not the detector's: its stated corner precision no longer applies to them.
+        reference: edits.movedCorners.length ? { sizeMm: points.reference.sizeMm, corners: draft.corners } : { ...points.reference, corners: draft.corners },
         holes: draft.holes.filter((h) => !h.removed).map((h) => ({ x: h.x, y: h.y, diameterPx: h.diameterPx, ...(h.confidence !== undefined ? { confidence: h.confidence } : {}) })),
       };
       await api(`/api/checks/${checkId}/refit`, { body: { detections, edits: { ...edits, tool: 'review', version: 1 } } });

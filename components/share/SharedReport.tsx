@@ -8,6 +8,7 @@
 import '@/components/report/report.css';
 import { useMemo, useState } from 'react';
 import { BedMap, autoExaggeration, type MapItem } from '@/components/report/BedMap';
+import { DistancesTable } from '@/components/report/DistancesTable';
 import { LatticeFigures } from '@/components/report/LatticeFigures';
 import { PanelsTable } from '@/components/report/PanelsTable';
 import { PositionsTable, positionRows } from '@/components/report/PositionsTable';
@@ -65,6 +66,7 @@ export function SharedReport({ data, token }: { data: SharedReportData; token: s
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-lattice-h">
         <h2 id="shared-lattice-h" className="text-xl font-bold">Scale and squareness</h2>
         <LatticeFigures report={r} unit={unit} bedWidthMm={null} bedHeightMm={null} />
+        <DistancesTable report={r} unit={unit} />
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-comments-h">
         <h2 id="shared-comments-h" className="text-xl font-bold">Comments</h2>

@@ -62,5 +62,7 @@ export function publicReport(r: Report): Report {
     summary: { matched: r.summary.matched, missing: r.summary.missing, rmsMm: r.summary.rmsMm, maxMm: r.summary.maxMm, out: r.summary.out, marginal: r.summary.marginal, verdict: r.summary.verdict, sentence: r.summary.sentence,
       ...(r.summary.formOut !== undefined ? { formOut: r.summary.formOut } : {}), ...(r.summary.formMarginal !== undefined ? { formMarginal: r.summary.formMarginal } : {}),
       ...(r.summary.shapeSentence ? { shapeSentence: r.summary.shapeSentence } : {}) },
+    // Measured distances between positions given with the check: labels and lengths, nothing of the photo.
+    ...(r.distances ? { distances: r.distances.map((d) => ({ ...d })) } : {}),
   };
 }
