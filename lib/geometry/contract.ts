@@ -95,6 +95,11 @@ export const PointsSchema = z.object({
     corners: z.tuple([PointPx, PointPx, PointPx, PointPx]),
     /** 1σ of each corner coordinate, px, as the detector knows it (from its fitted edges' residuals). */
     cornerSigmaPx: positive.max(10).optional(),
+    /**
+     * 1σ of the square's true side, mm, when known (the rule's reading of the print, or what remains of an edge-bias
+     * correction): a scale error common to X and Y.
+     */
+    sizeSigmaMm: positive.max(100).optional(),
   }),
   holes: z
     .array(

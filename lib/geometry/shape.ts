@@ -61,11 +61,13 @@ export const DEFAULT_CORNER_SIGMA_PX = 0.1;
  * Lattice shape from the square, with 1σ uncertainties and their covariance.
  * @param cornerSigmaPx stated 1σ of each corner coordinate, px (independent corners); undefined: the default,
  *   raised to the square's own residual whenever that is larger
+ * @param sizeSigmaMm 1σ of the square's true side, mm (0 when exact): a relative error ε = σ/size scales both axes
+ *   alike, δsx = sx·ε, δsy = sy·ε, so it adds ε²·[[sx², sx·sy, 0], [sx·sy, sy², 0], [0, 0, 0]] to the covariance
  * Model: corners independent and isotropic with σ_c; a stated σ_c is replaced by the square's residual only when the
  * residual exceeds it by `CORNER_RESIDUAL_GATE` (χ² test at 99 %), since a residual of 2 degrees of freedom
  * scatters widely (its square is exponential) and taking the larger of the two would inflate σ by chance.
  */
-export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, cornerSigmaPx?: number): ShapeEstimate {
+export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, cornerSigmaPx?: number, sizeSigmaMm = 0): ShapeEstimate {
   const g0 = Float64Array.from([...m.hHat.subarray(0, 8), m.lens.k1, m.lens.k2]);
   const base = shapeOf(m, cornersPx, sizeMm, g0);
   const t0 = decomposeAffine(base.L);
@@ -103,7 +105,9 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
     for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) t += Jg[a]![p]! * m.cov[p * m.np + q]! * Jg[b]![q]!;
     covG[a * 3 + b] = Number.isFinite(t) ? t : a === b ? Infinity : 0;
   }
-  const cov = covC.map((c, i) => c + covG[i]!);
+  const eps2 = (sizeSigmaMm / sizeMm) ** 2;
+  const covS = [t0.scaleX ** 2, t0.scaleX * t0.scaleY, 0, t0.scaleX * t0.scaleY, t0.scaleY ** 2, 0, 0, 0, 0].map((v) => v * eps2);
+  const cov = covC.map((c, i) => c + covG[i]! + covS[i]!);
   const sd = (c: number[], i: number) => Math.sqrt(Math.max(c[i * 4]!, 0));
   return {
     L: base.L, terms: t0,

@@ -82,4 +82,19 @@ describe('lattice shape uncertainty from the reference square', () => {
     // Centre term alone: residual scatter (px) × mm per px.
     expect(near.uncertaintyMm!).toBeGreaterThanOrEqual((r.diagnostics as { centreSigmaPx: number }).centreSigmaPx * MM_PER_PX * 0.99);
   });
+
+  it("adds the square's size uncertainty to both scales alike, leaving squareness alone", () => {
+    // A relative size error ε scales both axes: var(sx) grows by (sx·ε)², squareness not at all (first order).
+    const a = makeScene(flat), b = makeScene(flat);
+    a.points.reference.cornerSigmaPx = 0.05;
+    b.points.reference.cornerSigmaPx = 0.05;
+    b.points.reference.sizeSigmaMm = 0.15;
+    const ra = analyzePoints(a.points, m6), rb = analyzePoints(b.points, m6);
+    const eps = 0.15 / 150;
+    for (const k of ['scaleX', 'scaleY'] as const) {
+      const expected = Math.sqrt(ra.lattice.uncertainty[k]! ** 2 + (ra.lattice[k]! * eps) ** 2);
+      expect(rb.lattice.uncertainty[k]! / expected).toBeCloseTo(1, 6);
+    }
+    expect(rb.lattice.uncertainty.squarenessDeg!).toBeCloseTo(ra.lattice.uncertainty.squarenessDeg!, 12);
+  });
 });
