@@ -9,6 +9,7 @@
  */
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
 import { MM_PER_IN, type Report, type Verdict } from '@/lib/geometry/contract';
+import { distanceSentence } from '@/lib/report/distances';
 import { mapGeometry, nearestSpacing, niceFactor, VERDICT_RGB } from './map';
 import { drawable, wrapText } from './text';
 import { mmToPt, paperSizePt, type Paper } from './units';
@@ -257,6 +258,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     scaleLine('Scale along Y', lat.scaleY, u.scaleY),
     lat.squarenessDeg === null ? 'Squareness: not measured' : `Squareness (departure of the X and Y rows from 90°): ${lat.squarenessDeg.toFixed(4)}°${pm(u.squarenessDeg, 4)}.`,
     ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
+    ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => len(mm, 2))),
     `Lens model: focal length ${report.camera.focalPx.toFixed(0)} px, k1 ${report.camera.k1.toExponential(2)}, k2 ${report.camera.k2.toExponential(2)}.`,
   ];
   for (const line of figures) f.paragraph(line, { size: 9 });

@@ -120,4 +120,16 @@ describe('report PDF from the measurement core', () => {
     for (const q of report.panels) expect(text).toContain(q.id);
     for (const p of report.positions.filter((q) => q.verdict === 'missing')) expect(text).toContain(p.label);
   });
+
+  it('lists the measured distances given with the check, with their residuals', async () => {
+    const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
+    const scene = makeScene({ pattern, seed: 5, centreNoisePx: 0.05 });
+    // Nominal 100 mm pitch: insert A1 to insert K1 is ten pitches (the preset's own pattern).
+    const report = ReportSchema.parse(analyzePoints(scene.points, pattern, { distances: [{ from: 'insert A1', to: 'insert K1', mm: 1000, sigmaMm: 0.3 }] }));
+    const text = textOf(await allPages(await renderReportPdf(report, { workshopName: 'North Bench', paper: 'a4' })));
+    const d = report.distances![0]!;
+    expect(text).toContain('Measured distance insert A1 to insert K1');
+    expect(text).toContain(`after the fit ${d.fittedMm!.toFixed(2)} mm`);
+    expect(text).toContain(`${Math.abs(d.residualSigmas!).toFixed(1)} times its uncertainty`);
+  });
 });
