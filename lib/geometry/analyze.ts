@@ -15,7 +15,7 @@ import { homographyDlt, homographyJacobian, type Pt } from './homography';
 import { buildLattice, nearestNode, neighbourPanels, type Lattice } from './lattice';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { huberWeight, madSigma, median, ransac } from './robust';
-import { globalSigma, latticeShape, shapeDisplacementVar, type ShapeEstimate } from './shape';
+import { globalSigma, latticeShape, shapeDisplacementVar, squarePrecision, type ShapeEstimate } from './shape';
 import { insideQuad, orderSquareCorners, squareHomography } from './square';
 import { rigid2 } from './umeyama';
 import { bedVerdict, positionVerdict, panelCorrection } from './verdict';
@@ -227,8 +227,8 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
 
   // Shape from the square; the focal length (EXIF, else from the metric homography when the view is oblique
   // enough, else assumed) is needed only to correct for a thick reference sheet and to report the camera.
-  const cornerSigma = options.cornerSigmaPx ?? pts.reference.cornerSigmaPx;
-  let shape: ShapeEstimate = latticeShape(model, corners, pts.reference.sizeMm, cornerSigma, pts.reference.sizeSigmaMm);
+  const precision = squarePrecision(pts.reference, corners, options.cornerSigmaPx);
+  let shape: ShapeEstimate = latticeShape(model, corners, pts.reference.sizeMm, precision);
   const metricH = mat3Mul(model.H, affineToMat3(invert2x2(shape.L)));
   const fEst = pts.image.focalPx ? null : focalFromHomography(metricH, W / 2, Hh / 2);
   const fOut = pts.image.focalPx ?? (fEst && fEst > 0.2 * Math.hypot(W, Hh) && fEst < 5 * Math.hypot(W, Hh) ? fEst : f0);
@@ -236,7 +236,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   if (tMm > 0) {
     // The sheet's top face is tMm nearer the camera than the bed, so it looks larger by D / (D − t).
     const distMm = fOut * (pts.reference.sizeMm / sidePx);
-    shape = latticeShape(model, corners, (pts.reference.sizeMm * distMm) / Math.max(distMm - tMm, 1e-6), cornerSigma, pts.reference.sizeSigmaMm);
+    shape = latticeShape(model, corners, (pts.reference.sizeMm * distMm) / Math.max(distMm - tMm, 1e-6), precision);
   }
   // Measured distances between positions, combined with the square as weighted information (distances.ts).
   let distanceRows: Report['distances'];

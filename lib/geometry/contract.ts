@@ -100,6 +100,11 @@ export const PointsSchema = z.object({
      * correction): a scale error common to X and Y.
      */
     sizeSigmaMm: positive.max(100).optional(),
+    /**
+     * Covariance of the corners' coordinates (x0, y0, x1, y1, …, in the order given), px², row-major 8 × 8, for a
+     * detector whose corners share fitted sides and so err together; overrides `cornerSigmaPx`.
+     */
+    cornerCovPx2: z.array(finite).length(64).optional(),
   }),
   holes: z
     .array(

@@ -57,27 +57,43 @@ export const CORNER_RESIDUAL_GATE = Math.sqrt(9.2103 / 2);
 /** The assumed corner precision (px) when neither the points nor the caller state one. */
 export const DEFAULT_CORNER_SIGMA_PX = 0.1;
 
+/** What is known of the square's precision; all optional. */
+export interface SquarePrecision {
+  /** Stated 1σ of each corner coordinate, px (independent corners). */
+  cornerSigmaPx?: number;
+  /**
+   * Full covariance of the corners' coordinates (x0, y0, x1, y1, …, in the order of `cornersPx`), px², row-major 8 × 8:
+   * for a detector whose corners share fitted sides (and so err together). Overrides `cornerSigmaPx`.
+   */
+  cornerCovPx2?: readonly number[];
+  /** 1σ of the square's true side, mm. */
+  sizeSigmaMm?: number;
+}
+
 /**
  * Lattice shape from the square, with 1σ uncertainties and their covariance.
- * @param cornerSigmaPx stated 1σ of each corner coordinate, px (independent corners); undefined: the default,
- *   raised to the square's own residual whenever that is larger
- * @param sizeSigmaMm 1σ of the square's true side, mm (0 when exact): a relative error ε = σ/size scales both axes
- *   alike, δsx = sx·ε, δsy = sy·ε, so it adds ε²·[[sx², sx·sy, 0], [sx·sy, sy², 0], [0, 0, 0]] to the covariance
- * Model: corners independent and isotropic with σ_c; a stated σ_c is replaced by the square's residual only when the
- * residual exceeds it by `CORNER_RESIDUAL_GATE` (χ² test at 99 %), since a residual of 2 degrees of freedom
- * scatters widely (its square is exponential) and taking the larger of the two would inflate σ by chance.
+ * Corners: covariance Σ_c = σ_c² I with the stated σ_c, or the stated full covariance; with neither, σ_c = 0.1 px
+ * raised to the square's own residual whenever that is larger. A stated precision is scaled up to the square's residual
+ * only when the residual exceeds its RMS σ by `CORNER_RESIDUAL_GATE` (χ² test at 99 %), since a residual of 2 degrees
+ * of freedom scatters widely (its square is exponential) and taking the larger of the two would inflate σ by chance.
+ * Size: a relative error ε = sizeSigmaMm/size scales both axes alike, δsx = sx·ε, δsy = sy·ε, so it adds
+ * ε²·[[sx², sx·sy, 0], [sx·sy, sy², 0], [0, 0, 0]] to the covariance.
  */
-export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, cornerSigmaPx?: number, sizeSigmaMm = 0): ShapeEstimate {
+export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: number, precision: SquarePrecision = {}): ShapeEstimate {
+  const { cornerSigmaPx, cornerCovPx2, sizeSigmaMm = 0 } = precision;
   const g0 = Float64Array.from([...m.hHat.subarray(0, 8), m.lens.k1, m.lens.k2]);
   const base = shapeOf(m, cornersPx, sizeMm, g0);
   const t0 = decomposeAffine(base.L);
   const side = (cornersPx.reduce((s, c, i) => { const d = cornersPx[(i + 1) % 4]!; return s + Math.hypot(d[0] - c[0], d[1] - c[1]); }, 0)) / 4;
   const pxPerMm = side / sizeMm;
   const resPx = base.resMm * pxPerMm;
-  const sc = cornerSigmaPx === undefined ? Math.max(DEFAULT_CORNER_SIGMA_PX, resPx) : resPx > CORNER_RESIDUAL_GATE * cornerSigmaPx ? resPx : cornerSigmaPx;
+  // Stated corner σ (RMS over the eight coordinates when a covariance is given) and the factor the residual may impose.
+  const statedRms = cornerCovPx2 ? Math.sqrt(Math.max(0, [0, 1, 2, 3, 4, 5, 6, 7].reduce((s, k) => s + cornerCovPx2[k * 9]!, 0) / 8)) : cornerSigmaPx;
+  const sc = statedRms === undefined ? Math.max(DEFAULT_CORNER_SIGMA_PX, resPx) : resPx > CORNER_RESIDUAL_GATE * statedRms ? resPx : statedRms;
+  const Sc = (k: number, l: number) => (cornerCovPx2 && statedRms ? cornerCovPx2[k * 8 + l]! * (sc / statedRms) ** 2 : k === l ? sc * sc : 0);
   const vec = (L: Mat2) => { const t = decomposeAffine(L); return [t.scaleX, t.scaleY, wrap(t.squarenessRad - t0.squarenessRad)]; };
   const v0 = vec(base.L);
-  // Corners: independent, isotropic σ. Jc is 3 × 8.
+  // Corners. Jc is 3 × 8.
   const h = 0.01;
   const Jc: number[][] = [[], [], []];
   for (let k = 0; k < 8; k++) {
@@ -99,8 +115,8 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
   const covC = new Array<number>(9).fill(0), covG = new Array<number>(9).fill(0);
   for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) {
     let s = 0;
-    for (let k = 0; k < 8; k++) s += Jc[a]![k]! * Jc[b]![k]!;
-    covC[a * 3 + b] = s * sc * sc;
+    for (let k = 0; k < 8; k++) for (let l = 0; l < 8; l++) s += Jc[a]![k]! * Sc(k, l) * Jc[b]![l]!;
+    covC[a * 3 + b] = s;
     let t = 0;
     for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) t += Jg[a]![p]! * m.cov[p * m.np + q]! * Jg[b]![q]!;
     covG[a * 3 + b] = Number.isFinite(t) ? t : a === b ? Infinity : 0;
@@ -116,6 +132,30 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
     parts: { cornersScale: Math.hypot(sd(covC, 0), sd(covC, 1)) / Math.SQRT2, fitScale: Math.hypot(sd(covG, 0), sd(covG, 1)) / Math.SQRT2 },
     cornerSigmaPx: sc, squareResidualPx: resPx, squareSidePx: side,
   };
+}
+
+/**
+ * The square's precision from the points' reference (image px) for the corners in the order analysis uses them
+ * (`ordered`, a reordering of `reference.corners`): a stated covariance is permuted to that order. `overrideSigmaPx`
+ * (the caller's option) replaces whatever the points state.
+ */
+export function squarePrecision(
+  reference: { corners: readonly (readonly [number, number])[]; cornerSigmaPx?: number; cornerCovPx2?: readonly number[]; sizeSigmaMm?: number },
+  ordered: readonly Pt[], overrideSigmaPx?: number,
+): SquarePrecision {
+  const size = reference.sizeSigmaMm !== undefined ? { sizeSigmaMm: reference.sizeSigmaMm } : {};
+  if (overrideSigmaPx !== undefined) return { cornerSigmaPx: overrideSigmaPx, ...size };
+  const C = reference.cornerCovPx2;
+  if (C) {
+    const perm = ordered.map((p) => reference.corners.findIndex((c) => c[0] === p[0] && c[1] === p[1]));
+    if (perm.every((i) => i >= 0)) {
+      const idx = (k: number) => 2 * perm[k >> 1]! + (k & 1);
+      const out: number[] = [];
+      for (let k = 0; k < 8; k++) for (let l = 0; l < 8; l++) out.push(C[idx(k) * 8 + idx(l)]!);
+      return { cornerCovPx2: out, ...size };
+    }
+  }
+  return { ...(reference.cornerSigmaPx !== undefined ? { cornerSigmaPx: reference.cornerSigmaPx } : {}), ...size };
 }
 
 /**

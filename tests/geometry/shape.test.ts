@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { Matrix, inverse } from 'ml-matrix';
+import { CholeskyDecomposition, Matrix, inverse } from 'ml-matrix';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import { PRESETS } from '@/lib/geometry/presets';
 import { CORNER_RESIDUAL_GATE } from '@/lib/geometry/shape';
 import { squareCornersMm } from '@/lib/geometry/square';
+import { mulberry32, normalFrom } from '@/lib/geometry/random';
 import { makeScene, type SceneSpec } from '@/lib/geometry/synthetic';
 
 const m6 = PRESETS.find((p) => p.id === 'm6-50')!.size({ bedWidthMm: 1200, bedHeightMm: 900, stripWidthMm: 150 });
@@ -96,5 +97,62 @@ describe('lattice shape uncertainty from the reference square', () => {
       expect(rb.lattice.uncertainty[k]! / expected).toBeCloseTo(1, 6);
     }
     expect(rb.lattice.uncertainty.squarenessDeg!).toBeCloseTo(ra.lattice.uncertainty.squarenessDeg!, 12);
+  });
+
+  it('takes a full corner covariance as the same σ when it is σ² I, whatever the order the corners come in', () => {
+    const a = makeScene(flat);
+    a.points.reference.cornerSigmaPx = 0.05;
+    const b = makeScene(flat);
+    b.points.reference.cornerCovPx2 = Array.from({ length: 64 }, (_, i) => (i % 9 === 0 ? 0.05 ** 2 : 0));
+    const c = makeScene(flat);
+    const k = c.points.reference.corners;
+    c.points.reference.corners = [k[2], k[3], k[0], k[1]];
+    c.points.reference.cornerCovPx2 = b.points.reference.cornerCovPx2;
+    const [ra, rb, rc] = [a, b, c].map((sc) => analyzePoints(sc.points, m6));
+    for (const r of [rb, rc]) {
+      expect(r!.lattice.uncertainty.scaleX! / ra!.lattice.uncertainty.scaleX!).toBeCloseTo(1, 9);
+      expect(r!.lattice.uncertainty.squarenessDeg! / ra!.lattice.uncertainty.squarenessDeg!).toBeCloseTo(1, 9);
+    }
+  });
+
+  it('states the scatter of corners that err together through shared sides, as a Monte Carlo of them shows', () => {
+    // Corners found as meeting points of fitted sides: the two corners on one side share that side's offset error
+    // (σ 0.05 px) besides their own (σ 0.02 px). Draws from that covariance (Cholesky factor by ml-matrix), each
+    // through the whole analysis, against the σ stated for the covariance.
+    const pattern = PRESETS.find((p) => p.id === 'm6-50')!.size({ bedWidthMm: 600, bedHeightMm: 500, stripWidthMm: 250 });
+    const spec: SceneSpec = { ...flat, pattern, square: { sizeMm: 150, x: 200, y: 200, angleDeg: 0 } };
+    const base = makeScene(spec);
+    const k = base.points.reference.corners;
+    const mx = k.reduce((s, c) => s + c[0], 0) / 4, my = k.reduce((s, c) => s + c[1], 0) / 4;
+    const side = (i: number, axis: 0 | 1) => (k[i]![axis] < (axis ? my : mx) ? 0 : 1);
+    const C = new Matrix(8, 8);
+    for (let i = 0; i < 8; i++) for (let j = 0; j < 8; j++) {
+      const ci = i >> 1, cj = j >> 1, ax = (i & 1) as 0 | 1;
+      if ((i & 1) === (j & 1) && side(ci, ax) === side(cj, ax)) C.set(i, j, 0.05 ** 2);
+      if (i === j) C.set(i, j, C.get(i, j) + 0.02 ** 2);
+    }
+    const stated = makeScene(spec);
+    stated.points.reference.cornerCovPx2 = C.to1DArray();
+    const r0 = analyzePoints(stated.points, pattern);
+    const independent = makeScene(spec);
+    independent.points.reference.cornerSigmaPx = Math.sqrt(0.05 ** 2 + 0.02 ** 2);
+    const rInd = analyzePoints(independent.points, pattern);
+    const Lc = new CholeskyDecomposition(C).lowerTriangularMatrix;
+    const gauss = normalFrom(mulberry32(17));
+    const sx: number[] = [];
+    for (let n = 0; n < 300; n++) {
+      const e = Lc.mmul(Matrix.columnVector(Array.from({ length: 8 }, () => gauss())));
+      const sc = makeScene(spec);
+      sc.points.reference.corners = k.map((c, i) => [c[0] + e.get(2 * i, 0), c[1] + e.get(2 * i + 1, 0)]) as typeof k;
+      sc.points.reference.cornerSigmaPx = 1; // the point estimate only: no gate on the residual
+      sx.push(analyzePoints(sc.points, pattern).lattice.scaleX!);
+    }
+    const mean = sx.reduce((a, b) => a + b, 0) / sx.length;
+    const sd = Math.sqrt(sx.reduce((a, b) => a + (b - mean) ** 2, 0) / (sx.length - 1));
+    // 300 draws: the sample σ is within ±12 % (3 standard errors, 1/√(2·299) each) of the true one.
+    expect(r0.lattice.uncertainty.scaleX! / sd).toBeGreaterThan(0.88);
+    expect(r0.lattice.uncertainty.scaleX! / sd).toBeLessThan(1.12);
+    // Independent corners of the same per-corner σ would understate it.
+    expect(rInd.lattice.uncertainty.scaleX! / sd).toBeLessThan(0.85);
   });
 });
