@@ -15,12 +15,45 @@ export const MM_PER_IN = 25.4;
 
 /** The most nominal positions a pattern may have (all families together). */
 export const MAX_POSITIONS = 20_000;
+/** The most positions along one axis of one family. */
+export const MAX_COUNT_PER_AXIS = 2000;
+/** The most panels (strips, boards) and T-track channels a pattern may describe. */
+export const MAX_PANELS = 200;
+
+/**
+ * Physical bounds of a bed pattern, mm (a pattern in inches is held to the same lengths, converted). A bound
+ * exists so that a typing slip (1e308, 0.001) is refused at once with the range, instead of reaching the
+ * analysis; the ranges are wide enough for every bed we know of (common practice):
+ * - bed side 10 mm – 10 m: hobby routers start near 300 mm, the largest gantry tables are 6–8 m long;
+ * - hole diameter 1 – 100 mm: locating pins 3–6 mm, threaded inserts M4–M12 and 1/4-20–1/2-13, dog holes
+ *   19–20 mm, 3/4 in and 1 in bench-dog holes, vacuum ports up to about 50 mm;
+ * - pitch 5 – 2000 mm: 32 mm system holes, 1 in to 8 in or 50–200 mm insert and dog lattices, up to a few
+ *   fixings per full 2440 mm sheet.
+ */
+export const BED_SIDE_MM = { min: 10, max: 10_000 } as const;
+export const HOLE_DIAMETER_MM = { min: 1, max: 100 } as const;
+export const PITCH_MM = { min: 5, max: 2000 } as const;
+/** A radial tolerance a clamp or dog can need, mm: 1 µm (below any photo's resolution) to 50 mm. */
+export const TOLERANCE_MM = { min: 0.001, max: 50 } as const;
+
+/** Photo side, px: at most 65 535, the largest a JPEG can declare (ITU-T T.81, 16-bit line and sample counts). */
+export const MAX_IMAGE_SIDE_PX = 65_535;
+/** Side of the reference square in the points contract, mm: 1 mm to 2 m (the upload form asks for 20–2000 mm). */
+export const REFERENCE_SIZE_MM = { min: 1, max: 2000 } as const;
+/** The most detections one photo may carry (five per nominal position at most). */
+export const MAX_DETECTIONS = 100_000;
+
+/** A finite number (zod 4 refuses NaN and ±Infinity in z.number()) with a message that names the field. */
+const num = (field: string) => z.number({ error: (i) => (i.input === undefined ? `${field} is required` : `${field} must be a finite number`) });
+/** A finite number in [min, max] of `unit`, refused with "<field> must be between min and max unit". */
+export const numberIn = (field: string, min: number, max: number, unit: string) => {
+  const msg = `${field} must be between ${min} and ${max} ${unit}`.trimEnd();
+  return num(field).min(min, msg).max(max, msg);
+};
 
 const finite = z.number().finite();
-const positive = finite.positive();
 export const Vec2Schema = z.object({ x: finite, y: finite });
 export type Vec2 = z.infer<typeof Vec2Schema>;
-
 export const HOLE_KINDS = ['threaded-insert', 'dog-hole', 'pin-hole', 'other'] as const;
 export type HoleKind = (typeof HOLE_KINDS)[number];
 
@@ -29,27 +62,30 @@ export type ClearanceClass = (typeof CLEARANCE_CLASSES)[number];
 
 /** What fits in a family's holes, and so how far a hole may stray: one of three forms. */
 export const FitSpecSchema = z.union([
-  z.object({ toleranceMm: positive.max(50) }).strict(),
+  z.object({ toleranceMm: numberIn('toleranceMm', TOLERANCE_MM.min, TOLERANCE_MM.max, 'mm') }).strict(),
   z.object({ fastener: z.string().min(1).max(20), clearance: z.enum(CLEARANCE_CLASSES) }).strict(),
-  z.object({ pinDiameter: positive }).strict(),
+  z.object({ pinDiameter: num('pinDiameter').positive('pinDiameter must be more than 0') }).strict(),
 ]);
 export type FitSpec = z.infer<typeof FitSpecSchema>;
+
+const countIn = (field: string) => num(field).int(`${field} must be a whole number`).min(1, `${field} must be between 1 and ${MAX_COUNT_PER_AXIS}`).max(MAX_COUNT_PER_AXIS, `${field} must be between 1 and ${MAX_COUNT_PER_AXIS}`);
 
 export const FamilySchema = z.object({
   id: z.string().min(1).max(40).regex(/^[A-Za-z0-9_-]+$/, 'letters, digits, - and _ only'),
   kind: z.enum(HOLE_KINDS),
   /** Human name for labels, e.g. "insert" or "dog"; defaults from kind. */
   label: z.string().min(1).max(30).optional(),
-  holeDiameter: positive,
-  /** Centre of the family's position (col 0, row 0), in the bed frame. */
-  origin: Vec2Schema,
-  pitch: z.object({ x: positive, y: positive }),
-  count: z.object({ x: z.number().int().min(1).max(2000), y: z.number().int().min(1).max(2000) }),
+  /** Hole diameter in the pattern's units; HOLE_DIAMETER_MM bounds it (checked with the units, in PatternSchema). */
+  holeDiameter: num('holeDiameter').positive('holeDiameter must be more than 0'),
+  /** Centre of the family's position (col 0, row 0), in the bed frame; within one bed side of the bed. */
+  origin: z.object({ x: num('origin.x'), y: num('origin.y') }),
+  pitch: z.object({ x: num('pitch.x').positive('pitch.x must be more than 0'), y: num('pitch.y').positive('pitch.y must be more than 0') }),
+  count: z.object({ x: countIn('count.x'), y: countIn('count.y') }),
   fit: FitSpecSchema,
 });
 export type Family = z.infer<typeof FamilySchema>;
 
-export const RectSchema = z.object({ x: finite, y: finite, width: positive, height: positive });
+export const RectSchema = z.object({ x: num('x'), y: num('y'), width: num('width').positive('width must be more than 0'), height: num('height').positive('height must be more than 0') });
 export type Rect = z.infer<typeof RectSchema>;
 
 export const PanelSchema = RectSchema.extend({
@@ -57,26 +93,65 @@ export const PanelSchema = RectSchema.extend({
 });
 export type Panel = z.infer<typeof PanelSchema>;
 
+/** Shortest decimal of a bound in the pattern's units (4 significant digits for inches). */
+const fmt = (v: number) => String(Number(v.toPrecision(4)));
+
 export const PatternSchema = z
   .object({
     version: z.literal(1),
     name: z.string().min(1).max(120),
     units: z.enum(['mm', 'in']),
-    bed: z.object({ width: positive, height: positive }),
+    /** Bed size in the pattern's units; BED_SIDE_MM bounds each side. */
+    bed: z.object({ width: num('bed.width').positive('bed.width must be more than 0'), height: num('bed.height').positive('bed.height must be more than 0') }),
     families: z.array(FamilySchema).min(1).max(8),
-    panels: z.array(PanelSchema).max(200).optional(),
-    channels: z.array(RectSchema).max(200).optional(),
+    panels: z.array(PanelSchema).max(MAX_PANELS).optional(),
+    channels: z.array(RectSchema).max(MAX_PANELS).optional(),
   })
   .superRefine((p, ctx) => {
+    // Physical bounds in the pattern's own units: k converts mm to them.
+    const u = p.units, k = u === 'in' ? 1 / MM_PER_IN : 1;
+    const within = (path: (string | number)[], field: string, v: number, lo: number, hi: number) => {
+      if (!(v >= lo && v <= hi)) ctx.addIssue({ code: 'custom', path, message: `${field} must be between ${fmt(lo)} and ${fmt(hi)} ${u} (got ${v})` });
+      return v >= lo && v <= hi;
+    };
+    const W = p.bed.width, H = p.bed.height;
+    const bedOk = [within(['bed', 'width'], 'bed.width', W, BED_SIDE_MM.min * k, BED_SIDE_MM.max * k), within(['bed', 'height'], 'bed.height', H, BED_SIDE_MM.min * k, BED_SIDE_MM.max * k)].every(Boolean);
     const total = p.families.reduce((n, f) => n + f.count.x * f.count.y, 0);
     if (total > MAX_POSITIONS) {
       ctx.addIssue({ code: 'custom', path: ['families'], message: `the pattern has ${total} positions; at most ${MAX_POSITIONS} are supported` });
     }
+    // Coordinates stay near the bed: a position, panel or channel may lie off it (a mistake the pattern lint,
+    // lib/patterns/lint.ts, shows on the drawing), but not farther off than one bed side, so that the analysis's
+    // work and numbers stay bounded. Overlapping holes and fits that cannot hold are the lint's too.
+    const near = (v: number, side: number) => v >= -side && v <= 2 * side;
     const ids = new Set<string>();
     p.families.forEach((f, i) => {
       if (ids.has(f.id)) ctx.addIssue({ code: 'custom', path: ['families', i, 'id'], message: `duplicate family id "${f.id}"` });
       ids.add(f.id);
+      const at = (...rest: string[]) => ['families', i, ...rest];
+      within(at('holeDiameter'), 'holeDiameter', f.holeDiameter, HOLE_DIAMETER_MM.min * k, HOLE_DIAMETER_MM.max * k);
+      for (const axis of ['x', 'y'] as const) {
+        const side = axis === 'x' ? W : H;
+        const pitchOk = within(at('pitch', axis), `pitch.${axis}`, f.pitch[axis], PITCH_MM.min * k, PITCH_MM.max * k);
+        if (!bedOk || !pitchOk) continue;
+        const o = f.origin[axis], last = o + (f.count[axis] - 1) * f.pitch[axis];
+        if (!near(o, side)) {
+          ctx.addIssue({ code: 'custom', path: at('origin', axis), message: `origin.${axis} must lie on the bed (0 to ${fmt(side)} ${u}), or at most one bed side off it (${fmt(-side)} to ${fmt(2 * side)} ${u}); got ${o}` });
+        } else if (!near(last, side)) {
+          ctx.addIssue({ code: 'custom', path: at('count', axis), message: `count.${axis} (${f.count[axis]}) at pitch.${axis} ${f.pitch[axis]} ${u} puts the last position at ${fmt(last)} ${u}, more than one bed side (${fmt(side)} ${u}) off the bed` });
+        }
+      }
     });
+    const rects = (list: Rect[] | undefined, key: 'panels' | 'channels') => {
+      if (!bedOk) return;
+      (list ?? []).forEach((q, i) => {
+        if (!(near(q.x, W) && near(q.y, H) && near(q.x + q.width, W) && near(q.y + q.height, H))) {
+          ctx.addIssue({ code: 'custom', path: [key, i], message: `${key === 'panels' ? 'panel' : 'channel'} ${i + 1} (x ${q.x}, y ${q.y}, ${q.width} × ${q.height} ${u}) lies more than one bed side off the ${fmt(W)} × ${fmt(H)} ${u} bed` });
+        }
+      });
+    };
+    rects(p.panels, 'panels');
+    rects(p.channels, 'channels');
     const panelIds = new Set<string>();
     (p.panels ?? []).forEach((q, i) => {
       if (panelIds.has(q.id)) ctx.addIssue({ code: 'custom', path: ['panels', i, 'id'], message: `duplicate panel id "${q.id}"` });
@@ -85,12 +160,13 @@ export const PatternSchema = z
   });
 export type Pattern = z.infer<typeof PatternSchema>;
 
-const PointPx = z.tuple([finite, finite]);
+const PointPx = z.tuple([num('x'), num('y')]);
+const side = (field: string) => num(field).int(`${field} must be a whole number of px`).min(1, `${field} must be between 1 and ${MAX_IMAGE_SIDE_PX} px`).max(MAX_IMAGE_SIDE_PX, `${field} must be between 1 and ${MAX_IMAGE_SIDE_PX} px`);
 
 export const PointsSchema = z.object({
-  image: z.object({ width: z.number().int().positive(), height: z.number().int().positive(), focalPx: positive.optional() }),
+  image: z.object({ width: side('image.width'), height: side('image.height'), focalPx: numberIn('focalPx', 1, 100 * MAX_IMAGE_SIDE_PX, 'px').optional() }),
   reference: z.object({
-    sizeMm: positive.max(2000),
+    sizeMm: numberIn('sizeMm', REFERENCE_SIZE_MM.min, REFERENCE_SIZE_MM.max, 'mm'),
     /** The reference square's four corners in image px, in order around the square. */
     corners: z.tuple([PointPx, PointPx, PointPx, PointPx]),
     /** 1σ of each corner coordinate, px, as the detector knows it (from its fitted edges' residuals). */
@@ -109,14 +185,25 @@ export const PointsSchema = z.object({
   holes: z
     .array(
       z.object({
-        x: finite,
-        y: finite,
-        diameterPx: positive,
+        x: num('x'),
+        y: num('y'),
+        diameterPx: num('diameterPx').positive('diameterPx must be more than 0'),
         /** Detector's confidence in [0, 1]; 1 when absent. */
-        confidence: z.number().min(0).max(1).optional(),
+        confidence: numberIn('confidence', 0, 1, '').optional(),
       }),
     )
-    .max(100_000),
+    .max(MAX_DETECTIONS, `at most ${MAX_DETECTIONS} holes`),
+}).superRefine((d, ctx) => {
+  // every point lies on the photo (image px, origin top-left); a hole is smaller than the photo
+  const { width: w, height: h } = d.image;
+  const on = (x: number, y: number) => x >= 0 && y >= 0 && x <= w && y <= h;
+  d.reference.corners.forEach(([x, y], i) => {
+    if (!on(x, y)) ctx.addIssue({ code: 'custom', path: ['reference', 'corners', i], message: `corner ${i + 1} (${x}, ${y}) px must lie on the ${w} × ${h} px photo` });
+  });
+  const i = d.holes.findIndex((q) => !on(q.x, q.y));
+  if (i >= 0) ctx.addIssue({ code: 'custom', path: ['holes', i], message: `hole ${i + 1} at (${d.holes[i]!.x}, ${d.holes[i]!.y}) px must lie on the ${w} × ${h} px photo` });
+  const j = d.holes.findIndex((q) => q.diameterPx > Math.max(w, h));
+  if (j >= 0) ctx.addIssue({ code: 'custom', path: ['holes', j, 'diameterPx'], message: `diameterPx must be between 0 and ${Math.max(w, h)} px (the photo's longer side)` });
 });
 export type Points = z.infer<typeof PointsSchema>;
 

@@ -8,12 +8,17 @@
  * 4. Assignment: each detection goes to the nearest valid node of a family its diameter fits, within a gate;
  *    one detection per node (the nearest wins); the rest are unmatched. Nothing is ever interpolated.
  */
+import { MAX_COUNT_PER_AXIS } from './contract';
 import { nearestNode, type Lattice } from './lattice';
 import { applyH, mat3Mul, type Mat3 } from './linalg';
 
 export interface Detections { u: Float64Array; v: Float64Array; dPx: Float64Array; n: number; conf: Float64Array }
 
 const TAU = 2 * Math.PI;
+/** Largest whole-pitch shift (in pitches) a placement search considers: ten times the most positions per axis. */
+export const MAX_SHIFT_INDEX = 10 * MAX_COUNT_PER_AXIS;
+/** Budget of detection pairs the neighbour-direction vote looks at (pairs beyond it are skipped). */
+export const MAX_NEIGHBOUR_PAIRS = 2_000_000;
 
 /** Families whose hole diameter a detection of diameter `dMm` could be (ratio within `tol`). */
 export function familiesForDiameter(l: Lattice, dMm: number, tol: number): number[] {
@@ -61,11 +66,12 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   for (const i of idx) { const key = `${Math.floor(sx[i]! / cell)},${Math.floor(sy[i]! / cell)}`; (grid.get(key) ?? grid.set(key, []).get(key)!).push(i); }
   const dirs: number[] = [];
   const lens = [F.pitch.x, F.pitch.y];
+  let pairs = 0;
   for (const i of idx) {
     const gx = Math.floor(sx[i]! / cell), gy = Math.floor(sy[i]! / cell);
     for (let ox = -1; ox <= 1; ox++) for (let oy = -1; oy <= 1; oy++) {
       for (const j of grid.get(`${gx + ox},${gy + oy}`) ?? []) {
-        if (j <= i) continue;
+        if (j <= i || ++pairs > MAX_NEIGHBOUR_PAIRS) continue;
         const dx = sx[j]! - sx[i]!, dy = sy[j]! - sy[i]!, d = Math.hypot(dx, dy);
         if (lens.some((p) => Math.abs(d - p) < 0.15 * p)) dirs.push(4 * Math.atan2(dy, dx));
       }
@@ -94,6 +100,9 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   for (const i of idx) { ci.push(Math.round((bx[i]! + tx0 - F.origin.x) / F.pitch.x)); cj.push(Math.round((by[i]! + ty0 - F.origin.y) / F.pitch.y)); }
   const pct = (a: number[], q: number) => { const s = [...a].sort((x, y) => x - y); return s[Math.min(s.length - 1, Math.max(0, Math.floor(q * (s.length - 1))))]!; };
   const range = (lo: number, hi: number, count: number) => {
+    // Detections mapped farther than MAX_SHIFT_INDEX pitches from the lattice fit no placement (and k++ would
+    // stall past 2^53): no candidates, so no lattice is found.
+    if (!(Math.abs(lo) <= MAX_SHIFT_INDEX && Math.abs(hi) <= MAX_SHIFT_INDEX)) return [];
     let a = -lo, b = count - 1 - hi;
     if (a > b) { const m = Math.round((a + b) / 2); a = m - 1; b = m + 1; }
     const out: number[] = [];
@@ -102,6 +111,7 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   };
   const ilo = pct(ci, 0.01), ihi = pct(ci, 0.99), jlo = pct(cj, 0.01), jhi = pct(cj, 0.99);
   const kxs = range(ilo, ihi, F.count.x), kys = range(jlo, jhi, F.count.y);
+  if (!kxs.length || !kys.length) return null;
   const sample: number[] = [];
   const step = Math.max(1, Math.floor(n / 600));
   for (let i = 0; i < n; i += step) if (usable[i] && famOf[i]!.length) sample.push(i);

@@ -50,7 +50,7 @@ export function buildLattice(p: PatternMm): Lattice {
 export function nearestNode(l: Lattice, fi: number, x: number, y: number): { pos: number; dist: number } {
   const fam = l.families[fi]!, f = fam.family;
   const col = Math.round((x - f.origin.x) / f.pitch.x), row = Math.round((y - f.origin.y) / f.pitch.y);
-  if (col < 0 || row < 0 || col >= f.count.x || row >= f.count.y) return { pos: -1, dist: Infinity };
+  if (!(col >= 0 && row >= 0 && col < f.count.x && row < f.count.y)) return { pos: -1, dist: Infinity }; // NaN too
   const pos = fam.node[row * f.count.x + col]!;
   if (pos < 0) return { pos: -1, dist: Infinity };
   const q = l.positions[pos]!;

@@ -45,6 +45,11 @@ export const huberWeight = (r: number, k: number): number => (Math.abs(r) <= k ?
 /** Tukey biweight for residual r at cut-off c: (1 − (r/c)²)² inside, 0 outside. */
 export const tukeyWeight = (r: number, c: number): number => (Math.abs(r) >= c ? 0 : (1 - (r / c) ** 2) ** 2);
 
+/** Random draws allowed per index of a minimal sample before the sample is given up. */
+export const RANSAC_DRAWS_PER_INDEX = 64;
+/** Most RANSAC iterations a caller may ask for. */
+export const MAX_RANSAC_ITERATIONS = 10_000;
+
 export interface RansacResult<M> { model: M; inliers: number[] }
 
 /**
@@ -55,10 +60,12 @@ export function ransac<M>(n: number, sampleSize: number, fit: (idx: number[]) =>
   if (n < sampleSize) return null;
   const rand = mulberry32(opts.seed ?? 1);
   let best: RansacResult<M> | null = null;
-  const iterations = opts.iterations ?? 200;
+  const iterations = Math.min(opts.iterations ?? 200, MAX_RANSAC_ITERATIONS);
   for (let it = 0; it < iterations; it++) {
     const idx = new Set<number>();
-    while (idx.size < sampleSize) idx.add(Math.floor(rand() * n));
+    // distinct indices; at most RANSAC_DRAWS_PER_INDEX draws each (a sample short of them is skipped)
+    for (let draws = 0; idx.size < sampleSize && draws < RANSAC_DRAWS_PER_INDEX * sampleSize; draws++) idx.add(Math.floor(rand() * n));
+    if (idx.size < sampleSize) continue;
     const m = fit([...idx]);
     if (!m) continue;
     const inl: number[] = [];
