@@ -52,6 +52,7 @@ export const numberIn = (field: string, min: number, max: number, unit: string) 
 };
 
 const finite = z.number().finite();
+const positive = finite.positive();
 export const Vec2Schema = z.object({ x: finite, y: finite });
 export type Vec2 = z.infer<typeof Vec2Schema>;
 export const HOLE_KINDS = ['threaded-insert', 'dog-hole', 'pin-hole', 'other'] as const;
