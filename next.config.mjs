@@ -1,4 +1,7 @@
-import { securityHeaders } from './lib/security/headers.mjs';
+import { httpsOnlyHeaders, securityHeaders } from './lib/security/headers.mjs';
+
+const production = process.env.NODE_ENV === 'production';
+const httpsOnly = httpsOnlyHeaders({ production });
 
 /** @type {import('next').NextConfig} */
 const nextConfig = {
@@ -9,7 +12,9 @@ const nextConfig = {
   typescript: { ignoreBuildErrors: true },
   // CSP, frame-ancestors, nosniff, referrer policy… on every answer (lib/security/headers.mjs)
   headers: async () => [
-    { source: '/:path*', headers: securityHeaders({ production: process.env.NODE_ENV === 'production' }) },
+    { source: '/:path*', headers: securityHeaders({ production }) },
+    // HSTS only on answers that went over HTTPS (the real scheme, set by lib/cli/web-server.mjs)
+    ...(httpsOnly.length ? [{ source: '/:path*', has: [{ type: 'header', key: 'x-forwarded-proto', value: 'https' }], headers: httpsOnly }] : []),
     // a shared report's address answers HTML or JSON by the Accept header (rewrite below)
     { source: '/s/:token', headers: [{ key: 'Vary', value: 'Accept' }, { key: 'X-Robots-Tag', value: 'noindex' }] },
   ],

@@ -1,4 +1,5 @@
 import type { Metadata } from 'next';
+import { headers } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { Brand } from '@/components/AppShell';
 import { SignInForm } from '@/components/AuthForms';
@@ -21,7 +22,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <h1 className="text-3xl font-bold">Sign in</h1>
       <p className="text-muted">Check your fixture bed from one photo: where every insert and dog hole really is, and which panel to move.</p>
       {sp['signed-out'] && <p role="status" className="panel">You are signed out.</p>}
-      <InsecureOriginNote cookieSecure={cookieIsSecure()} />
+      <InsecureOriginNote cookieSecure={cookieIsSecure({ headers: await headers() })} />
       <SignInForm demo={demo} />
       <SafetyNote />
     </div>

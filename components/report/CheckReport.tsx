@@ -179,7 +179,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
             </ZoomStage>
           </>
         ) : (
-          <p>The photo is not available for this check.</p>
+          <p>The photo is not available for this check.{detail.photo.reason ? ` ${detail.photo.reason}` : ''}</p>
         )}
       </section>
       <div className="no-print">

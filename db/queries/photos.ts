@@ -73,3 +73,8 @@ export async function isStorageKeyReferenced(db: Queryable, storageKey: string):
 export async function setPhotoSize(db: Queryable, id: string, widthPx: number, heightPx: number): Promise<void> {
   await db.update(photos).set({ widthPx, heightPx }).where(eq(photos.id, id));
 }
+
+/** Records why no display copy can be made of the photo (shown by the check's detail instead of a preview). */
+export async function setPhotoPreviewError(db: Queryable, id: string, reason: string): Promise<void> {
+  await db.update(photos).set({ previewError: reason.slice(0, 500) }).where(eq(photos.id, id));
+}

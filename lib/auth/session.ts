@@ -1,6 +1,6 @@
 /**
- * Sessions: an iron-session 8 sealed cookie (`gp_session`; httpOnly, SameSite=Lax, Path=/, Secure in
- * production unless COOKIE_SECURE=0) that names a server-side `sessions` row and the workshop the user is
+ * Sessions: an iron-session 8 sealed cookie (`gp_session`; httpOnly, SameSite=Lax, Path=/, Secure when the
+ * request came over HTTPS, `COOKIE_SECURE=1|0` to force it either way) that names a server-side `sessions` row and the workshop the user is
  * acting in. Sign-out and password changes revoke the row, so a stolen cookie dies with it. The role is read
  * from `memberships` on every request, so a role change applies at once.
  *
@@ -13,12 +13,13 @@
  */
 import 'server-only';
 import { sealData, unsealData } from 'iron-session';
-import { cookies } from 'next/headers';
+import { cookies, headers } from 'next/headers';
 import { redirect } from 'next/navigation';
 import { z } from 'zod';
 import { getDb, type Db } from '@/db/client';
 import { getLiveSessionAuth, insertSession, revokeSession, touchSession } from '@/db/queries/sessions';
 import { loadSessionSecret } from '@/lib/auth/secret';
+import { requestIsHttps } from '@/lib/http/origin';
 import type { Actor, ActorUser } from '@/lib/services/actor';
 
 export const SESSION_COOKIE = 'gp_session';
@@ -33,14 +34,19 @@ export type SessionCookieData = z.infer<typeof CookieDataSchema>;
 /** What a request knows about its user. `actor` is null when the user belongs to no workshop. */
 export type Auth = { sessionId: string; user: ActorUser; actor: Actor | null; workshops: { workshopId: string; name: string; role: Actor['role'] }[] };
 
-export function cookieIsSecure(env: NodeJS.ProcessEnv = process.env): boolean {
+/**
+ * Whether the session cookie carries Secure: COOKIE_SECURE=1 or 0 decides; otherwise it follows the request's
+ * real scheme (`requestIsHttps`), so the same server keeps a session over https://… and over a shop LAN's
+ * plain http://192.168.x.y:3000 (a browser drops a Secure cookie set over plain HTTP, except on localhost).
+ */
+export function cookieIsSecure(req: { headers: Headers; url?: string }, env: NodeJS.ProcessEnv = process.env): boolean {
   if (env.COOKIE_SECURE === '0' || env.COOKIE_SECURE === 'false') return false;
   if (env.COOKIE_SECURE === '1' || env.COOKIE_SECURE === 'true') return true;
-  return env.NODE_ENV === 'production';
+  return requestIsHttps(req.headers, req.url);
 }
 
-export function sessionCookieOptions() {
-  return { httpOnly: true, sameSite: 'lax' as const, secure: cookieIsSecure(), path: '/', maxAge: Math.floor(SESSION_TTL_MS / 1000) - 60 };
+export function sessionCookieOptions(secure: boolean) {
+  return { httpOnly: true, sameSite: 'lax' as const, secure, path: '/', maxAge: Math.floor(SESSION_TTL_MS / 1000) - 60 };
 }
 
 export async function sealSession(data: SessionCookieData): Promise<string> {
@@ -73,28 +79,37 @@ export async function unsealSession(value: string | undefined | null): Promise<S
   return data;
 }
 
-/** Reads one cookie from a Cookie header. */
+/**
+ * Reads one cookie from a Cookie header. A value that is not valid percent-encoding (`%E0%A4%A`) is kept as
+ * sent: it then fails to unseal like any other foreign value, and the request is simply signed out.
+ */
 export function readCookie(header: string | null, name: string): string | undefined {
   if (!header) return undefined;
   for (const part of header.split(';')) {
     const eq = part.indexOf('=');
     if (eq < 0) continue;
-    if (part.slice(0, eq).trim() === name) return decodeURIComponent(part.slice(eq + 1).trim());
+    if (part.slice(0, eq).trim() !== name) continue;
+    const raw = part.slice(eq + 1).trim();
+    try {
+      return decodeURIComponent(raw);
+    } catch {
+      return raw;
+    }
   }
   return undefined;
 }
 
-/** A Set-Cookie header value for the session (`value` null clears it). */
-export function sessionSetCookie(value: string | null): string {
-  const o = sessionCookieOptions();
+/** A Set-Cookie header value for the session (`value` null clears it), Secure as `cookieIsSecure` decides. */
+export function sessionSetCookie(value: string | null, secure: boolean): string {
+  const o = sessionCookieOptions(secure);
   const parts = [`${SESSION_COOKIE}=${value ?? ''}`, `Path=${o.path}`, 'HttpOnly', 'SameSite=Lax', `Max-Age=${value ? o.maxAge : 0}`];
   if (o.secure) parts.push('Secure');
   return parts.join('; ');
 }
 
-/** Adds the session cookie (or its removal) to a response and returns it. */
-export function withSessionCookie(res: Response, sealed: string | null): Response {
-  res.headers.append('set-cookie', sessionSetCookie(sealed));
+/** Adds the session cookie (or its removal) to the response to `req` and returns it. */
+export function withSessionCookie(res: Response, sealed: string | null, req: Request): Response {
+  res.headers.append('set-cookie', sessionSetCookie(sealed, cookieIsSecure(req)));
   return res;
 }
 
@@ -154,6 +169,7 @@ export async function currentCookieData(): Promise<SessionCookieData | null> {
 /** Writes (or clears, with null) the session cookie from a server action. */
 export async function setSessionCookieInAction(sealed: string | null): Promise<void> {
   const jar = await cookies();
-  if (sealed) jar.set(SESSION_COOKIE, sealed, sessionCookieOptions());
-  else jar.set(SESSION_COOKIE, '', { ...sessionCookieOptions(), maxAge: 0 });
+  const options = sessionCookieOptions(cookieIsSecure({ headers: await headers() }));
+  if (sealed) jar.set(SESSION_COOKIE, sealed, options);
+  else jar.set(SESSION_COOKIE, '', { ...options, maxAge: 0 });
 }

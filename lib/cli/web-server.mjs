@@ -36,7 +36,8 @@ const handle = app.getRequestHandler();
 await app.prepare();
 
 const server = createServer((req, res) => {
-  normaliseForwarding(req.headers, req.socket.remoteAddress, hops);
+  // `encrypted` is set on a TLS socket (node:tls); this server is plain HTTP unless one wraps it in TLS
+  normaliseForwarding(req.headers, req.socket.remoteAddress, hops, 'encrypted' in req.socket && req.socket.encrypted ? 'https' : 'http');
   handle(req, res).catch((err) => {
     console.error('[gridproof] request failed:', err);
     if (!res.headersSent) res.statusCode = 500;

@@ -27,6 +27,8 @@ export class AppError extends Error {
     public readonly status: number,
     message: string,
     public readonly fields?: ErrorFields,
+    /** Extra response headers (a 429's Retry-After). */
+    public readonly headers?: Record<string, string>,
   ) {
     super(message);
     this.name = 'AppError';
@@ -73,6 +75,6 @@ export function toAppError(err: unknown): AppError {
 }
 
 /** A JSON Response carrying an AppError. */
-export function errorResponse(err: AppError, headers?: HeadersInit): Response {
-  return Response.json(err.toBody(), { status: err.status, headers });
+export function errorResponse(err: AppError, headers?: Record<string, string>): Response {
+  return Response.json(err.toBody(), { status: err.status, headers: { ...headers, ...err.headers } });
 }

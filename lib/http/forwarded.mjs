@@ -46,22 +46,37 @@ export function clientAddress(forwardedFor, peer, trustedHops) {
 }
 
 /**
+ * The scheme the user's browser used, by the same "trust n hops" rule over [...X-Forwarded-Proto, socket
+ * scheme]: with no trusted proxy, the socket's own scheme (TLS or not), whatever the header says.
+ * @param {string | string[] | undefined} forwardedProto X-Forwarded-Proto as received
+ * @param {'http' | 'https'} socketScheme 'https' when the socket itself is TLS
+ * @param {number} trustedHops
+ * @returns {'http' | 'https'}
+ */
+export function clientScheme(forwardedProto, socketScheme, trustedHops) {
+  const listed = (Array.isArray(forwardedProto) ? forwardedProto.join(',') : forwardedProto ?? '')
+    .split(',').map((s) => s.trim().toLowerCase()).filter((s) => s !== '');
+  const chain = [...listed, socketScheme];
+  return chain[Math.max(0, chain.length - 1 - trustedHops)] === 'https' ? 'https' : 'http';
+}
+
+/**
  * Rewrites a Node request's forwarding headers in place: X-Forwarded-For becomes the one trusted client
- * address (or is removed), X-Real-IP is removed, and with no trusted proxy X-Forwarded-Host and
- * X-Forwarded-Proto are removed too (only a proxy of ours may say which host and scheme the user asked for).
+ * address (or is removed), X-Real-IP is removed, X-Forwarded-Proto becomes the real scheme (`clientScheme`:
+ * the app reads it to decide the cookie's Secure flag and HSTS), and with no trusted proxy X-Forwarded-Host
+ * is removed too (only a proxy of ours may say which host the user asked for).
  * @param {Record<string, string | string[] | undefined>} headers Node's IncomingMessage.headers
  * @param {string | undefined} peer
  * @param {number} trustedHops
+ * @param {'http' | 'https'} [socketScheme] the socket's scheme (default 'http')
  */
-export function normaliseForwarding(headers, peer, trustedHops) {
+export function normaliseForwarding(headers, peer, trustedHops, socketScheme = 'http') {
   const client = clientAddress(headers['x-forwarded-for'], peer, trustedHops);
   if (client) headers['x-forwarded-for'] = client;
   else delete headers['x-forwarded-for'];
   delete headers['x-real-ip'];
-  if (trustedHops === 0) {
-    delete headers['x-forwarded-host'];
-    delete headers['x-forwarded-proto'];
-  }
+  headers['x-forwarded-proto'] = clientScheme(headers['x-forwarded-proto'], socketScheme, trustedHops);
+  if (trustedHops === 0) delete headers['x-forwarded-host'];
 }
 
 /**

@@ -53,6 +53,20 @@ export function clientIp(headers: Headers): string | null {
   return headers.get('x-forwarded-for')?.split(',')[0]?.trim() || headers.get('x-real-ip') || null;
 }
 
+/**
+ * True when the request came over HTTPS: X-Forwarded-Proto, which the web server (lib/cli/web-server.mjs)
+ * sets to the real scheme (the socket's, or a proxy's trusted by TRUST_PROXY_HOPS), else the URL's scheme.
+ */
+export function requestIsHttps(headers: Headers, requestUrl?: string): boolean {
+  const proto = headers.get('x-forwarded-proto')?.split(',')[0]?.trim().toLowerCase();
+  if (proto) return proto === 'https';
+  try {
+    return requestUrl ? new URL(requestUrl).protocol === 'https:' : false;
+  } catch {
+    return false;
+  }
+}
+
 /** The public base URL of this Gridproof (for links): APP_URL, else the request's own origin. */
 export function publicBaseUrl(req: Request): string {
   if (process.env.APP_URL) return process.env.APP_URL.replace(/\/$/, '');

@@ -55,7 +55,12 @@ export async function readBody(req: Request): Promise<unknown> {
   if (length > MAX_BODY_BYTES) throw new AppError('too_large', 413, `The body is larger than ${MAX_BODY_BYTES} bytes.`);
   const type = (req.headers.get('content-type') ?? '').toLowerCase();
   if (type.includes('application/x-www-form-urlencoded') || type.includes('multipart/form-data')) {
-    const form = await req.formData();
+    let form: FormData;
+    try {
+      form = await req.formData();
+    } catch {
+      throw new AppError('invalid_form', 400, 'The body is not a valid form (its content type says form data).');
+    }
     return Object.fromEntries(form.entries());
   }
   const text = await req.text();

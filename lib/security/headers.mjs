@@ -44,9 +44,18 @@ export function securityHeaders({ production }) {
     { key: 'Permissions-Policy', value: 'camera=(self), microphone=(), geolocation=(), payment=(), usb=()' },
     { key: 'Cross-Origin-Opener-Policy', value: 'same-origin' },
   ];
-  // HSTS only where the app is served over HTTPS (browsers ignore it on plain HTTP anyway).
-  if (production && process.env.COOKIE_SECURE !== '0' && process.env.COOKIE_SECURE !== 'false') {
-    headers.push({ key: 'Strict-Transport-Security', value: 'max-age=31536000; includeSubDomains' });
-  }
   return headers;
+}
+
+/**
+ * Headers for answers that went over HTTPS only: HSTS (RFC 6797 §7.2: a host must not send it over plain
+ * HTTP). next.config.mjs applies them when the request's real scheme is https, which the web server
+ * (lib/cli/web-server.mjs, lib/http/forwarded.mjs) writes into X-Forwarded-Proto from the socket, or from a
+ * proxy trusted by TRUST_PROXY_HOPS. COOKIE_SECURE=0 turns HSTS off as well.
+ * @param {{ production: boolean }} opts
+ * @returns {{ key: string, value: string }[]}
+ */
+export function httpsOnlyHeaders({ production }) {
+  if (!production || process.env.COOKIE_SECURE === '0' || process.env.COOKIE_SECURE === 'false') return [];
+  return [{ key: 'Strict-Transport-Security', value: 'max-age=31536000; includeSubDomains' }];
 }

@@ -1,7 +1,7 @@
 /**
  * Account use cases: sign-up (creates the user, their workshop and their owner membership), sign-in
- * (checks the password; 401 `bad_credentials` without saying which part was wrong; rate-limited per e-mail
- * address), and the schemas of their bodies. Sessions themselves are made by lib/auth/session.ts.
+ * (checks the password; 401 `bad_credentials` without saying which part was wrong; limited per address and
+ * account pair, never locking the account itself: lib/security/rate-limit.ts), and the schemas of their bodies. Sessions themselves are made by lib/auth/session.ts.
  */
 import { z } from 'zod';
 import type { Db } from '@/db/client';
@@ -12,7 +12,7 @@ import { insertWorkshop } from '@/db/queries/workshops';
 import { hashPassword, PasswordSchema, verifyPassword } from '@/lib/auth/password';
 import { AppError, conflict } from '@/lib/http/errors';
 import { isCommonPassword, PASSWORD_PROBLEM_MESSAGES } from '@/lib/security/password-policy';
-import { assertSignInAllowed, assertSignUpAllowed, SIGN_IN_PER_ACCOUNT } from '@/lib/security/rate-limit';
+import { assertSignInAllowed, assertSignUpAllowed, signInSucceeded } from '@/lib/security/rate-limit';
 
 export const EmailSchema = z.string().trim().toLowerCase().pipe(z.email('Enter an e-mail address.').max(254));
 
@@ -29,10 +29,6 @@ export const SignInSchema = z.object({
   password: z.string().min(1, 'Enter your password.').max(200),
 });
 export type SignInInput = z.infer<typeof SignInSchema>;
-
-/** Sign-in attempts allowed per e-mail address per window. */
-export const SIGN_IN_LIMIT = SIGN_IN_PER_ACCOUNT.limit;
-export const SIGN_IN_WINDOW_MS = SIGN_IN_PER_ACCOUNT.windowMs;
 
 export async function signUp(db: Db, input: SignUpInput, meta: { ip?: string | null } = {}): Promise<{ user: PublicUser; workshopId: string }> {
   await assertSignUpAllowed(db, meta.ip);
@@ -53,11 +49,12 @@ export async function signUp(db: Db, input: SignUpInput, meta: { ip?: string | n
 }
 
 export async function signIn(db: Db, input: SignInInput, meta: { ip?: string | null } = {}): Promise<{ user: PublicUser; workshopId: string | null }> {
-  // per account and per client address, shared by every web instance (lib/security/rate-limit.ts)
+  // per (address, account) pair and per address, shared by every web instance (lib/security/rate-limit.ts)
   await assertSignInAllowed(db, { email: input.email, ip: meta.ip });
   const user = await findUserByEmail(db, input.email);
   const ok = await verifyPassword(input.password, user?.passwordHash);
   if (!user || !ok) throw new AppError('bad_credentials', 401, 'That e-mail address and password do not match an account.');
+  await signInSucceeded(db, { email: input.email, ip: meta.ip });
   const [first] = await listUserWorkshops(db, user.id);
   await recordAudit(db, { workshopId: first?.workshopId ?? null, actorId: user.id, action: 'user.sign_in', targetType: 'user', targetId: user.id, ip: meta.ip });
   return { user: toPublicUser(user), workshopId: first?.workshopId ?? null };

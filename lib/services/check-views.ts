@@ -7,14 +7,16 @@
  *   what).
  * - `getDisplayPhoto`: a display copy of the uploaded photo — turned upright by its EXIF orientation (the
  *   frame the detections are in), bounded in size, re-encoded as JPEG with no metadata at all (no GPS, no
- *   camera serial), kept in storage so it is made once.
+ *   camera serial), kept in storage so it is made once. A photo no copy can be made of (cut short, damaged,
+ *   more than `PREVIEW_MAX_PIXELS`) answers 422 `photo_unreadable` with the reason, which is kept on the photo
+ *   row so the detail says the photo is not available, and why.
  * - `exportCheck`: the report as CSV or JSON, lengths in the chosen unit.
  */
 import sharp from 'sharp';
 import type { Db } from '@/db/client';
 import { getBed } from '@/db/queries/beds';
 import { getCheck } from '@/db/queries/checks';
-import { getPhoto } from '@/db/queries/photos';
+import { getPhoto, setPhotoPreviewError, type PhotoRow } from '@/db/queries/photos';
 import { getUserById } from '@/db/queries/users';
 import { patternToMm, type PatternMm } from '@/lib/geometry';
 import { PatternSchema, PointsSchema, ReportSchema, type Points, type Report } from '@/lib/geometry/contract';
@@ -45,7 +47,8 @@ export interface CheckDetail {
   patternRevision: number | null;
   /** The detections the current report was fitted to (image px), or null before the first analysis. */
   detections: Points | null;
-  photo: { available: boolean; widthPx: number | null; heightPx: number | null };
+  /** `available` false when there is no photo or no display copy can be made of it; `reason` says why. */
+  photo: { available: boolean; reason: string | null; widthPx: number | null; heightPx: number | null };
   /** What the viewer may do here. */
   can: { review: boolean };
   /** The viewer's display units. */
@@ -62,8 +65,8 @@ function parseJson<T>(text: string | null, schema: { safeParse(v: unknown): { su
   }
 }
 
-/** `GET /api/checks/{id}/detail` */
-export async function getCheckDetail(db: Db, actor: Actor, id: string): Promise<CheckDetail> {
+/** `GET /api/checks/{id}/detail`; the display copy is made here when missing, so `photo.available` is known. */
+export async function getCheckDetail(db: Db, storage: Storage, actor: Actor, id: string): Promise<CheckDetail> {
   authorize(actor, 'workshop:read');
   const row = await getCheck(db, actor.workshopId, id);
   if (!row) throw notFound('check');
@@ -77,6 +80,7 @@ export async function getCheckDetail(db: Db, actor: Actor, id: string): Promise<
   const detections = parseJson(row.detectionsJson, PointsSchema);
   let edits: unknown = null;
   try { edits = row.editsJson ? JSON.parse(row.editsJson) : null; } catch { edits = null; }
+  const photoState = await previewState(db, storage, photo);
   return {
     check: {
       id: row.id,
@@ -94,7 +98,7 @@ export async function getCheckDetail(db: Db, actor: Actor, id: string): Promise<
     pattern: pattern ? patternToMm(pattern) : null,
     patternRevision: patternRow?.revision ?? null,
     detections,
-    photo: { available: !!photo, widthPx: photo?.widthPx ?? detections?.image.width ?? null, heightPx: photo?.heightPx ?? detections?.image.height ?? null },
+    photo: { ...photoState, widthPx: photo?.widthPx ?? detections?.image.width ?? null, heightPx: photo?.heightPx ?? detections?.image.height ?? null },
     can: { review: can(actor, 'check:review') },
     units: actor.user.units,
   };
@@ -103,21 +107,29 @@ export async function getCheckDetail(db: Db, actor: Actor, id: string): Promise<
 /** Longest side of the display copies, px. */
 export const DISPLAY_SIZES = [1600, 3200] as const;
 export type DisplaySize = (typeof DISPLAY_SIZES)[number];
+/** Most pixels a display copy is made from (the decoder's bound against decompression bombs), px. */
+export const PREVIEW_MAX_PIXELS = 100_000_000;
 
-/**
- * `GET /api/checks/{id}/photo?size=` — the display copy (JPEG, upright, no metadata), made from the stored
- * original once and kept under `derived/…`.
- */
-export async function getDisplayPhoto(db: Db, storage: Storage, actor: Actor, id: string, size: DisplaySize): Promise<{ bytes: Buffer; etag: string }> {
-  authorize(actor, 'workshop:read');
-  const row = await getCheck(db, actor.workshopId, id);
-  if (!row?.photoId) throw notFound('photo');
-  const photo = await getPhoto(db, actor.workshopId, row.photoId);
-  if (!photo) throw notFound('photo');
-  const key = `derived/${photo.workshopId}/${photo.sha256}-display-${size}.jpg`;
-  const etag = `"${photo.sha256.slice(0, 32)}-${size}"`;
+const displayKey = (photo: PhotoRow, size: DisplaySize) => `derived/${photo.workshopId}/${photo.sha256}-display-${size}.jpg`;
+const unreadable = (reason: string) => new AppError('photo_unreadable', 422, reason);
+
+/** Why sharp could not make a copy of `original`, in words for the person. */
+async function previewFailure(original: Buffer, error: unknown): Promise<string> {
+  const meta = await sharp(original, { limitInputPixels: false }).metadata().catch(() => null);
+  const px = (meta?.width ?? 0) * (meta?.height ?? 0);
+  if (meta?.width && meta.height && px > PREVIEW_MAX_PIXELS) {
+    return `The photo has ${meta.width} × ${meta.height} px (${Math.round(px / 1e6)} MP), more than the ${PREVIEW_MAX_PIXELS / 1e6} MP a preview is made from. Upload a smaller copy of it.`;
+  }
+  const detail = (error instanceof Error ? error.message : String(error)).split('\n')[0]!.slice(0, 160);
+  return `The photo cannot be decoded (it may be cut short or damaged: ${detail}). Upload the photo again from the camera or phone.`;
+}
+
+/** The display copy of `photo` at `size`: read from storage, or made from the original once and stored. */
+async function displayCopy(db: Db, storage: Storage, photo: PhotoRow, size: DisplaySize): Promise<Buffer> {
+  if (photo.previewError) throw unreadable(photo.previewError);
+  const key = displayKey(photo, size);
   try {
-    return { bytes: await storage.getBytes(key), etag };
+    return await storage.getBytes(key);
   } catch (e) {
     if (!(e instanceof BlobNotFoundError)) throw e;
   }
@@ -128,14 +140,48 @@ export async function getDisplayPhoto(db: Db, storage: Storage, actor: Actor, id
     if (e instanceof BlobNotFoundError) throw new AppError('gone', 410, 'The original photo is no longer stored.');
     throw e;
   }
-  // rotate() with no angle applies the EXIF orientation; sharp writes no metadata unless asked (withMetadata).
-  const bytes = await sharp(original, { limitInputPixels: 100_000_000 })
-    .rotate()
-    .resize({ width: size, height: size, fit: 'inside', withoutEnlargement: true })
-    .jpeg({ quality: 82, mozjpeg: true })
-    .toBuffer();
+  let bytes: Buffer;
+  try {
+    // rotate() with no angle applies the EXIF orientation; sharp writes no metadata unless asked (withMetadata).
+    bytes = await sharp(original, { limitInputPixels: PREVIEW_MAX_PIXELS })
+      .rotate()
+      .resize({ width: size, height: size, fit: 'inside', withoutEnlargement: true })
+      .jpeg({ quality: 82, mozjpeg: true })
+      .toBuffer();
+  } catch (e) {
+    const reason = await previewFailure(original, e);
+    await setPhotoPreviewError(db, photo.id, reason);
+    throw unreadable(reason);
+  }
   await storage.put(bytes, { key, maxBytes: 50 * 1024 * 1024, contentType: 'image/jpeg' });
-  return { bytes, etag };
+  return bytes;
+}
+
+/** Whether the check's photo can be shown: it exists and a display copy is (or can be) made of it. */
+async function previewState(db: Db, storage: Storage, photo: PhotoRow | undefined): Promise<{ available: boolean; reason: string | null }> {
+  if (!photo) return { available: false, reason: 'The photo of this check was deleted.' };
+  if (photo.previewError) return { available: false, reason: photo.previewError };
+  if (await storage.exists(displayKey(photo, DISPLAY_SIZES[0]))) return { available: true, reason: null };
+  try {
+    await displayCopy(db, storage, photo, DISPLAY_SIZES[0]);
+    return { available: true, reason: null };
+  } catch (e) {
+    if (e instanceof AppError) return { available: false, reason: e.message };
+    throw e;
+  }
+}
+
+/**
+ * `GET /api/checks/{id}/photo?size=` — the display copy (JPEG, upright, no metadata), made from the stored
+ * original once and kept under `derived/…`; 422 `photo_unreadable` with the reason when none can be made.
+ */
+export async function getDisplayPhoto(db: Db, storage: Storage, actor: Actor, id: string, size: DisplaySize): Promise<{ bytes: Buffer; etag: string }> {
+  authorize(actor, 'workshop:read');
+  const row = await getCheck(db, actor.workshopId, id);
+  if (!row?.photoId) throw notFound('photo');
+  const photo = await getPhoto(db, actor.workshopId, row.photoId);
+  if (!photo) throw notFound('photo');
+  return { bytes: await displayCopy(db, storage, photo, size), etag: `"${photo.sha256.slice(0, 32)}-${size}"` };
 }
 
 /** `GET /api/checks/{id}/export?format=csv|json&units=mm|in` */

@@ -65,7 +65,7 @@ const out = {
   bench: 'report-views',
   positions: report.positions.length,
   detections: scene.points.holes.length,
-  detail: await series(() => getCheckDetail(db, actor, id), 200),
+  detail: await series(() => getCheckDetail(db, storage, actor, id), 200),
   report: await series(() => getCheckReport(db, actor, id), 200),
   exportCsv: await series(() => exportCheck(db, actor, id, 'csv', 'mm'), 200),
   photo: { firstMs: photoFirstMs, cached: await series(() => getDisplayPhoto(db, storage, actor, id, 1600), 50), sourcePx: '4000x3000' },

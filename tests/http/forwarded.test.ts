@@ -6,7 +6,7 @@
  * documentation ranges of RFC 5737 (IPv4) and RFC 3849 (IPv6).
  */
 import { describe, expect, it } from 'vitest';
-import { canonicalAddress, clientAddress, normaliseForwarding, trustedHopsFrom } from '@/lib/http/forwarded.mjs';
+import { canonicalAddress, clientAddress, clientScheme, normaliseForwarding, trustedHopsFrom } from '@/lib/http/forwarded.mjs';
 
 describe('client address', () => {
   it('is the socket peer when no proxy is trusted, whatever the client wrote', () => {
@@ -41,12 +41,24 @@ describe('client address', () => {
 });
 
 describe('forwarding headers', () => {
-  it('leave only the trusted address, and drop host and scheme claims when no proxy is trusted', () => {
+  it('leave only the trusted address, drop a host claim and put the socket\'s own scheme when no proxy is trusted', () => {
     const h: Record<string, string | string[] | undefined> = {
       'x-forwarded-for': '203.0.113.66', 'x-real-ip': '203.0.113.66', 'x-forwarded-host': 'evil.example', 'x-forwarded-proto': 'https', host: 'gridproof.test',
     };
     normaliseForwarding(h, '::ffff:198.51.100.7', 0);
-    expect(h).toEqual({ 'x-forwarded-for': '198.51.100.7', host: 'gridproof.test' });
+    expect(h).toEqual({ 'x-forwarded-for': '198.51.100.7', 'x-forwarded-proto': 'http', host: 'gridproof.test' });
+    const tls: Record<string, string | string[] | undefined> = { 'x-forwarded-proto': 'http' };
+    normaliseForwarding(tls, '198.51.100.7', 0, 'https');
+    expect(tls['x-forwarded-proto']).toBe('https');
+  });
+
+  it('take the scheme a trusted proxy wrote, n hops from the right, or the socket\'s when it wrote none', () => {
+    // the same "trust n hops" rule as the address: [...X-Forwarded-Proto, socket scheme]
+    expect(clientScheme('https', 'http', 1)).toBe('https');
+    expect(clientScheme(undefined, 'http', 1)).toBe('http');
+    expect(clientScheme('https, http', 'http', 1)).toBe('http'); // the client's own claim is the leftmost entry
+    expect(clientScheme('http, https', 'http', 2)).toBe('http');
+    expect(clientScheme(['HTTPS'], 'http', 1)).toBe('https');
   });
 
   it('keep the proxy\'s host and scheme behind a trusted proxy', () => {
@@ -58,7 +70,7 @@ describe('forwarding headers', () => {
   it('remove the address when there is none to believe', () => {
     const h: Record<string, string | string[] | undefined> = { 'x-forwarded-for': 'unknown' };
     normaliseForwarding(h, undefined, 0);
-    expect(h).toEqual({});
+    expect(h).toEqual({ 'x-forwarded-proto': 'http' });
   });
 });
 

@@ -1,12 +1,13 @@
 /**
  * Rate limits on a real migrated SQLite file: two separate database connections stand in for two web
- * instances and must count together. Fixed-window counting as in the OWASP authentication cheat sheet's
- * advice to throttle per account and per source.
+ * instances and must count together. The OWASP authentication cheat sheet's advice: throttle per source and
+ * account, and do not let an attacker lock an account by failing on purpose.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDb, type Db } from '@/db/client';
 import { POST as signInPost } from '@/app/api/auth/sign-in/route';
-import { consume, SIGN_IN_PER_ACCOUNT, SIGN_IN_PER_ADDRESS, type RateRule } from '@/lib/security/rate-limit';
+import { admitWithDelay } from '@/db/queries/rate-limits';
+import { consume, SIGN_IN_ACCOUNT_SLOWDOWN, SIGN_IN_PAIR, SIGN_IN_PER_ADDRESS, type RateRule } from '@/lib/security/rate-limit';
 import { call, newOwner, TEST_PASSWORD, uniqueEmail, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
 
 let t: WebTestDb;
@@ -28,20 +29,59 @@ describe('rate limits', () => {
     expect((await consume(second, rule, 'k', now + 1000)).count).toBe(1);
   });
 
-  // Each refused password costs a bcrypt hash (~0.2 s), so the counters are brought near their limits with
-  // consume() on the same keys the route uses, after a few real attempts have shown that the route counts.
-  it('limits sign-in per account even when every attempt comes from a new address', async () => {
-    const email = uniqueEmail('target');
-    for (let i = 0; i < 3; i++) {
-      const r = await call(signInPost, { body: { email, password: 'wrong guess number ' + i }, headers: { 'x-forwarded-for': `198.51.100.${i + 1}` } });
-      expect(r.status).toBe(401);
+  it('gives each (address, account) pair a few attempts, then a delay that doubles each time', async () => {
+    const rule = { free: 2, baseDelayMs: 1000, maxDelayMs: 5000, forgetMs: 60_000 };
+    // a client that retries the moment it is told to, alternating between two instances
+    let now = 5_000_000;
+    const admittedAt: number[] = [];
+    for (let i = 0; admittedAt.length < 8; i++) {
+      const d = await admitWithDelay(i % 2 ? second : t.db, 'pair:test', rule, now);
+      if (d.admitted) { admittedAt.push(now); continue; }
+      expect((await admitWithDelay(t.db, 'pair:test', rule, d.retryAt - 1)).admitted).toBe(false);
+      now = d.retryAt;
     }
-    const counted = await consume(t.db, SIGN_IN_PER_ACCOUNT, email);
-    expect(counted.count).toBe(4); // three attempts through the route, one here
-    for (let i = counted.count; i < SIGN_IN_PER_ACCOUNT.limit; i++) await consume(second, SIGN_IN_PER_ACCOUNT, email);
-    const over = await call(signInPost, { body: { email: email.toUpperCase(), password: 'yet another guess' }, headers: { 'x-forwarded-for': '198.51.100.200' } });
-    expect(over.status).toBe(429);
-    expect(over.json).toMatchObject({ error: { code: 'rate_limited' } });
+    // two at once, then waits of 1 s, 2 s, 4 s and the 5 s cap: the doubling the rule states
+    expect(admittedAt.slice(1).map((at, i) => at - admittedAt[i]!)).toEqual([0, 1000, 2000, 4000, 5000, 5000, 5000]);
+    expect((await admitWithDelay(t.db, 'pair:test', rule, now + 60_000)).admitted).toBe(true); // forgotten after a quiet hour
+  });
+
+  it('lets no parallel flood through the gap: one pair admits exactly its free attempts', async () => {
+    const rule = { free: 3, baseDelayMs: 60_000, maxDelayMs: 60_000, forgetMs: 600_000 };
+    const now = 9_000_000;
+    const all = await Promise.all(Array.from({ length: 24 }, (_, i) => admitWithDelay(i % 2 ? second : t.db, 'pair:flood', rule, now)));
+    expect(all.filter((d) => d.admitted)).toHaveLength(rule.free);
+  });
+
+  // The case that locked owners out: 20 wrong passwords for one e-mail. Each refused password costs a bcrypt
+  // hash (~0.2 s), so the account's counter is brought past its limit with consume() on the route's key.
+  it('never locks the owner out: after 20 wrong passwords from one address the right one from another signs in', async () => {
+    const owner = await newOwner(t.db);
+    const attacker = { 'x-forwarded-for': '198.51.100.66' };
+    const answers: number[] = [];
+    for (let i = 0; i < SIGN_IN_PAIR.free + 1; i++) {
+      answers.push((await call(signInPost, { body: { email: owner.user.email, password: `wrong guess ${i}` }, headers: attacker })).status);
+    }
+    // the free attempts are answered; the next comes inside the delay the last of them started
+    expect(answers).toEqual([...Array(SIGN_IN_PAIR.free).fill(401), 429]);
+    const refused = await call(signInPost, { body: { email: owner.user.email, password: TEST_PASSWORD }, headers: attacker });
+    expect(refused.status).toBe(429);
+    expect(refused.json).toMatchObject({ error: { code: 'rate_limited' } });
+    expect(Number(refused.res.headers.get('retry-after'))).toBeGreaterThanOrEqual(1);
+    expect(JSON.stringify(refused.json)).not.toContain(TEST_PASSWORD);
+    for (let i = 0; i < 20; i++) await consume(second, { name: SIGN_IN_ACCOUNT_SLOWDOWN.name, limit: SIGN_IN_ACCOUNT_SLOWDOWN.limit, windowMs: SIGN_IN_ACCOUNT_SLOWDOWN.windowMs }, owner.user.email);
+    // the owner at another address, and over the loopback of another host (127.0.0.2)
+    for (const ip of ['192.0.2.1', '127.0.0.2']) {
+      const mine = await call(signInPost, { body: { email: owner.user.email, password: TEST_PASSWORD }, headers: { 'x-forwarded-for': ip } });
+      expect(mine.status).toBe(200);
+    }
+  });
+
+  it('a success clears its pair, so the owner is not delayed by their own earlier typos', async () => {
+    const owner = await newOwner(t.db);
+    const here = { 'x-forwarded-for': '203.0.113.9' };
+    for (let i = 0; i < SIGN_IN_PAIR.free - 1; i++) expect((await call(signInPost, { body: { email: owner.user.email, password: `typo ${i}` }, headers: here })).status).toBe(401);
+    expect((await call(signInPost, { body: { email: owner.user.email, password: TEST_PASSWORD }, headers: here })).status).toBe(200);
+    for (let i = 0; i < SIGN_IN_PAIR.free - 1; i++) expect((await call(signInPost, { body: { email: owner.user.email, password: `typo again ${i}` }, headers: here })).status).toBe(401);
   });
 
   it('limits sign-in per address across many accounts, and leaves other addresses alone', async () => {
@@ -56,6 +96,7 @@ describe('rate limits', () => {
     const blocked = await call(signInPost, { body: { email: owner.user.email, password: TEST_PASSWORD }, headers: { 'x-forwarded-for': ip } });
     expect(blocked.status).toBe(429);
     expect(blocked.json).toMatchObject({ error: { code: 'rate_limited' } });
+    expect(Number(blocked.res.headers.get('retry-after'))).toBeGreaterThan(0);
     expect(JSON.stringify(blocked.json)).not.toContain(TEST_PASSWORD);
     const elsewhere = await call(signInPost, { body: { email: owner.user.email, password: TEST_PASSWORD }, headers: { 'x-forwarded-for': '192.0.2.1' } });
     expect(elsewhere.status).toBe(200);

@@ -8,5 +8,5 @@ export const POST = route({ auth: 'none', body: SignInSchema }, async ({ db, bod
   // a new session at every sign-in (no fixation); the one the browser held before, if any, ends
   await endSession(db, await unsealSession(readCookie(req.headers.get('cookie'), SESSION_COOKIE)));
   const sealed = await startSession(db, { userId: user.id, workshopId, ip, userAgent: req.headers.get('user-agent') });
-  return withSessionCookie(json({ user, workshopId }), sealed);
+  return withSessionCookie(json({ user, workshopId }), sealed, req);
 });

@@ -6,5 +6,5 @@ import { signUp, SignUpSchema } from '@/lib/services/auth';
 export const POST = route({ auth: 'none', body: SignUpSchema }, async ({ db, body, req, ip }) => {
   const { user, workshopId } = await signUp(db, body, { ip });
   const sealed = await startSession(db, { userId: user.id, workshopId, ip, userAgent: req.headers.get('user-agent') });
-  return withSessionCookie(json({ user, workshopId }, 201), sealed);
+  return withSessionCookie(json({ user, workshopId }, 201), sealed, req);
 });

@@ -10,5 +10,5 @@ export const POST = route({ auth: 'user', body: z.object({ workshopId: z.string(
   if (!membership) throw notFound('workshop');
   const data = await unsealSession(readCookie(req.headers.get('cookie'), SESSION_COOKIE));
   if (!data) throw notFound('session');
-  return withSessionCookie(json({ workshopId: membership.workshopId, role: membership.role }), await sealSession({ sid: data.sid, wid: membership.workshopId }));
+  return withSessionCookie(json({ workshopId: membership.workshopId, role: membership.role }), await sealSession({ sid: data.sid, wid: membership.workshopId }), req);
 });

@@ -12,5 +12,5 @@ export const POST = route({ auth: 'none', body: AcceptSchema }, async ({ db, aut
   const sealed = current
     ? await sealSession({ sid: current.sid, wid: workshopId })
     : await startSession(db, { userId: user.id, workshopId, ip, userAgent: req.headers.get('user-agent') });
-  return withSessionCookie(json({ user, workshopId, created }), sealed);
+  return withSessionCookie(json({ user, workshopId, created }), sealed, req);
 });

@@ -10,5 +10,5 @@ export const POST = route({ auth: 'user', body: PasswordChangeSchema }, async ({
   await changePassword(db, auth.user, body, { ip });
   const wid = (await unsealSession(readCookie(req.headers.get('cookie'), SESSION_COOKIE)))?.wid ?? auth.actor?.workshopId ?? null;
   const sealed = await startSession(db, { userId: auth.user.id, workshopId: wid, ip, userAgent: req.headers.get('user-agent') });
-  return withSessionCookie(json({ ok: true }), sealed);
+  return withSessionCookie(json({ ok: true }), sealed, req);
 });
