@@ -91,6 +91,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
         <p className="text-sm font-bold uppercase tracking-wide">{detail.check.bedName}{detail.check.title ? ` · ${detail.check.title}` : ''} · {when}</p>
         <h2 className="mt-1 text-3xl font-bold">{VERDICT_WORD[s.verdict]}</h2>
         <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{s.sentence}</p>
+        {s.shapeSentence && <p className="mt-1 leading-snug text-ink" data-testid="shape-sentence">{s.shapeSentence}</p>}
       </section>
 
       <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">

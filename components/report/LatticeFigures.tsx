@@ -1,6 +1,7 @@
 /** The lattice's global scale and squareness with their 1σ uncertainty, or why they were not observed. */
 import type { Report } from '@/lib/geometry/contract';
-import { formatPpm, scaleOver, type LengthUnit } from '@/lib/report/units';
+import { bandRadiusMm } from '@/lib/geometry/band';
+import { formatLength, formatPpm, scaleOver, type LengthUnit } from '@/lib/report/units';
 
 export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { report: Report; unit: LengthUnit; bedWidthMm: number | null; bedHeightMm: number | null }) {
   const l = report.lattice;
@@ -27,7 +28,10 @@ export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { repo
       ) : (
         <p><strong>Scale and squareness: not observed.</strong> {l.reason ? `Why: ${l.reason}.` : 'This photo cannot tell them apart from the camera’s view.'}</p>
       )}
-      <p className="text-sm text-muted">Bed turned {l.rotationDeg.toFixed(2)}° in the photo{u.rotationDeg !== null ? ` (± ${u.rotationDeg.toFixed(3)}°)` : ''}; uncertainties are one standard deviation. Positions’ deviations are measured after the best rigid placement of the whole lattice.</p>
+      {l.shapeCheck && l.shapeCheck.worstMm !== null && l.shapeCheck.uncertaintyMm !== null && (
+        <p data-testid="shape-check"><strong>Overall size and squareness: {l.shapeCheck.verdict === 'in' ? 'within tolerance' : l.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.</strong> They move a position by up to {formatLength(l.shapeCheck.worstMm, unit)} ± {formatLength(bandRadiusMm(l.shapeCheck.uncertaintyMm), unit)} (95 %); {formatLength(l.shapeCheck.toleranceMm, unit)} allowed.</p>
+      )}
+      <p className="text-sm text-muted">Bed turned {l.rotationDeg.toFixed(2)}° in the photo{u.rotationDeg !== null ? ` (± ${u.rotationDeg.toFixed(3)}°)` : ''}; uncertainties are one standard deviation. Positions’ deviations on the whole bed are measured after the best rigid placement of the whole lattice; hole to hole, after the best affine placement, which takes the lattice’s own size and squareness out.</p>
     </div>
   );
 }

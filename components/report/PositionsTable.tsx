@@ -35,6 +35,9 @@ export interface PositionRow {
   /** Tolerance left: tol − r, mm (negative when out). */
   spare: number | null;
   hidden: boolean;
+  /** Hole-to-hole (form) verdict and deviation, mm; null when not measured or in a report made before them. */
+  formVerdict: Verdict | null;
+  formR: number | null;
 }
 
 export const VERDICT_FILTERS = {
@@ -72,6 +75,8 @@ export function positionRows(report: Report): PositionRow[] {
     tol: p.toleranceMm,
     spare: p.deviation ? p.toleranceMm - p.deviation.r : null,
     hidden: !!p.hidden,
+    formVerdict: p.form?.verdict ?? null,
+    formR: p.form?.r ?? null,
   }));
 }
 
@@ -86,7 +91,7 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
   const columns = useMemo(() => helper.columns([
     helper.accessor('label', { header: 'Position', filterFn: (row, id, value: string) => row.getValue<string>(id).toLowerCase().includes(value.trim().toLowerCase()), sortFn: 'alphanumeric' }),
     helper.accessor('verdict', {
-      header: 'Verdict',
+      header: 'Whole bed',
       filterFn: (row, id, value: VerdictFilter) => {
         const v = row.getValue<Verdict>(id);
         return value === 'all' || (value === 'problems' ? v === 'out' || v === 'marginal' : v === value);
@@ -94,6 +99,12 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
       sortFn: (a, b, id) => VERDICT_RANK[a.getValue<Verdict>(id)] - VERDICT_RANK[b.getValue<Verdict>(id)],
       cell: (c) => <MarkChip mark={c.getValue()} />,
     }),
+    helper.accessor('formVerdict', {
+      header: 'Hole to hole',
+      sortFn: (a, b, id) => (VERDICT_RANK[a.getValue<Verdict | null>(id) ?? 'missing']) - (VERDICT_RANK[b.getValue<Verdict | null>(id) ?? 'missing']),
+      cell: (c) => { const v = c.getValue(); return v ? <MarkChip mark={v} /> : '—'; },
+    }),
+    helper.accessor('formR', { header: `Off hole to hole, ${unit}`, sortFn: (a, b, id) => numSort(a.getValue(id), b.getValue(id)), cell: (c) => len(c.getValue()) }),
     helper.accessor('r', { header: `Off, ${unit}`, sortFn: (a, b, id) => numSort(a.getValue(id), b.getValue(id)), cell: (c) => len(c.getValue()) }),
     helper.accessor('spare', { header: `Spare, ${unit}`, sortFn: (a, b, id) => numSort(a.getValue(id), b.getValue(id)), cell: (c) => len(c.getValue(), true) }),
     helper.accessor('dx', { header: `X, ${unit}`, sortFn: (a, b, id) => numSort(a.getValue(id), b.getValue(id)), cell: (c) => len(c.getValue(), true) }),
@@ -152,7 +163,7 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
         </label>
       </div>
       <p className="text-sm text-muted" aria-live="polite" data-testid="positions-count">
-        {shown.length} of {rows.length} positions shown. Tap a heading to sort. “Spare” is the tolerance left; below zero the position is out.
+        {shown.length} of {rows.length} positions shown. Tap a heading to sort. “Whole bed” judges each position against the whole lattice, its overall size and squareness included; “hole to hole” once they are taken out, which is what a fixture spanning part of the bed feels. “Spare” is the tolerance left; below zero the position is out.
       </p>
       <div className="gp-table-scroll max-h-[70vh] overflow-auto rounded-lg border border-line">
         <table className="w-full border-collapse text-left" data-testid="positions-table">

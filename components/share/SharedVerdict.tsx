@@ -11,7 +11,7 @@ export interface SharedVerdictProps {
   checkTitle: string | null;
   /** When the check finished, ms since the epoch. */
   checkedAt: number | null;
-  summary: Pick<Report['summary'], 'verdict' | 'sentence'>;
+  summary: Pick<Report['summary'], 'verdict' | 'sentence' | 'shapeSentence'>;
 }
 
 export function SharedVerdict({ bedName, checkTitle, checkedAt, summary }: SharedVerdictProps) {
@@ -21,6 +21,7 @@ export function SharedVerdict({ bedName, checkTitle, checkedAt, summary }: Share
       <p className="text-sm font-bold uppercase tracking-wide">{bedName}{checkTitle ? ` · ${checkTitle}` : ''}{when ? ` · ${when}` : ''}</p>
       <h1 className="mt-1 text-3xl font-bold">{VERDICT_WORD[summary.verdict]}</h1>
       <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{summary.sentence}</p>
+      {summary.shapeSentence && <p className="mt-1 leading-snug text-ink" data-testid="shape-sentence">{summary.shapeSentence}</p>}
     </section>
   );
 }

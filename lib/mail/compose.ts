@@ -16,5 +16,5 @@ export type ReportMailFromReportInput = Omit<ReportMailInput, 'verdict' | 'verdi
 export async function reportMailFromReport(input: ReportMailFromReportInput): Promise<MailContent> {
   const { report, mapWidthPx, ...rest } = input;
   const png = await renderDeviationMapPng(report, { widthPx: mapWidthPx ?? 640 });
-  return reportMail({ ...rest, verdict: report.summary.verdict, verdictSentence: report.summary.sentence, map: { content: png, contentType: 'image/png' } });
+  return reportMail({ ...rest, verdict: report.summary.verdict, verdictSentence: report.summary.sentence, shapeSentence: report.summary.shapeSentence, map: { content: png, contentType: 'image/png' } });
 }

@@ -60,6 +60,8 @@ export const ReportMailInputSchema = z.object({
   verdict: z.enum(['pass', 'marginal', 'fail']),
   /** The report's one-sentence verdict (report.summary.sentence). */
   verdictSentence: z.string().min(1).max(1000),
+  /** The overall size and squareness line (report.summary.shapeSentence), when the report has one. */
+  shapeSentence: z.string().max(1000).nullish(),
   /** A short note from the sender. */
   note: z.string().max(2000).nullish(),
   /** The deviation map, shown inline (PNG preferred: many mail readers do not show SVG). */
@@ -91,6 +93,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     `${i.senderName} of the workshop "${i.workshopName}" shared a ${APP_NAME} bed check with you: ${what}.`,
     '',
     `Verdict: ${verdictLine}`,
+    ...(i.shapeSentence ? [i.shapeSentence] : []),
     ...(i.note && i.note.trim() ? ['', `Note from ${i.senderName}:`, ...i.note.trim().split(/\r?\n/).map((l) => `  ${l}`)] : []),
     '',
     'Open the report (no account needed; read only):',
@@ -110,7 +113,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     : '';
   const bodyHtml = [
     `<p style="margin-top:0"><strong>${escapeHtml(i.senderName)}</strong> of the workshop <strong>${escapeHtml(i.workshopName)}</strong> shared a bed check with you: ${escapeHtml(what)}.</p>`,
-    `<p style="padding:10px 12px;border-left:4px solid ${VERDICT_COLOURS[i.verdict]};background:#f6f8f7"><strong style="color:${VERDICT_COLOURS[i.verdict]}">${VERDICT_WORDS[i.verdict]}.</strong> ${escapeHtml(i.verdictSentence)}</p>`,
+    `<p style="padding:10px 12px;border-left:4px solid ${VERDICT_COLOURS[i.verdict]};background:#f6f8f7"><strong style="color:${VERDICT_COLOURS[i.verdict]}">${VERDICT_WORDS[i.verdict]}.</strong> ${escapeHtml(i.verdictSentence)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
     noteHtml,
     button(url, 'Open the report'),
     expires ? `<p style="font-size:13px;color:#5b6663">${escapeHtml(expires)} No account is needed; the page is read only.</p>` : '<p style="font-size:13px;color:#5b6663">No account is needed; the page is read only.</p>',

@@ -10,6 +10,7 @@
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
 import { MM_PER_IN, type Report, type Verdict } from '@/lib/geometry/contract';
 import { distanceSentence } from '@/lib/report/distances';
+import { bandRadiusMm } from '@/lib/geometry/band';
 import { mapGeometry, nearestSpacing, niceFactor, VERDICT_RGB } from './map';
 import { drawable, wrapText } from './text';
 import { mmToPt, paperSizePt, type Paper } from './units';
@@ -231,7 +232,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   // Verdict
   const s = report.summary;
   f.y -= 10;
-  const sentenceLines = wrapText(regular, s.sentence, 10, f.textWidth - 20);
+  const sentenceLines = [...wrapText(regular, s.sentence, 10, f.textWidth - 20), ...(s.shapeSentence ? wrapText(regular, s.shapeSentence, 10, f.textWidth - 20) : [])];
   const boxH = 22 + sentenceLines.length * 13;
   f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: f.textWidth, height: boxH, color: rgb(0.965, 0.973, 0.969) });
   f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: 4, height: boxH, color: BED_VERDICT_COLOURS[s.verdict] });
@@ -259,6 +260,10 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     lat.squarenessDeg === null ? 'Squareness: not measured' : `Squareness (departure of the X and Y rows from 90°): ${lat.squarenessDeg.toFixed(4)}°${pm(u.squarenessDeg, 4)}.`,
     ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
     ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => len(mm, 2))),
+    ...(lat.shapeCheck && lat.shapeCheck.worstMm !== null && lat.shapeCheck.uncertaintyMm !== null
+      ? [`Overall size and squareness move a position by up to ${len(lat.shapeCheck.worstMm)} ± ${len(bandRadiusMm(lat.shapeCheck.uncertaintyMm))} (95 %) against ${len(lat.shapeCheck.toleranceMm)} allowed: ${lat.shapeCheck.verdict === 'in' ? 'within tolerance' : lat.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.`]
+      : []),
+    ...(s.formOut !== undefined ? [`Hole to hole (the lattice's own size and squareness taken out): ${s.formOut} out, ${s.formMarginal ?? 0} marginal.`] : []),
     `Lens model: focal length ${report.camera.focalPx.toFixed(0)} px, k1 ${report.camera.k1.toExponential(2)}, k2 ${report.camera.k2.toExponential(2)}.`,
   ];
   for (const line of figures) f.paragraph(line, { size: 9 });
@@ -299,10 +304,12 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     );
   }
 
-  // Positions out or marginal
+  // Positions out or marginal, on the whole bed or hole to hole (the worse of the two first)
+  const RANK: Record<Verdict, number> = { out: 0, marginal: 1, in: 2, missing: 3 };
+  const worstRank = (q: Report['positions'][number]) => Math.min(RANK[q.verdict], q.form ? RANK[q.form.verdict] : 3);
   const flagged = report.positions
-    .filter((q) => q.verdict === 'out' || q.verdict === 'marginal')
-    .sort((a, b) => (a.verdict === b.verdict ? (b.deviation?.r ?? 0) - (a.deviation?.r ?? 0) : a.verdict === 'out' ? -1 : 1));
+    .filter((q) => q.verdict === 'out' || q.verdict === 'marginal' || q.form?.verdict === 'out' || q.form?.verdict === 'marginal')
+    .sort((a, b) => worstRank(a) - worstRank(b) || (b.deviation?.r ?? 0) - (a.deviation?.r ?? 0));
   f.heading('Positions out of tolerance or marginal');
   if (!flagged.length) f.paragraph('None: every measured position is within its tolerance.');
   else {
@@ -317,12 +324,15 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
         { title: `dY ${unitName}`, width: 55, align: 'right' },
         { title: `Off ${unitName}`, width: 55, align: 'right' },
         { title: `Allowed ${unitName}`, width: 60, align: 'right' },
-        { title: 'Verdict', width: 50 },
+        { title: 'Whole bed', width: 50 },
+        { title: `Hole to hole ${unitName}`, width: 60, align: 'right' },
+        { title: 'Hole to hole', width: 55 },
       ],
       flagged.slice(0, maxRows).map((q) => [
         q.label, q.family, q.panel ?? '',
         q.deviation ? signed(q.deviation.dx) : '', q.deviation ? signed(q.deviation.dy) : '',
         q.deviation ? len(q.deviation.r).replace(/ (mm|in)$/, '') : '', len(q.toleranceMm).replace(/ (mm|in)$/, ''), q.verdict,
+        q.form ? len(q.form.r).replace(/ (mm|in)$/, '') : '', q.form?.verdict ?? '',
       ]),
     );
     if (flagged.length > maxRows) f.paragraph(`… and ${flagged.length - maxRows} more (see the report online).`, { color: MUTED });

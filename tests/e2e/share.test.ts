@@ -42,6 +42,7 @@ let checkId: string;
 let shareUrl: string;
 let linkId: string;
 let sentence: string;
+let shapeSentence: string | undefined;
 
 beforeAll(async () => {
   expect((await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD })).status).toBe(200);
@@ -65,6 +66,7 @@ beforeAll(async () => {
   const scene = makeScene({ pattern: PATTERN, seed: 11, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 150, y: 330, angleDeg: 5 } });
   const report = analyzePoints(scene.points, PATTERN);
   sentence = report.summary.sentence;
+  shapeSentence = report.summary.shapeSentence;
   const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
   await db.update(checks).set({ status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() }).where(eq(checks.id, checkId));
   db.$client.close();
@@ -94,6 +96,10 @@ describe('a shared report opened without an account', () => {
     expect(res?.status()).toBe(200);
     await page.getByTestId('shared-report').waitFor();
     await expect.poll(() => page.getByTestId('verdict-sentence').textContent()).toBe(sentence);
+    // both verdicts in plain words: the overall size on its own line, hole to hole beside the whole bed in the table
+    expect(shapeSentence).toBeTruthy();
+    expect(await page.getByTestId('shape-sentence').textContent()).toBe(shapeSentence);
+    await page.getByTestId('positions-table').getByText('Hole to hole').first().waitFor();
     await page.getByText('dog B2 binds when the table is cold').waitFor();
     expect(await page.locator('svg[role="img"]').count()).toBeGreaterThan(0);
     await page.waitForLoadState('networkidle');

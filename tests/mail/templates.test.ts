@@ -71,6 +71,16 @@ describe('report mail from a report', () => {
   });
 });
 
+describe('report mail with both verdicts', () => {
+  it('carries the overall size and squareness line below the verdict, in the text and the HTML', () => {
+    const line = 'Overall size and squareness: this reference cannot judge them to the tolerance; a larger reference target would settle it.';
+    const m = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'pass', verdictSentence: 'Pass: all 96 measured positions are within tolerance hole to hole.', shapeSentence: line });
+    expect(m.text).toContain(line);
+    expect(m.html).toContain(line);
+    expect(m.text.indexOf(line)).toBeGreaterThan(m.text.indexOf('Verdict: '));
+  });
+});
+
 describe('mail settings from the environment', () => {
   it('uses the configured SMTP server, with 465 meaning TLS from the first byte', () => {
     const c = mailConfigFromEnv({ SMTP_HOST: 'smtp.example.test', SMTP_PORT: '465', SMTP_USER: 'u', SMTP_PASS: 'p', MAIL_FROM: 'Gridproof <g@example.test>' });

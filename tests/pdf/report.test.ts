@@ -119,6 +119,13 @@ describe('report PDF from the measurement core', () => {
     for (const p of report.positions.filter((q) => q.verdict === 'out' || q.verdict === 'marginal')) expect(text).toContain(p.label);
     for (const q of report.panels) expect(text).toContain(q.id);
     for (const p of report.positions.filter((q) => q.verdict === 'missing')) expect(text).toContain(p.label);
+    // Both verdicts in plain words: the overall-size line, and every position out or marginal hole to hole listed.
+    expect(report.summary.shapeSentence).toBeTruthy();
+    for (const w of report.summary.shapeSentence!.split(' ')) expect(text).toContain(w.replace(/[−]/g, '-'));
+    expect(text).toContain('Hole to hole');
+    const formFlagged = report.positions.filter((q) => q.form?.verdict === 'out' || q.form?.verdict === 'marginal');
+    expect(formFlagged.length).toBeGreaterThan(0);
+    for (const p of formFlagged) expect(text).toContain(p.label);
   });
 
   it('lists the measured distances given with the check, with their residuals', async () => {
