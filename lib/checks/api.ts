@@ -8,6 +8,7 @@ import { getBed, listBedChecks, type CheckListRow } from '@/db/queries/beds';
 import { checkStatusView, getCheck, getCheckReportRef, getCheckReportText, requestRefit, CheckStateError, type CheckStatusView } from '@/db/queries/checks';
 import { compareReports, type Comparison } from '@/lib/geometry';
 import { MeasuredDistancesSchema, PointsSchema, type Report } from '@/lib/geometry/contract';
+import { decimalIn } from '@/lib/http/decimal';
 import { AppError, conflict, invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from '@/lib/services/actor';
 import { formatBytes, type Storage, uploadMaxBytes } from '@/lib/storage';
@@ -30,7 +31,9 @@ function toAppError(e: IntakeError): AppError {
 }
 
 const UploadFieldsSchema = z.object({
-  referenceMm: z.coerce.number({ error: 'Give the measured size of the reference square in mm.' }).finite().positive('The square\'s size must be more than 0 mm.').max(2000),
+  // a reference square is 20 mm to 2 m on a side: our printed target is 250 mm, a sheet square up to 1220 mm
+  // (common practice); below 20 mm the square is smaller than one pitch of any bed and measures nothing
+  referenceMm: decimalIn('referenceMm', 20, 2000, 'mm (the measured side of the reference square)'),
   corners: z.string().max(2000).optional().transform((s, ctx) => {
     if (s === undefined || s.trim() === '') return null;
     try {
@@ -40,7 +43,7 @@ const UploadFieldsSchema = z.object({
     ctx.addIssue({ code: 'custom', message: 'Corners must be four [x, y] pixel pairs, e.g. [[10,10],[200,10],[200,200],[10,200]].' });
     return z.NEVER;
   }),
-  title: z.string().trim().max(120).optional(),
+  title: z.string().trim().max(120, 'title must be at most 120 characters').optional(),
   distances: z.string().max(8192).optional().transform((s, ctx) => {
     if (s === undefined || s.trim() === '') return null;
     try {
@@ -96,7 +99,14 @@ export async function uploadCheck(db: Db, storage: Storage, actor: Actor, bedId:
         name = part.filename || null;
         stored = await storeUpload(storage, actor.workshopId, part.body, maxBytes);
       } else if (part.filename === undefined && ['referenceMm', 'corners', 'title', 'distances'].includes(part.name)) {
-        text[part.name] = await readText(part, part.name === 'distances' ? 8192 : 4096);
+        const limit = part.name === 'distances' ? 8192 : 4096;
+        try {
+          text[part.name] = await readText(part, limit);
+        } catch (e) {
+          // a too-long field is that field's problem, not the photo's
+          if (!(e instanceof MultipartError)) throw e;
+          throw invalidInput('Some fields of the upload need attention.', { [part.name]: `${part.name} must be at most ${part.name === 'title' ? '120 characters' : `${limit} bytes`}` });
+        }
       }
       // other parts are skipped unread
     }

@@ -49,11 +49,34 @@ export const invalidInput = (message: string, fields?: ErrorFields) => new AppEr
 /** Flattens a zod error into `fields` (first message per path) and a one-line summary. */
 export function fromZodError(err: z.ZodError, message = 'Some fields need attention.'): AppError {
   const fields: ErrorFields = {};
-  for (const issue of err.issues) {
+  for (const issue of clearIssues(err.issues)) {
     const key = issue.path.length ? issue.path.map(String).join('.') : '_';
     fields[key] ??= issue.message;
   }
   return invalidInput(message, fields);
+}
+
+type Issue = { path: PropertyKey[]; message: string; code?: string; expected?: unknown; errors?: Issue[][] };
+
+/**
+ * Issues with each failed union ("Invalid input") replaced by the issues of the option the value came closest
+ * to (the deepest issue, then the fewest), so the message names the field that was sent. A value of the wrong
+ * type for every option says what the field must be ("pattern must be a JSON object").
+ */
+export function clearIssues(issues: readonly Issue[]): Issue[] {
+  return issues.flatMap((issue) => {
+    if (issue.code !== 'invalid_union' || !issue.errors?.length) return [issue];
+    const options = issue.errors.map((o) => clearIssues(o));
+    const atRoot = options.every((o) => o.every((i) => i.path.length === 0 && i.code === 'invalid_type'));
+    if (atRoot) {
+      const kinds = [...new Set(options.flatMap((o) => o.map((i) => String(i.expected))))].map((k) => (k === 'object' ? 'a JSON object' : k === 'array' ? 'a JSON array' : `a ${k}`));
+      const name = issue.path.length ? String(issue.path[issue.path.length - 1]) : 'the value';
+      return [{ ...issue, errors: undefined, message: `${name} must be ${kinds.join(' or ')}` }];
+    }
+    const depth = (o: Issue[]) => Math.max(...o.map((i) => i.path.length));
+    const best = options.reduce((a, b) => (depth(b) > depth(a) || (depth(b) === depth(a) && b.length < a.length) ? b : a));
+    return best.map((i) => ({ ...i, path: [...issue.path, ...i.path] }));
+  });
 }
 
 /** Maps anything thrown to an AppError; unknown errors are logged and hidden behind a 500. */

@@ -18,6 +18,7 @@ import { hitRateLimit } from '@/db/queries/rate-limits';
 import * as q from '@/db/queries/share-links';
 import { getWorkshop } from '@/db/queries/workshops';
 import type { Report } from '@/lib/geometry/contract';
+import { decimalIn } from '@/lib/http/decimal';
 import { AppError, notFound } from '@/lib/http/errors';
 import { queueMail, reportMailFromReport } from '@/lib/mail';
 import { reportAt } from '@/lib/checks/report-cache';
@@ -35,7 +36,7 @@ const DAY_MS = 24 * 3600 * 1000;
 export const SHARE_TOKEN_PATTERN = /^[A-Za-z0-9_-]{43}$/;
 
 export const ShareCreateSchema = z.object({
-  expiresInDays: z.coerce.number().int('Whole days, please.').min(1).max(SHARE_MAX_DAYS).default(SHARE_DEFAULT_DAYS),
+  expiresInDays: decimalIn('expiresInDays', 1, SHARE_MAX_DAYS, 'days', true).default(SHARE_DEFAULT_DAYS),
 });
 export const ShareSendSchema = ShareCreateSchema.extend({
   email: EmailSchema,
