@@ -5,7 +5,9 @@
  *   3. migrates the database (DATABASE_URL, default file:data/gridproof.db);
  *   4. in demo mode (DEMO_MODE, default 1 here) seeds the demo workshop into an empty database;
  *   5. runs the web server (lib/cli/web-server.mjs: the built app on ${PORT:-3000}, forwarding headers checked)
- *      and the analysis worker (`tsx workers/worker.ts`, if present) side by side, forwarding SIGINT/SIGTERM to both, and exits when either of them exits (stopping the other).
+ *      and the analysis worker (`node --import tsx workers/worker.ts`, if present) side by side, forwarding
+ *      SIGINT/SIGTERM to both. A worker that dies is started again after a growing pause while the web server
+ *      keeps serving; the web server exiting stops everything.
  * `ensureBuilt()` is also used by the browser tests' global setup.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
@@ -20,7 +22,6 @@ export const ROOT = resolve(fileURLToPath(new URL('../..', import.meta.url)));
 const NEXT_BIN = join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next');
 /** The production web server (Next's handler behind Node's HTTP server; see its header). */
 export const WEB_SERVER = join(ROOT, 'lib', 'cli', 'web-server.mjs');
-const TSX_BIN = join(ROOT, 'node_modules', '.bin', 'tsx');
 
 /** What the built app depends on; a change in any of these makes .next stale. */
 const SOURCES = ['app', 'components', 'lib', 'db', 'public', 'next.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json'];
@@ -132,18 +133,21 @@ async function main() {
   }
   await closeDb();
 
-  const children: ChildProcess[] = [];
   const childEnv = { ...process.env, NEXT_TELEMETRY_DISABLED: '1' };
   const web = spawn(process.execPath, [WEB_SERVER], { cwd: ROOT, stdio: 'inherit', env: { ...childEnv, PORT: String(env.PORT) } });
-  children.push(web);
   const workerFile = join(ROOT, 'workers', 'worker.ts');
-  if (existsSync(workerFile)) children.push(spawn(TSX_BIN, [workerFile], { cwd: ROOT, stdio: 'inherit', env: childEnv }));
-  else console.log('[gridproof] no workers/worker.ts: serving without the analysis worker');
+  // `node --import tsx` rather than the tsx CLI, so a signal sent to the worker reaches the worker itself
+  const startWorkerProcess = () => spawn(process.execPath, ['--import', 'tsx', workerFile], { cwd: ROOT, stdio: 'inherit', env: childEnv });
+  let worker: ChildProcess | null = existsSync(workerFile) ? startWorkerProcess() : null;
+  if (!worker) console.log('[gridproof] no workers/worker.ts: serving without the analysis worker');
   console.log(`[gridproof] serving on ${env.APP_URL ?? `http://localhost:${env.PORT}`}${isDemoMode() ? ' (demo mode)' : ''}`);
 
+  const alive = (c: ChildProcess | null) => !!c && c.exitCode === null && c.signalCode === null;
   let stopping = false;
+  let restartTimer: NodeJS.Timeout | undefined;
   const stopAll = (signal: NodeJS.Signals) => {
-    for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill(signal);
+    clearTimeout(restartTimer);
+    for (const c of [web, worker]) if (c && alive(c)) c.kill(signal);
   };
   for (const sig of ['SIGINT', 'SIGTERM'] as const) {
     process.on(sig, () => {
@@ -152,17 +156,35 @@ async function main() {
     });
   }
   await new Promise<void>((done) => {
-    for (const c of children) {
+    const maybeDone = () => { if (!alive(web) && !alive(worker)) done(); };
+    // the web server stopping stops everything
+    web.on('exit', (code, signal) => {
+      if (!stopping) {
+        console.error(`[gridproof] web server exited (${code ?? signal}); stopping`);
+        stopping = true;
+        process.exitCode = code ?? 1;
+        stopAll('SIGTERM');
+      }
+      maybeDone();
+    });
+    // a worker that dies is started again with a growing pause (1 s, 2 s, … 30 s; back to 1 s after a minute
+    // of running), while the web server keeps serving; its jobs are claimed again once their leases run out
+    let failures = 0;
+    const watch = (c: ChildProcess) => {
+      const startedAt = Date.now();
       c.on('exit', (code, signal) => {
-        if (!stopping) {
-          console.error(`[gridproof] ${c === web ? 'web server' : 'worker'} exited (${code ?? signal}); stopping`);
-          stopping = true;
-          process.exitCode = code ?? 1;
-          stopAll('SIGTERM');
-        }
-        if (children.every((k) => k.exitCode !== null || k.signalCode !== null)) done();
+        if (stopping) return maybeDone();
+        failures = Date.now() - startedAt > 60_000 ? 1 : failures + 1;
+        const pauseMs = Math.min(30_000, 1_000 * 2 ** (failures - 1));
+        console.error(`[gridproof] worker exited (${code ?? signal}); starting it again in ${pauseMs / 1000} s`);
+        restartTimer = setTimeout(() => {
+          if (stopping) return;
+          worker = startWorkerProcess();
+          watch(worker);
+        }, pauseMs);
       });
-    }
+    };
+    if (worker) watch(worker);
   });
 }
 
