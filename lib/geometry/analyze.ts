@@ -373,7 +373,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const r3 = [r1[1]! * r2[2]! - r1[2]! * r2[1]!, r1[2]! * r2[0]! - r1[0]! * r2[2]!, r1[0]! * r2[1]! - r1[1]! * r2[0]!];
   const tiltDeg = Math.acos(Math.min(1, Math.abs(r3[2]!) / Math.hypot(r3[0]!, r3[1]!, r3[2]!))) * DEG;
   const sdK = (i: number) => Math.sqrt(Math.max(0, model.cov[i * model.np + i]!));
-  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, uncertainty: { k1: sdK(8) * rk * rk, k2: sdK(9) * rk ** 4 }, focalSource: pts.image.focalPx ? 'exif' : fOut === f0 ? 'assumed' : 'estimated', tiltDeg, principalPoint: { x: W / 2, y: Hh / 2 } };
+  const camera = { focalPx: fOut, k1: model.lens.k1 * rk * rk, k2: model.lens.k2 * rk ** 4, uncertainty: { k1: knownOrNull(sdK(8) * rk * rk), k2: knownOrNull(sdK(9) * rk ** 4) }, focalSource: pts.image.focalPx ? 'exif' as const : fOut === f0 ? 'assumed' as const : 'estimated' as const, tiltDeg, principalPoint: { x: W / 2, y: Hh / 2 } };
 
   const unmatched: Report['unmatched'] = [];
   for (let i = 0; i < n; i++) if (asg.posOf[i]! < 0) unmatched.push({ x: det.u[i]!, y: det.v[i]! });
@@ -391,8 +391,11 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
     version: 1, units: 'mm', pattern: { name: pm.name }, positions, unmatched, panels, seams, lattice, camera, summary, warnings,
     ...(distanceRows ? { distances: distanceRows } : {}),
     diagnostics: { scaleSigmaParts: { corners: shape.parts.cornersScale, fit: shape.parts.fitScale }, diameterRatio: kappa, residualSigmaPx: model.sigmaPx, centreSigmaPx: sigmaPx, inFit: fit.idx.length, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx, hidden: hidden.reduce((a, b) => a + b, 0) },
-  } as Report;
+  };
 }
+
+/** A 1σ the fit cannot state (its covariance not invertible, NaN) is unknown: null, as JSON would store it. */
+const knownOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
 function localScaleModel(m: BedModel, u: number, v: number): number {
   const j = homographyJacobian(m.Hinv, u, v);

@@ -298,7 +298,7 @@ const Uncertain = finite.nullable();
 export const ReportSchema = z.object({
   version: z.literal(1),
   units: z.literal('mm'),
-  pattern: z.object({ name: z.string() }).passthrough(),
+  pattern: z.object({ name: z.string() }),
   positions: z.array(ReportPositionSchema),
   /** Detections that match no nominal position, in image px (origin top-left, +y down). */
   unmatched: z.array(z.object({ x: finite, y: finite })),
@@ -316,7 +316,20 @@ export const ReportSchema = z.object({
     /** Overall size and squareness against the tightest tolerance; absent in older reports. */
     shapeCheck: ReportShapeCheckSchema.optional(),
   }),
-  camera: z.object({ focalPx: finite, k1: finite, k2: finite }),
+  /**
+   * The camera as the fit sees it: focal length (px), Brown–Conrady k1, k2 on focal-normalised coordinates about the
+   * principal point (image px), their 1σ, the focal length's source and the view's tilt from straight down
+   * (degrees). A shared report carries only neutral focalPx, k1, k2.
+   */
+  camera: z.object({
+    focalPx: finite,
+    k1: finite,
+    k2: finite,
+    uncertainty: z.object({ k1: Uncertain, k2: Uncertain }).optional(),
+    focalSource: z.enum(['exif', 'assumed', 'estimated']).optional(),
+    tiltDeg: finite.optional(),
+    principalPoint: Vec2Schema.optional(),
+  }),
   summary: z.object({
     matched: z.number().int(),
     missing: z.number().int(),
@@ -338,5 +351,24 @@ export const ReportSchema = z.object({
   warnings: z.array(z.string()).optional(),
   /** Measured distances given with the check (absent when none were). */
   distances: z.array(ReportDistanceSchema).optional(),
-}).passthrough();
+  /** Figures of the fit for whoever checks the method (not shown to a machinist, never shared). */
+  diagnostics: z.object({
+    /** The scale's 1σ from the square's corners and from the fit, ratios. */
+    scaleSigmaParts: z.object({ corners: finite, fit: finite }).optional(),
+    /** Detected / nominal hole diameter. */
+    diameterRatio: finite,
+    /** Robust 1σ of the fit's image residuals, px per axis. */
+    residualSigmaPx: finite,
+    /** 1σ of a hole centre used for the positions' uncertainty, px. */
+    centreSigmaPx: finite,
+    /** Matched holes in the fit. */
+    inFit: z.number().int(),
+    /** The reference square's side in the photo, px; its corners' 1σ used and its affine fit's RMS, px. */
+    squareSidePx: finite,
+    cornerSigmaPx: finite,
+    squareResidualPx: finite,
+    /** Positions under the reference sheet. */
+    hidden: z.number().int(),
+  }).optional(),
+});
 export type Report = z.infer<typeof ReportSchema>;

@@ -80,7 +80,7 @@ describe('analyzePoints on synthetic scenes', () => {
       // The bed's turn in the photo (4° counter-clockwise, plus a little from the tilt).
       expect(Math.abs(r.lattice.rotationDeg - 4)).toBeLessThan(1.5);
       // Camera: tilt from straight down (12°) and distortion recovered.
-      expect(Math.abs((r.camera as unknown as { tiltDeg: number }).tiltDeg - 12)).toBeLessThan(1.5);
+      expect(Math.abs(r.camera.tiltDeg! - 12)).toBeLessThan(1.5);
       expect(r.camera.k1 / (t.camera.k1 * (r.camera.focalPx / t.camera.fPx) ** 2)).toBeGreaterThan(0.8);
     });
   }
@@ -140,7 +140,7 @@ describe('detected sizes', () => {
     const r = analyzePoints(big, m6);
     expect(r.summary.matched).toBeGreaterThan(0.95 * scene.truth.seen.reduce((a, b) => a + b, 0));
     r.positions.forEach((p, i) => { if (p.measured) expect(scene.truth.seen[i]).toBe(1); });
-    expect((r as unknown as { diagnostics: { diameterRatio: number } }).diagnostics.diameterRatio).toBeCloseTo(1.7, 1);
+    expect(r.diagnostics!.diameterRatio).toBeCloseTo(1.7, 1);
   });
 });
 

@@ -40,12 +40,12 @@ export function handReport(pattern: Pattern, dev: Record<string, [number, number
     version: 1, units: 'mm', pattern: { name: pattern.name }, positions, unmatched: [{ x: 1234.5, y: 987.25 }], panels: [], seams: [],
     lattice: { rotationDeg: 0, scaleX: 1, scaleY: 1, squarenessDeg: 0, observed: true, uncertainty: { rotationDeg: 0.001, scaleX: 1e-5, scaleY: 1e-5, squarenessDeg: 0.001 } },
     camera: { focalPx: 3111.5, k1: -0.01, k2: 0.001, focalSource: 'exif', principalPoint: { x: 2016, y: 1512 } },
-    diagnostics: { residualSigmaPx: 0.2 },
+    diagnostics: { diameterRatio: 1, residualSigmaPx: 0.2, centreSigmaPx: 0.2, inFit: rs.length, squareSidePx: 450, cornerSigmaPx: 0.1, squareResidualPx: 0.05, hidden: 0 },
     summary: {
       matched: rs.length, missing: positions.length - rs.length, rmsMm: Math.sqrt(rs.reduce((a, b) => a + b * b, 0) / Math.max(1, rs.length)), maxMm: Math.max(0, ...rs),
       out, marginal: 0, verdict: out ? 'fail' : 'pass', sentence: out ? `Fails: ${out} positions out of tolerance.` : 'Passes: every position is within its tolerance.',
     },
-  } as Report;
+  };
 }
 
 /** The measurement core's report of a synthetic photo of `pattern`. */
