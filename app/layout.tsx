@@ -10,6 +10,11 @@ import { THEME_SCRIPT } from '@/components/ThemeToggle';
 export const metadata: Metadata = {
   title: { default: 'Gridproof', template: '%s · Gridproof' },
   description: 'Check a CNC fixture bed’s hole lattice from one photo.',
+  // files in public/, written by `npm run -s icons`; the manifest is app/manifest.ts
+  icons: {
+    icon: [{ url: '/favicon.ico', sizes: '16x16 32x32 48x48' }, { url: '/icon.svg', type: 'image/svg+xml' }],
+    apple: [{ url: '/apple-touch-icon.png', sizes: '180x180' }],
+  },
 };
 
 export const viewport: Viewport = {
