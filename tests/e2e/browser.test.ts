@@ -49,6 +49,8 @@ describe('in the browser', () => {
     await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toContain('Quayside Frames');
     expect(await page.getByText('No beds yet').isVisible()).toBe(true);
 
+    // on a phone, sign-out sits in the header's menu
+    await page.getByLabel('Menu', { exact: true }).click();
     await page.getByRole('button', { name: 'Sign out' }).click();
     await page.waitForURL(/\/sign-in\?signed-out=1$/);
     expect(await page.getByText('You are signed out.').isVisible()).toBe(true);
