@@ -11,10 +11,23 @@ import { insertUser } from '@/db/queries/users';
 import { countWorkshops, insertWorkshop } from '@/db/queries/workshops';
 import { hashPassword } from '@/lib/auth/password';
 import type { Actor } from './actor';
+import { createAccessory } from './accessories';
 import { createBed } from './beds';
 import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from './demo-accounts';
 
 export { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME };
+
+/**
+ * Two accessories of the demo's jig plate (M6 inserts on 50 mm, 600 × 400 mm), built from our presets: a
+ * sign-blank fence on two bolts four steps apart, which drops in wherever its two inserts are true, and a
+ * carrier board bolted through twelve inserts (4 × 3), which binds on the fresh install wherever it covers one
+ * of the four inserts drilled 1.2 mm off (far beyond an M6 bolt's 0.3 mm radial clearance in a medium-fit hole)
+ * and fits once they are redrilled. The placement map shows where each one goes.
+ */
+export const DEMO_ACCESSORIES = [
+  { name: 'Sign-blank fence (M6, 200 mm)', preset: 'fence-two-bolt', params: { spanSteps: 4, fastener: 'M6' } },
+  { name: 'Sign-blank carrier board (M6, 12 bolts)', preset: 'sacrificial-board', params: { widthMm: 200, heightMm: 150, pitchXMm: 50, pitchYMm: 50, fastener: 'M6' } },
+] as const;
 
 /** Seeds the demo workshop if the database has no workshop at all; returns whether it did. */
 export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: string; owner?: Actor }> {
@@ -42,5 +55,6 @@ export async function seedDemo(db: Db): Promise<{ seeded: boolean; workshopId?: 
     notes: 'Dog-hole top beside the router, used for glue-ups and fixtures.',
     preset: { preset: 'g96-d20', bedWidthMm: 1200, bedHeightMm: 800 },
   });
+  for (const a of DEMO_ACCESSORIES) await createAccessory(db, owner, { name: a.name, preset: a.preset, params: { ...a.params } });
   return { seeded: true, workshopId, owner };
 }
