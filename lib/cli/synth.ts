@@ -50,7 +50,7 @@ async function main(): Promise<void> {
     } else fail(`unknown option ${a}`);
   }
   if (!patternPath || !out) fail('usage: synth --pattern P.json --seed N --out DIR [options]');
-  if (opts.tiltDeg < 0 || opts.tiltDeg > 15) fail('--tilt is 0–15 degrees');
+  if (opts.tiltDeg < 0 || opts.tiltDeg > 25) fail('--tilt is 0–25 degrees');
   if (opts.jpegQuality < 1 || opts.jpegQuality > 100) fail('--jpeg is 1–100');
   const parsed = PatternSchema.safeParse(JSON.parse(await readFile(patternPath, 'utf8')));
   if (!parsed.success) fail(`the pattern is not valid: ${parsed.error.issues[0]?.message ?? ''}`);

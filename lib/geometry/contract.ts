@@ -293,6 +293,38 @@ export const ReportPanelSchema = z.object({
 });
 export type ReportPanel = z.infer<typeof ReportPanelSchema>;
 
+/** Codes of the photo-quality stage (lib/vision/quality.ts): what in the photo limits or prevents the measurement. */
+export const PHOTO_ISSUE_CODES = ['blurred', 'motion-blur', 'overexposed', 'underexposed', 'target-small', 'holes-small', 'tilted', 'target-cut', 'bed-cut'] as const;
+export type PhotoIssueCode = (typeof PHOTO_ISSUE_CODES)[number];
+
+/**
+ * The photo-quality verdict: each issue with what was measured and what to do, and the accuracy the photo can
+ * reach (1σ): `positionMm` the RMS distance of a measured position from the truth with the global scale set
+ * apart (hole to hole), `scalePpm` the global scale; null when the photo cannot be measured at all.
+ */
+export const PhotoQualitySchema = z.object({
+  issues: z.array(z.object({ code: z.enum(PHOTO_ISSUE_CODES), message: z.string(), advice: z.string() })),
+  predicted: z.object({ positionMm: finite, scalePpm: finite }).nullable(),
+  /** What was measured, image px unless named otherwise (absent when the target was not found). */
+  measured: z.object({
+    widthPx: z.number().int(),
+    heightPx: z.number().int(),
+    edgeSpreadPx: finite.nullable(),
+    defocusSigmaPx: finite.nullable(),
+    motion: z.object({ lengthPx: finite, directionDeg: finite }).nullable(),
+    targetSidePx: finite.nullable(),
+    holeDiameterPx: finite.nullable(),
+    tiltDeg: finite.nullable(),
+    /** Shares (0–1) of clipped samples: the target's white paper, its white right at the edge, its black, the bed around the holes. */
+    clipped: z.object({ targetWhite: finite, targetEdge: finite, targetBlack: finite, holesSurround: finite }).nullable(),
+    /** Level of the target's white paper, 0–255 as encoded. */
+    whiteLevel: finite.nullable(),
+    holesSampled: z.number().int(),
+  }),
+  timeMs: finite,
+});
+export type PhotoQuality = z.infer<typeof PhotoQualitySchema>;
+
 const Uncertain = finite.nullable();
 
 export const ReportSchema = z.object({
@@ -370,5 +402,7 @@ export const ReportSchema = z.object({
     /** Positions under the reference sheet. */
     hidden: z.number().int(),
   }).optional(),
+  /** The photo's quality as the first stage measured it (photo analyses only). */
+  photo: z.object({ quality: PhotoQualitySchema }).optional(),
 });
 export type Report = z.infer<typeof ReportSchema>;

@@ -2,11 +2,13 @@
  * Photo mode of `npm run analyze`:
  *   analyze --image PHOTO --pattern P.json --reference-mm 150 [--corners x1,y1,…,x4,y4] [--detections-out D.json]
  *           [--distances DISTANCES.json]
- * Prints the report JSON; D.json receives the detections in the points format (re-fit them with --points).
- * Unreadable photos, no square (and no corners), too few holes: exit 2 with one line.
+ * Prints the report JSON (with the photo-quality verdict as `photo.quality`); D.json receives the detections in the
+ * points format (re-fit them with --points). Unreadable photos, no square (and no corners), too few holes: exit 2
+ * with the reason, then each photo-quality issue's finding and advice, one line each.
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { GeometryInputError, PatternSchema } from '@/lib/geometry';
+import type { PhotoQuality } from '@/lib/geometry/contract';
 import { analyzeImage, VisionInputError } from './index';
 import { readDistancesArg } from '../cli/distances-arg';
 
@@ -45,14 +47,18 @@ export async function runImageMode(args: string[], fail: (message: string) => ne
   }
   const parsed = PatternSchema.safeParse(patternJson);
   if (!parsed.success) fail(`pattern.${parsed.error.issues[0]?.path.join('.') ?? ''}: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
+  let quality: PhotoQuality | undefined;
   try {
     const distances = readDistancesArg(args, fail);
-    const { report, points } = await analyzeImage(bytes, parsed.data, { referenceMm, ...(corners ? { corners } : {}), ...(distances ? { analyze: { distances } } : {}) });
+    const { report, points } = await analyzeImage(bytes, parsed.data, { referenceMm, ...(corners ? { corners } : {}), ...(distances ? { analyze: { distances } } : {}), onQuality: (q) => void (quality = q) });
     const out = val('--detections-out');
     if (out) writeFileSync(out, `${JSON.stringify(points, null, 1)}\n`);
     process.stdout.write(`${JSON.stringify(report)}\n`);
   } catch (e) {
-    if (e instanceof VisionInputError || e instanceof GeometryInputError) fail(e.message);
+    if (e instanceof VisionInputError || e instanceof GeometryInputError) {
+      const advice = (quality?.issues ?? []).map((i) => `${i.message} ${i.advice}`);
+      fail([e.message, ...advice].join('\n'));
+    }
     throw e;
   }
 }

@@ -4,11 +4,12 @@
  * (image px, origin top-left, +y down). `analyzeImage` adds the fit and returns the Report.
  */
 import type { AnalyzeOptions } from '@/lib/geometry';
-import type { Pattern, Points, Report } from '@/lib/geometry/contract';
+import type { Pattern, PhotoQuality, Points, Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
 import { homographyFrom4, type H3 } from './homography';
 import { findHoles, type CentreMethod, type FamilySize, type HoleDetection } from './holes';
 import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
+import { measureQuality } from './quality';
 import { findSquare, type Corners } from './square';
 import { targetCornersMm } from './target';
 
@@ -31,6 +32,11 @@ export interface DetectOptions {
   onStage?: (stage: VisionStage) => void;
   /** Centre refinement (default 'centroid', the better one measured by the bench). */
   method?: CentreMethod;
+  /**
+   * Called with the photo-quality verdict as soon as it is known (after the decode and the square, before the
+   * holes), also when no square is found; awaited, so a caller can store it before the rest runs.
+   */
+  onQuality?: (quality: PhotoQuality) => void | Promise<void>;
 }
 
 export interface DetectMeta {
@@ -48,6 +54,8 @@ export interface DetectMeta {
   /** Grey channel mix (R, G, B weights). */
   mix: [number, number, number];
   detections: (HoleDetection & { family: string })[];
+  /** The photo-quality stage's verdict (lib/vision/quality.ts). */
+  quality: PhotoQuality;
   timingsMs: Record<string, number>;
 }
 
@@ -81,6 +89,8 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   } else {
     const sq = await findSquare(grey, w, h, small, factor);
     if (!sq) {
+      const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: null, referenceMm: opts.referenceMm, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
+      await opts.onQuality?.(quality);
       throw new VisionInputError('no-square', 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
     }
     corners = sq.corners;
@@ -94,6 +104,9 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     throw new VisionInputError('no-square', 'The four corners given do not form a quadrilateral. Mark them in order around the square.');
   }
   lap('square');
+  const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners, referenceMm: S, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
+  await opts.onQuality?.(quality);
+  lap('quality');
 
   opts.onStage?.('finding holes');
   // the sheet itself hides what lies under it; only the printed square is kept out of the search
@@ -111,8 +124,30 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   };
   return {
     points,
-    meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, timingsMs: t },
+    meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, quality, timingsMs: t },
   };
+}
+
+const QUALITY_ONLY = Symbol('quality only');
+
+/**
+ * The photo-quality stage alone (decode, square, quality; no holes): what the photo can judge and what to change.
+ * Throws VisionInputError only for a file that is no photo at all.
+ */
+export async function checkPhotoQuality(bytes: Buffer, pattern: Pattern, opts: Omit<DetectOptions, 'onQuality'>): Promise<PhotoQuality> {
+  let quality: PhotoQuality | undefined;
+  try {
+    await detectFromImage(bytes, pattern, {
+      ...opts,
+      onQuality: (q) => {
+        quality = q;
+        throw QUALITY_ONLY;
+      },
+    });
+  } catch (e) {
+    if (!quality) throw e;
+  }
+  return quality!;
 }
 
 /**
@@ -129,7 +164,7 @@ export async function analyzeImage(
   const t = performance.now();
   // loaded on first use: detection alone does not need the measurement core
   const { analyzePoints } = await import('@/lib/geometry');
-  const report = analyzePoints(points, pattern, opts.analyze ?? {});
+  const report: Report = { ...analyzePoints(points, pattern, opts.analyze ?? {}), photo: { quality: meta.quality } };
   meta.timingsMs.fit = Math.round((performance.now() - t) * 10) / 10;
   return { report, points, meta };
 }

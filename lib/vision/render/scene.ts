@@ -21,7 +21,7 @@ export interface SceneOptions {
   height: number;
   seed: number;
   material: 'mdf' | 'plywood';
-  /** Camera tilt away from straight down, degrees (0–15), and turn about the optical axis, degrees. */
+  /** Camera tilt away from straight down, degrees (0–25), and turn about the optical axis, degrees. */
   tiltDeg: number;
   turnDeg: number;
   /** 35 mm-equivalent focal length, mm. */

@@ -1,0 +1,601 @@
+/**
+ * The photo-quality stage: before any hole is measured, what this photo can judge and what to change.
+ *
+ * Measured on the reference target (its 8 straight edges: outer and inner sides of the frame) and on a sample of
+ * hole candidates (dark blobs of a family's size on the reduced image):
+ * - blur as the variance of the line spread along each edge normal n, in linear light: nᵀΣn with
+ *   Σ = σ²·I + (L²/12)·d dᵀ (defocus σ, a straight motion of length L along d; a box of length L has variance L²/12);
+ *   the holes' darkness second moments minus a disc's (r²/4 through the target's perspective) give the anisotropic
+ *   part of Σ, hence L and d; the target's edges then give σ;
+ * - exposure: shares of clipped samples on the target's white, right at its black edge, on its black, on the bed
+ *   around the holes; the white's level;
+ * - the target's side and the holes' diameter in px, the camera's tilt from the target's homography (EXIF focal
+ *   length or a 27 mm-equivalent phone lens), whether the bed at the target's scale fits in the frame.
+ *
+ * Predicted accuracy from a stated model, not from a table of scenes:
+ * - an edge blurred by a Gaussian line spread of σ_b with contrast ΔI and noise σ_n (per px) is located with
+ *   variance v = 2√π·σ_b·σ_n²/ΔI² per unit length of edge (the Cramér–Rao bound of a blurred step; e.g. Kay,
+ *   Fundamentals of Statistical Signal Processing I, ch. 3, applied to the step's known shape);
+ * - a circle's centre from its rim of perimeter 2πr: per-axis variance 2v/(2πr); a position's 2-D RMS error is √2 times
+ *   the per-axis σ, in mm through the target's scale;
+ * - the target's corner from half-side lines of length l = 0.44·side, extrapolated by 0.64·l: variance 5.9·v/l per
+ *   axis; the scale of four corners at side S: σ/(√2·S) (least squares of a similarity on four points).
+ * Frames: image px (origin top-left, +y down); the target frame as in target.ts.
+ */
+import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
+import { getCv, matFromGrey, type CvMat } from './cv';
+import { applyH, homographyFrom4, invertH, localScale, type H3 } from './homography';
+import { sampleGrey, type Corners } from './square';
+import { FRAME_FRACTION, targetCornersMm } from './target';
+
+/** Default 35 mm-equivalent focal length of a phone's main camera when EXIF does not say (common practice, 24–28 mm). */
+export const ASSUMED_FOCAL_35MM = 27;
+
+/**
+ * Limits beyond which the photo is called out. Each is where the method measurably degrades, not a score:
+ * - blur: a defocus σ above 1.5 px (sharp phone photos measure 0.6–1.2 px including the pixel itself);
+ * - motion: a straight smear longer than 6 px;
+ * - over-exposure: the white clipped right at the black edge (at one line spread from it) on half the edge samples,
+ *   which moves the target's edges (a clipped blur is lopsided), or a quarter of the bed around the holes clipped;
+ * - under-exposure: the white paper below 60 of 255;
+ * - target under 200 px a side, holes under 10 px across, a tilt over 20° (the far side then shrinks by a
+ *   third against the near side on a phone lens), the target or the bed beyond the frame.
+ */
+export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, edgeClipShare: 0.5, holesClipShare: 0.25, whiteLevel: 60, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
+
+const TO_LINEAR = new Float64Array(1025).map((_, i) => {
+  const c = i / 1024;
+  return c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4;
+});
+/** sRGB-encoded grey (0–255) → linear light (0–1). */
+function lin(v: number): number {
+  const x = (v < 0 ? 0 : v > 255 ? 255 : v) * (1024 / 255);
+  const i = Math.min(1023, Math.floor(x));
+  return TO_LINEAR[i]! + (TO_LINEAR[i + 1]! - TO_LINEAR[i]!) * (x - i);
+}
+
+function median(a: number[]): number {
+  if (!a.length) return NaN;
+  const s = [...a].sort((x, y) => x - y);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
+}
+/** Robust standard deviation (1.4826 × median absolute deviation). */
+function robustSd(a: number[]): number {
+  const m = median(a);
+  return 1.4826 * median(a.map((v) => Math.abs(v - m)));
+}
+
+export interface QualityInput {
+  grey: Float32Array;
+  width: number;
+  height: number;
+  small: { data: Uint8Array; width: number; height: number };
+  factor: number;
+  /** The target's corners (image px, order of target.ts), or null when none was found. */
+  corners: Corners | null;
+  referenceMm: number;
+  pattern: Pattern;
+  focalPx?: number;
+}
+
+interface EdgeStats {
+  /** Unit normal in the image, pointing from black to white. */
+  n: [number, number];
+  /** Line-spread variance along n, px². */
+  varPx2: number;
+  lengthPx: number;
+  /** Scatter of single edge points about the side's smooth line, px. */
+  edgeSdPx: number;
+  loLin: number;
+  hiLin: number;
+  whiteClipped: number;
+  edgeClipped: number;
+  blackClipped: number;
+  outer: boolean;
+}
+
+const CLIP_HI = 250;
+const CLIP_LO = 3;
+
+/** Profiles across the 8 edges of the frame: spread, levels, noise and clipping per edge. */
+function targetEdges(q: QualityInput, corners: Corners): EdgeStats[] {
+  const { grey, width: w, height: h } = q;
+  const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], corners);
+  const F = FRAME_FRACTION;
+  const out: EdgeStats[] = [];
+  const step = 0.25;
+  for (const outer of [true, false]) {
+    for (let s = 0; s < 4; s++) {
+      // side s of the unit square; its outward normal in the unit frame
+      const a = [[0, 0], [1, 0], [1, 1], [0, 1]][s]!;
+      const b = [[1, 0], [1, 1], [0, 1], [0, 0]][s]!;
+      const nt = [[0, -1], [1, 0], [0, 1], [-1, 0]][s]!;
+      const inset = outer ? 0 : F;
+      // black → white direction in the unit frame: outward for the outer edge, inward for the inner one
+      const dir = outer ? 1 : -1;
+      const K = 48;
+      const samples: { d0: number; prof: Float64Array; enc: Float64Array; f: number; n: [number, number] }[] = [];
+      const lo: number[] = [];
+      const hi: number[] = [];
+      let R = 0;
+      let lengthPx = 0;
+      for (let k = 0; k < K; k++) {
+        const f = 0.15 + (0.7 * k) / (K - 1);
+        const tx = a[0]! + (b[0]! - a[0]!) * f - nt[0]! * inset;
+        const ty = a[1]! + (b[1]! - a[1]!) * f - nt[1]! * inset;
+        const P = applyH(U, tx, ty);
+        const Pn = applyH(U, tx + dir * nt[0]! * 0.01, ty + dir * nt[1]! * 0.01);
+        const Pf = applyH(U, tx - dir * nt[0]! * F, ty - dir * nt[1]! * F);
+        const nl = Math.hypot(Pn[0] - P[0], Pn[1] - P[1]);
+        if (!(nl > 0)) continue;
+        const n: [number, number] = [(Pn[0] - P[0]) / nl, (Pn[1] - P[1]) / nl];
+        const strokePx = Math.hypot(Pf[0] - P[0], Pf[1] - P[1]);
+        if (k === 0) {
+          R = Math.max(3, Math.min(16, 0.45 * strokePx));
+          const A = applyH(U, a[0]!, a[1]!);
+          const B = applyH(U, b[0]!, b[1]!);
+          lengthPx = Math.hypot(B[0] - A[0], B[1] - A[1]);
+        }
+        const m = Math.floor((2 * R) / step) + 1;
+        const prof = new Float64Array(m);
+        const enc = new Float64Array(m);
+        let off = false;
+        for (let j = 0; j < m; j++) {
+          const d = -R + j * step;
+          const x = P[0] + n[0] * d;
+          const y = P[1] + n[1] * d;
+          if (x < 0 || y < 0 || x > w - 1 || y > h - 1) off = true;
+          const e = sampleGrey(grey, w, h, x, y);
+          enc[j] = e;
+          prof[j] = lin(e);
+        }
+        if (off) continue;
+        const e2 = Math.round(2 / step);
+        let l0 = 0;
+        let h0 = 0;
+        for (let j = 0; j < e2; j++) {
+          l0 += prof[j]!;
+          h0 += prof[m - 1 - j]!;
+        }
+        l0 /= e2;
+        h0 /= e2;
+        if (h0 - l0 < 0.02) continue;
+        // edge by area: the dark length from the window's start is the integral of the normalised darkness
+        let dark = 0;
+        for (let j = 0; j < m - 1; j++) dark += ((h0 - prof[j]!) / (h0 - l0) + (h0 - prof[j + 1]!) / (h0 - l0)) * 0.5 * step;
+        samples.push({ d0: -R + dark, prof, enc, f, n });
+        lo.push(l0);
+        hi.push(h0);
+      }
+      if (samples.length < 12) continue;
+      const loM = median(lo);
+      const hiM = median(hi);
+      // the edge spread function, averaged over the side with each profile centred on its own edge
+      const nb = Math.floor((2 * R) / step) + 1;
+      const sum = new Float64Array(nb);
+      const cnt = new Float64Array(nb);
+      for (const smp of samples) {
+        for (let j = 0; j < smp.prof.length; j++) {
+          const d = -R + j * step - smp.d0;
+          const bi = Math.round((d + R) / step);
+          if (bi < 0 || bi >= nb) continue;
+          sum[bi]! += (hiM - smp.prof[j]!) / (hiM - loM);
+          cnt[bi]!++;
+        }
+      }
+      // line spread = −d(darkness)/dd; its variance about the edge, within the part of the window every profile covers
+      const lim = R - Math.max(...samples.map((x) => Math.abs(x.d0))) - 0.5;
+      let g0 = 0;
+      let g2 = 0;
+      for (let bi = 1; bi < nb; bi++) {
+        if (!cnt[bi] || !cnt[bi - 1]) continue;
+        const d = -R + (bi - 0.5) * step;
+        if (Math.abs(d) > lim) continue;
+        const g = sum[bi - 1]! / cnt[bi - 1]! - sum[bi]! / cnt[bi]!;
+        g0 += g;
+        g2 += g * d * d;
+      }
+      const varPx2 = g0 > 0.5 ? Math.max(0, g2 / g0) : NaN;
+      const sd = Math.sqrt(Number.isFinite(varPx2) ? varPx2 : 1);
+      let white = 0;
+      let whiteN = 0;
+      let edge = 0;
+      let black = 0;
+      let blackN = 0;
+      for (const smp of samples) {
+        const m = smp.enc.length;
+        for (let j = Math.round(2 / step); j-- > 0; ) {
+          white += smp.enc[m - 1 - j]! >= CLIP_HI ? 1 : 0;
+          black += smp.enc[j]! <= CLIP_LO ? 1 : 0;
+          whiteN++;
+          blackN++;
+        }
+        const at = Math.round((smp.d0 + Math.max(1, sd) + R) / step);
+        if (at >= 0 && at < m) edge += smp.enc[at]! >= CLIP_HI ? 1 : 0;
+      }
+      // scatter of the edge points about a smooth curve along the side (quadratic in f: a lens bends the side)
+      const fsA = samples.map((x) => x.f);
+      const ds = samples.map((x) => x.d0);
+      const edgeSdPx = robustSd(quadraticResiduals(fsA, ds));
+      out.push({ n: samples[0]!.n, varPx2, lengthPx, edgeSdPx, loLin: loM, hiLin: hiM, whiteClipped: white / whiteN, edgeClipped: edge / samples.length, blackClipped: black / blackN, outer });
+    }
+  }
+  return out;
+}
+
+/** Residuals of y from its least-squares quadratic in x. */
+function quadraticResiduals(x: number[], y: number[]): number[] {
+  // normal equations of y = a + b x + c x², solved by Cramer's rule on the 3 × 3 system
+  const S = [0, 0, 0, 0, 0];
+  const T = [0, 0, 0];
+  for (let i = 0; i < x.length; i++) {
+    let p = 1;
+    for (let k = 0; k < 5; k++, p *= x[i]!) S[k]! += p;
+    T[0]! += y[i]!;
+    T[1]! += y[i]! * x[i]!;
+    T[2]! += y[i]! * x[i]! * x[i]!;
+  }
+  const M = [[S[0]!, S[1]!, S[2]!], [S[1]!, S[2]!, S[3]!], [S[2]!, S[3]!, S[4]!]];
+  const det3 = (m: number[][]) => m[0]![0]! * (m[1]![1]! * m[2]![2]! - m[1]![2]! * m[2]![1]!) - m[0]![1]! * (m[1]![0]! * m[2]![2]! - m[1]![2]! * m[2]![0]!) + m[0]![2]! * (m[1]![0]! * m[2]![1]! - m[1]![1]! * m[2]![0]!);
+  const D = det3(M);
+  const coef = [0, 1, 2].map((j) => det3(M.map((row, i) => row.map((v, k) => (k === j ? T[i]! : v)))) / D);
+  return x.map((xi, i) => y[i]! - (coef[0]! + coef[1]! * xi + coef[2]! * xi * xi));
+}
+
+interface HoleStats {
+  /** Anisotropic part of the point spread's covariance, px²: (Σxx − Σyy)/2 and Σxy. */
+  dev: [number, number];
+  contrast: number;
+  noise: number;
+  surroundClipped: number;
+  diameterPx: number;
+}
+
+/** Dark blobs of a family's size on the reduced image, away from the target sheet and the border. */
+async function holeCandidates(q: QualityInput, H: H3): Promise<{ cands: { x: number; y: number; dMm: number }[]; atBorder: number }> {
+  const { small, factor } = q;
+  const Hi = invertH(H);
+  const S = q.referenceMm;
+  const k = q.pattern.units === 'in' ? 25.4 : 1;
+  const fams = q.pattern.families.map((f) => f.holeDiameter * k);
+  const hist = new Uint32Array(256);
+  for (let i = 0; i < small.data.length; i += 5) hist[small.data[i]!]!++;
+  let acc = 0;
+  let med = 255;
+  const half = hist.reduce((a, b) => a + b, 0) / 2;
+  for (let v = 0; v < 256; v++)
+    if ((acc += hist[v]!) >= half) {
+      med = v;
+      break;
+    }
+  const thr = 0.55 * med;
+  const bin = new Uint8Array(small.data.length);
+  for (let i = 0; i < bin.length; i++) bin[i] = small.data[i]! < thr ? 255 : 0;
+  const { cv } = await getCv();
+  const src = matFromGrey(cv, bin, small.width, small.height);
+  const labels = new cv.Mat() as CvMat;
+  const stats = new cv.Mat() as CvMat;
+  const cents = new cv.Mat() as CvMat & { data64F: Float64Array };
+  const cands: { x: number; y: number; dMm: number; area: number }[] = [];
+  let atBorder = 0;
+  try {
+    const n = cv.connectedComponentsWithStats(src, labels, stats, cents, 8, cv.CV_32S) as number;
+    const st = stats.data32S;
+    const ce = cents.data64F;
+    for (let i = 1; i < n; i++) {
+      const [l, t, bw, bh, area] = [st[5 * i]!, st[5 * i + 1]!, st[5 * i + 2]!, st[5 * i + 3]!, st[5 * i + 4]!];
+      if (area < 6) continue;
+      const x = ce[2 * i]! * factor + (factor - 1) / 2;
+      const y = ce[2 * i + 1]! * factor + (factor - 1) / 2;
+      const p = applyH(Hi, x, y);
+      // the sheet around the target (up to A4 paper) is no place for holes
+      if (p[0] > -0.6 * S && p[0] < 1.6 * S && p[1] > -0.6 * S && p[1] < 1.6 * S) continue;
+      const s = localScale(H, p[0], p[1]) / factor; // reduced px per mm
+      if (!(s > 0)) continue;
+      const aspect = Math.max(bw, bh) / Math.max(1, Math.min(bw, bh));
+      let best = -1;
+      let err = Infinity;
+      for (const d of fams) {
+        const e = Math.abs(Math.log(area / (Math.PI * ((d * s) / 2) ** 2)));
+        if (e < err) {
+          err = e;
+          best = d;
+        }
+      }
+      const border = l <= 0 || t <= 0 || l + bw >= small.width || t + bh >= small.height;
+      if (border) {
+        if (aspect < 3 && err < Math.log(3)) atBorder++;
+        continue;
+      }
+      if (aspect > 3.5 || err > Math.log(3)) continue;
+      cands.push({ x, y, dMm: best, area });
+    }
+  } finally {
+    src.delete();
+    labels.delete();
+    stats.delete();
+    cents.delete();
+  }
+  // a sample spread over the photo, the largest family first (its rims are longest)
+  cands.sort((a, b) => b.dMm - a.dMm || a.y - b.y || a.x - b.x);
+  const big = cands.filter((c) => c.dMm === cands[0]?.dMm);
+  const pool = big.length >= 12 ? big : cands;
+  const stride = Math.max(1, Math.floor(pool.length / 48));
+  return { cands: pool.filter((_, i) => i % stride === 0).slice(0, 48), atBorder };
+}
+
+/** Darkness moments of one hole at full resolution, less a disc's seen through the target's perspective. */
+function holeMoments(q: QualityInput, H: H3, Hi: H3, c: { x: number; y: number; dMm: number }): HoleStats | null {
+  const { grey, width: w, height: h } = q;
+  const p = applyH(Hi, c.x, c.y);
+  // Jacobian of mm → px at the hole
+  const e = 0.5;
+  const px = applyH(H, p[0] + e, p[1]);
+  const py = applyH(H, p[0], p[1] + e);
+  const p0 = applyH(H, p[0], p[1]);
+  const J = [(px[0] - p0[0]) / e, (py[0] - p0[0]) / e, (px[1] - p0[1]) / e, (py[1] - p0[1]) / e];
+  const rMm = c.dMm / 2;
+  const rPx = rMm * Math.sqrt(Math.abs(J[0]! * J[3]! - J[1]! * J[2]!));
+  const R0 = rPx + 14;
+  if (c.x - R0 - 4 < 0 || c.y - R0 - 4 < 0 || c.x + R0 + 4 > w - 1 || c.y + R0 + 4 > h - 1) return null;
+  let cx = c.x;
+  let cy = c.y;
+  let surround = 0;
+  const ring: number[] = [];
+  const ringEnc: number[] = [];
+  const level = () => {
+    ring.length = 0;
+    ringEnc.length = 0;
+    for (const rr of [R + 1, R + 2.5, R + 4])
+      for (let k = 0; k < 48; k++) {
+        const v = sampleGrey(grey, w, h, cx + rr * Math.cos((k * Math.PI) / 24), cy + rr * Math.sin((k * Math.PI) / 24));
+        ringEnc.push(v);
+        ring.push(lin(v));
+      }
+    surround = median(ring);
+  };
+  let m0 = 0;
+  let sxx = 0;
+  let syy = 0;
+  let sxy = 0;
+  let R = rPx + 14;
+  for (let it = 0; it < 4; it++) {
+    if (it === 2) {
+      // the first passes see the whole spread; then the window closes to 3 spreads past the rim (less noise)
+      const spread = Math.max(0, (sxx + syy) / 2 + Math.hypot((sxx - syy) / 2, sxy) - (rMm * rMm) / 4 * ((J[0]! ** 2 + J[1]! ** 2 + J[2]! ** 2 + J[3]! ** 2) / 2));
+      R = Math.min(R, rPx + Math.max(3, 3 * Math.sqrt(spread)));
+    }
+    level();
+    m0 = 0;
+    let sx = 0;
+    let sy = 0;
+    const x0 = Math.floor(cx - R);
+    const x1 = Math.ceil(cx + R);
+    const y0 = Math.floor(cy - R);
+    const y1 = Math.ceil(cy + R);
+    const pts: [number, number, number][] = [];
+    for (let y = y0; y <= y1; y++)
+      for (let x = x0; x <= x1; x++) {
+        const dx = x - cx;
+        const dy = y - cy;
+        if (dx * dx + dy * dy > R * R) continue;
+        const D = surround - lin(grey[y * w + x]!);
+        if (D <= 0) continue;
+        m0 += D;
+        sx += D * dx;
+        sy += D * dy;
+        pts.push([dx, dy, D]);
+      }
+    if (m0 <= 0) return null;
+    const mx = sx / m0;
+    const my = sy / m0;
+    sxx = 0;
+    syy = 0;
+    sxy = 0;
+    for (const [dx, dy, D] of pts) {
+      sxx += D * (dx - mx) ** 2;
+      syy += D * (dy - my) ** 2;
+      sxy += D * (dx - mx) * (dy - my);
+    }
+    sxx /= m0;
+    syy /= m0;
+    sxy /= m0;
+    cx += mx;
+    cy += my;
+  }
+  // a uniform disc of radius r has second moments r²/4 per axis; through J it is J (r²/4) Jᵀ
+  const r2 = (rMm * rMm) / 4;
+  const dxx = r2 * (J[0]! ** 2 + J[1]! ** 2);
+  const dyy = r2 * (J[2]! ** 2 + J[3]! ** 2);
+  const dxy = r2 * (J[0]! * J[2]! + J[1]! * J[3]!);
+  const ex = sxx - dxx;
+  const ey = syy - dyy;
+  const exy = sxy - dxy;
+  // noise that moves a centre: what departs from a round profile in the rim band (sensor, texture, JPEG, pixel
+  // quantisation of the edge), as residuals from the mean profile at the same distance on the bed plane
+  const s0 = Math.sqrt(Math.abs(J[0]! * J[3]! - J[1]! * J[2]!));
+  const c1 = applyH(Hi, cx, cy);
+  const bins = new Map<number, number[]>();
+  const band = 1.5 * Math.sqrt(Math.max(0, (sxx + syy) / 2 - (dxx + dyy) / 2)) + 1;
+  for (let y = Math.floor(cy - rPx - band - 1); y <= Math.ceil(cy + rPx + band + 1); y++)
+    for (let x = Math.floor(cx - rPx - band - 1); x <= Math.ceil(cx + rPx + band + 1); x++) {
+      const b = applyH(Hi, x, y);
+      const rho = Math.hypot(b[0] - c1[0], b[1] - c1[1]) * s0;
+      if (Math.abs(rho - rPx) > band) continue;
+      const key = Math.round(rho * 4);
+      const l = bins.get(key);
+      if (l) l.push(grey[y * w + x]!);
+      else bins.set(key, [grey[y * w + x]!]);
+    }
+  const resid: number[] = [];
+  for (const l of bins.values()) {
+    if (l.length < 4) continue;
+    const m = l.reduce((a, v) => a + v, 0) / l.length;
+    const k = Math.sqrt(l.length / (l.length - 1));
+    for (const v of l) resid.push((v - m) * k);
+  }
+  const inner: number[] = [];
+  for (let k = 0; k < 16; k++) inner.push(sampleGrey(grey, w, h, cx + 0.3 * rPx * Math.cos((k * Math.PI) / 8), cy + 0.3 * rPx * Math.sin((k * Math.PI) / 8)));
+  inner.push(sampleGrey(grey, w, h, cx, cy));
+  const contrast = median(ringEnc) - median(inner);
+  return { dev: [(ex - ey) / 2, exy], contrast, noise: resid.length > 20 ? Math.sqrt(resid.reduce((a, v) => a + v * v, 0) / resid.length) : robustSd(ringEnc), surroundClipped: ringEnc.filter((v) => v >= CLIP_HI).length / ringEnc.length, diameterPx: 2 * rPx };
+}
+
+function tiltFrom(H: H3, w: number, h: number, f: number): number {
+  const kc = (j: number) => [(H[j]! - (w / 2) * H[6 + j]!) / f, (H[3 + j]! - (h / 2) * H[6 + j]!) / f, H[6 + j]!];
+  const r1 = kc(0);
+  const r2 = kc(1);
+  const n1 = Math.hypot(...r1);
+  const n2 = Math.hypot(...r2);
+  const a = r1.map((v) => v / n1);
+  const b = r2.map((v) => v / n2);
+  const r3 = [a[1]! * b[2]! - a[2]! * b[1]!, a[2]! * b[0]! - a[0]! * b[2]!, a[0]! * b[1]! - a[1]! * b[0]!];
+  return (Math.acos(Math.min(1, Math.abs(r3[2]!) / Math.hypot(r3[0]!, r3[1]!, r3[2]!))) * 180) / Math.PI;
+}
+
+const round = (v: number, k = 1000) => Math.round(v * k) / k;
+
+/** Words for each issue: what was measured and what to do. */
+function issue(code: PhotoIssueCode, message: string): PhotoQuality['issues'][number] {
+  const advice: Record<PhotoIssueCode, string> = {
+    blurred: 'Tap the screen on the square to focus before you take the photo, and hold the phone still; in dim light, add light rather than waiting for a slower shot.',
+    'motion-blur': 'Hold the phone still with both hands (or rest it on something) while the photo is taken, and add light so the shot is short.',
+    overexposed: 'Switch off the flash or turn the square away from the lamp, and tap on the white paper to let the phone darken the shot.',
+    underexposed: 'Add light over the bed, or tap on the bed to let the phone brighten the shot; keep the flash off.',
+    'target-small': 'Step closer, or print the square larger, so that it spans more of the photo; the whole bed must still be in the frame.',
+    'holes-small': 'Take the photo closer or in the camera\'s full resolution (not a messenger or screenshot copy); photograph a large bed in two halves if need be.',
+    tilted: 'Hold the phone flat above the middle of the bed, looking straight down.',
+    'target-cut': 'Move the square onto the bed, inside the frame with some bed around it, or step back until it is whole in the photo.',
+    'bed-cut': 'Step back until the whole bed is in the frame.',
+  };
+  return { code, message, advice: advice[code] };
+}
+
+/**
+ * Measures the photo's quality and predicts the accuracy it can reach. Fast: a few hundred profiles on the target
+ * and moments of up to 48 holes; the decode and the square search it needs are the analysis's own first steps.
+ */
+export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
+  const t0 = performance.now();
+  const { width: w, height: h } = q;
+  const measured: PhotoQuality['measured'] = { widthPx: w, heightPx: h, edgeSpreadPx: null, defocusSigmaPx: null, motion: null, targetSidePx: null, holeDiameterPx: null, tiltDeg: null, clipped: null, whiteLevel: null, holesSampled: 0 };
+  const issues: PhotoQuality['issues'] = [];
+  const done = (predicted: PhotoQuality['predicted']): PhotoQuality => ({ issues, predicted, measured, timeMs: round(performance.now() - t0, 10) });
+  if (!q.corners) {
+    issues.push(issue('target-cut', 'No whole reference target was found in the photo: it is cut by the border, hidden, glared or missing.'));
+    return done(null);
+  }
+  const corners = q.corners;
+  const S = q.referenceMm;
+  const H = homographyFrom4(targetCornersMm(S), corners);
+  const Hi = invertH(H);
+  const sides = [0, 1, 2, 3].map((i) => Math.hypot(corners[(i + 1) % 4]![0] - corners[i]![0], corners[(i + 1) % 4]![1] - corners[i]![1]));
+  const sidePx = sides.reduce((a, b) => a + b, 0) / 4;
+  measured.targetSidePx = round(sidePx, 10);
+  const f = q.focalPx ?? (ASSUMED_FOCAL_35MM / Math.hypot(36, 24)) * Math.hypot(w, h);
+  measured.tiltDeg = round(tiltFrom(H, w, h, f), 10);
+
+  // --- the target's edges -----------------------------------------------------------------------------------
+  const edges = targetEdges(q, corners);
+  // --- the holes ----------------------------------------------------------------------------------------------
+  const { cands, atBorder } = await holeCandidates(q, H);
+  const holes = cands.map((c) => holeMoments(q, H, Hi, c)).filter((x): x is HoleStats => x !== null);
+  measured.holesSampled = holes.length;
+
+  // motion: the anisotropic part of the point spread, from the holes (L²/24 = its magnitude)
+  let L = 0;
+  let d: [number, number] = [1, 0];
+  if (holes.length >= 5) {
+    const a = median(holes.map((x) => x.dev[0]));
+    const b = median(holes.map((x) => x.dev[1]));
+    const mag = Math.hypot(a, b);
+    L = Math.sqrt(24 * mag);
+    const th = 0.5 * Math.atan2(b, a);
+    d = [Math.cos(th), Math.sin(th)];
+    measured.motion = { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) };
+  }
+  const good = edges.filter((e) => Number.isFinite(e.varPx2));
+  const k = q.pattern.units === 'in' ? 25.4 : 1;
+  const smallestMm = Math.min(...q.pattern.families.map((fm) => fm.holeDiameter * k));
+  const sCentre = localScale(H, S / 2, S / 2); // px per mm at the target
+  measured.holeDiameterPx = round(smallestMm * sCentre, 10);
+  if (good.length >= 4) {
+    const v = good.map((e) => e.varPx2 - ((L * L) / 12) * (e.n[0] * d[0] + e.n[1] * d[1]) ** 2);
+    const sigma2 = Math.max(0, median(v));
+    measured.defocusSigmaPx = round(Math.sqrt(sigma2), 100);
+    measured.edgeSpreadPx = round(2.563 * Math.sqrt(median(good.map((e) => e.varPx2))), 100);
+    const outer = good.filter((e) => e.outer);
+    const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : 0);
+    measured.clipped = {
+      targetWhite: round(mean(outer.map((e) => e.whiteClipped))),
+      targetEdge: round(mean(outer.map((e) => e.edgeClipped))),
+      targetBlack: round(mean(good.map((e) => e.blackClipped))),
+      holesSurround: round(holes.length ? median(holes.map((x) => x.surroundClipped)) : 0),
+    };
+    const hiLin = median(good.map((e) => e.hiLin));
+    measured.whiteLevel = round(255 * (hiLin <= 0.0031308 ? 12.92 * hiLin : 1.055 * hiLin ** (1 / 2.4) - 0.055), 10);
+  }
+
+  // --- issues -------------------------------------------------------------------------------------------------
+  const m = measured;
+  if (m.defocusSigmaPx !== null && m.defocusSigmaPx > LIMITS.defocusSigmaPx) issues.push(issue('blurred', `The target's edges are spread over ${m.edgeSpreadPx!.toFixed(1)} px (out of focus by σ ${m.defocusSigmaPx.toFixed(1)} px; a sharp photo stays under ${LIMITS.defocusSigmaPx} px).`));
+  if (m.motion && m.motion.lengthPx > LIMITS.motionPx) issues.push(issue('motion-blur', `The photo is smeared by ${m.motion.lengthPx.toFixed(0)} px along ${m.motion.directionDeg.toFixed(0)}° from the photo's horizontal: the camera moved while it was taken.`));
+  if (m.clipped && (m.clipped.targetEdge > LIMITS.edgeClipShare || m.clipped.holesSurround > LIMITS.holesClipShare)) {
+    const parts = [];
+    if (m.clipped.targetEdge > LIMITS.edgeClipShare) parts.push(`the target's white is burnt out right up to its black edge on ${Math.round(100 * m.clipped.targetEdge)} % of the edge (${Math.round(100 * m.clipped.targetWhite)} % of the white clipped), which moves the edges`);
+    if (m.clipped.holesSurround > LIMITS.holesClipShare) parts.push(`${Math.round(100 * m.clipped.holesSurround)} % of the bed around the holes is burnt out`);
+    issues.push(issue('overexposed', `Over-exposed: ${parts.join('; ')}.`));
+  }
+  if (m.whiteLevel !== null && m.whiteLevel < LIMITS.whiteLevel) issues.push(issue('underexposed', `Under-exposed: the target's white paper reads only ${m.whiteLevel.toFixed(0)} of 255.`));
+  if (sidePx < LIMITS.targetSidePx) issues.push(issue('target-small', `The target spans only ${sidePx.toFixed(0)} px a side; at least ${LIMITS.targetSidePx} px are wanted to set the scale.`));
+  if (m.holeDiameterPx! < LIMITS.holeDiameterPx) issues.push(issue('holes-small', `The smallest holes are only ${m.holeDiameterPx!.toFixed(1)} px across; at least ${LIMITS.holeDiameterPx} px are wanted to find their centres.`));
+  if (m.tiltDeg! > LIMITS.tiltDeg) issues.push(issue('tilted', `The camera looked at the bed ${m.tiltDeg!.toFixed(0)}° off straight down; up to ${LIMITS.tiltDeg}° is fine.`));
+  const margin = 0.05 * sidePx;
+  if (corners.some(([x, y]) => x < margin || y < margin || x > w - 1 - margin || y > h - 1 - margin)) issues.push(issue('target-cut', 'The target touches the border of the photo: its edge there cannot be measured.'));
+  const bw = q.pattern.bed.width * k * sCentre;
+  const bh = q.pattern.bed.height * k * sCentre;
+  const fits = (bw <= 1.05 * w && bh <= 1.05 * h) || (bw <= 1.05 * h && bh <= 1.05 * w);
+  if (!fits || atBorder >= 2) issues.push(issue('bed-cut', !fits ? `At the target's scale the bed is ${bw.toFixed(0)} × ${bh.toFixed(0)} px, larger than the ${w} × ${h} px photo: part of it is outside.` : `${atBorder} holes are cut by the border of the photo: the bed runs off it.`));
+
+  // --- prediction -------------------------------------------------------------------------------------------
+  if (!good.length || m.defocusSigmaPx === null) return done(null);
+  const sigma2 = m.defocusSigmaPx ** 2;
+  // Gaussian-equivalent line spread averaged over directions (a box of L: L²/12 along d, 0 across, mean L²/24)
+  const sb = Math.sqrt(sigma2 + (L * L) / 24 + 1e-6);
+  // target: edge location variance per px of edge, in linear light
+  // target: the detector fits a line to max(12, min(200, side/2)) edge points per side, each half side on its own;
+  // single points scatter by edgeSd (measured here the same way); a half line's offset extrapolated to the corner
+  // has variance 5.9 σ²/n (uniform points over l, corner 0.64 l beyond their middle)
+  const outerEdges = good.filter((e) => e.outer);
+  const edgeSd = Math.sqrt(median(outerEdges.map((e) => e.edgeSdPx ** 2)));
+  const nHalf = Math.max(6, Math.min(200, Math.floor(sidePx / 2)) * 0.44);
+  const cornerSd = edgeSd * Math.sqrt(5.9 / nHalf);
+  const scalePpm = (1e6 * cornerSd) / (Math.SQRT2 * sidePx);
+  // holes: per-axis centre variance from the rim; each family at its own size, weighted by its count
+  let positionMm = NaN;
+  if (holes.length) {
+    const dH = median(holes.map((x) => x.contrast));
+    const nH = median(holes.map((x) => x.noise));
+    // the detector's centroid weighs each px by a ramp from 35 % to 75 % of the way from hole to surround: a px in
+    // that band (a ring 1.06 σ_b wide, at least 0.4 px for a pixel-sharp edge) moves the weight by δI / (0.4 ΔI);
+    // over the ring's 2πr·band px at distance r, of a total weight πr²: var = σ²·band / (0.16 π ΔI² r) per axis
+    const bandPx = Math.max(0.4, 1.06 * sb);
+    let num = 0;
+    let cnt = 0;
+    for (const fm of q.pattern.families) {
+      const rPx = (fm.holeDiameter * k * sCentre) / 2;
+      const varAxisPx = (nH * nH * bandPx) / (0.16 * Math.PI * dH * dH * rPx);
+      const nPos = fm.count.x * fm.count.y;
+      num += nPos * (varAxisPx / (sCentre * sCentre));
+      cnt += nPos;
+    }
+    positionMm = Math.sqrt(2 * (num / cnt));
+  }
+  return done(Number.isFinite(positionMm) ? { positionMm: round(positionMm, 1e5), scalePpm: round(scalePpm, 10) } : null);
+}
+
+/** True when the photo cannot be measured at all (no target to give the scale). */
+export function unmeasurable(q: PhotoQuality): boolean {
+  return q.predicted === null && q.issues.some((i) => i.code === 'target-cut');
+}

@@ -1,0 +1,92 @@
+/**
+ * The photo-quality stage on photos made bad on purpose: rendered scenes (lib/vision/render) degraded by a known
+ * amount (lib/vision/render/degrade.ts). The truth of each check is the degradation we applied, not an output of
+ * the stage: a defocus σ, a smear of known length and direction, a gain, a resize, a tilt, a crop through the target.
+ * Sizes are 1.1 MP (the small bed) so that the file runs in well under a minute; the 12 MP timing and the
+ * predicted-versus-measured accuracy over 24 seeded photos are in the bench (tests/bench/quality.bench.ts).
+ */
+import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { PatternSchema, PhotoQualitySchema, type Pattern, type PhotoQuality } from '@/lib/geometry/contract';
+import { checkPhotoQuality } from '@/lib/vision';
+import { synthesize, type SceneOptions, type Truth } from '@/lib/vision/render';
+import { degrade, type Degradation } from '@/lib/vision/render/degrade';
+import { SMALL_BED } from './scenes';
+
+const LARGE_BED: Pattern = PatternSchema.parse(JSON.parse(readFileSync(new URL('../fixtures/vision/bed-large.json', import.meta.url), 'utf8')));
+const base: Partial<SceneOptions> = { width: 1200, height: 900, supersample: 3 };
+
+async function quality(pattern: Pattern, options: Partial<SceneOptions>, deg?: Degradation | ((t: Truth) => Degradation)): Promise<PhotoQuality> {
+  const { jpeg, truth } = await synthesize(pattern, { ...base, ...options });
+  const bytes = deg ? (await degrade(jpeg, typeof deg === 'function' ? deg(truth) : deg)).jpeg : jpeg;
+  const q = await checkPhotoQuality(bytes, pattern, { referenceMm: truth.target.sizeMm });
+  // the stage's output is the report contract's photo.quality
+  return PhotoQualitySchema.parse(q);
+}
+const codes = (q: PhotoQuality) => q.issues.map((i) => i.code).sort();
+
+describe('photo-quality stage', () => {
+  it('gives sharp, well-lit photos from nearly straight above no issue, and a prediction', async () => {
+    for (const seed of [101, 107]) {
+      const q = await quality(SMALL_BED, { seed, tiltDeg: seed === 101 ? 0 : 6, lightGradient: seed === 107 ? 0.4 : 0.15 });
+      expect(codes(q)).toEqual([]);
+      expect(q.predicted?.positionMm).toBeGreaterThan(0);
+      expect(q.predicted?.scalePpm).toBeGreaterThan(0);
+      // tilt from the target's homography against the renderer's camera (0° or 6° from straight down)
+      expect(Math.abs(q.measured.tiltDeg! - (seed === 101 ? 0 : 6))).toBeLessThan(2);
+    }
+  }, 60_000);
+
+  it('calls defocus of σ 2 to 4 px blurred, measures the σ to a quarter, and says nothing else', async () => {
+    for (const [seed, sigma] of [[301, 2], [303, 4]] as const) {
+      const q = await quality(SMALL_BED, { seed, blurPx: sigma });
+      expect(codes(q)).toEqual(['blurred']);
+      // truth: the renderer's Gaussian σ in linear light (render.ts blurPlane); pixel area adds 1/12 px² (common practice)
+      expect(Math.abs(q.measured.defocusSigmaPx! - Math.sqrt(sigma * sigma + 1 / 12)) / sigma).toBeLessThan(0.25);
+      expect(q.issues[0]!.message).toMatch(/spread over \d+(\.\d)? px/);
+    }
+  }, 60_000);
+
+  it('calls a smear of 8 to 20 px motion blur and finds its length and direction', async () => {
+    for (const [seed, length, angle] of [[311, 8, 30], [312, 14, 160], [313, 20, 100]] as const) {
+      const q = await quality(SMALL_BED, { seed }, { motionBlurPx: length, motionAngleDeg: angle });
+      expect(codes(q)).toEqual(['motion-blur']);
+      // truth: the box smear we applied; a box of length L has variance L²/12 (its second moment)
+      expect(Math.abs(q.measured.motion!.lengthPx - length) / length).toBeLessThan(0.3);
+      const dAngle = Math.abs(((q.measured.motion!.directionDeg - angle) % 180 + 270) % 180 - 90);
+      expect(dAngle).toBeLessThan(12);
+    }
+  }, 60_000);
+
+  it('calls a photo exposed 1.9 times too long over-exposed', async () => {
+    const q = await quality(SMALL_BED, { seed: 321 }, { gain: 1.9 });
+    expect(codes(q)).toEqual(['overexposed']);
+    expect(q.issues[0]!.advice).toMatch(/flash/);
+  }, 30_000);
+
+  it('calls holes too small in a 12 MP-framed bed downscaled to 1600 × 1200', async () => {
+    // the large bed (1.3 m) rendered at 1800 × 1350 and resized as a messenger would: inserts of 8 mm end up near 8 px
+    const q = await quality(LARGE_BED, { seed: 331, width: 1800, height: 1350, supersample: 2 }, { downscale: { width: 1600, height: 1200 } });
+    expect(q.measured.widthPx).toBe(1600);
+    expect(codes(q)).toContain('holes-small');
+    expect(codes(q).every((c) => c === 'holes-small' || c === 'target-small')).toBe(true);
+  }, 60_000);
+
+  it('calls a 25° view tilted and measures the tilt to 2°', async () => {
+    const q = await quality(SMALL_BED, { seed: 341, tiltDeg: 25 });
+    expect(codes(q)).toEqual(['tilted']);
+    // truth: the renderer's camera tilt from straight down (scene.ts), with the same 27 mm-equivalent lens
+    expect(Math.abs(q.measured.tiltDeg! - 25)).toBeLessThan(2);
+  }, 30_000);
+
+  it('calls a target cut by the border of the photo, and the photo cannot be measured', async () => {
+    const q = await quality(SMALL_BED, { seed: 351 }, (t) => {
+      // crop the photo through the middle of the target
+      const xs = t.target.cornersPx.map((c) => c[0]);
+      const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
+      return mid > 600 ? { crop: { x: 0, y: 0, width: mid, height: 900 } } : { crop: { x: mid, y: 0, width: 1200 - mid, height: 900 } };
+    });
+    expect(codes(q)).toEqual(['target-cut']);
+    expect(q.predicted).toBeNull();
+  }, 30_000);
+});
