@@ -118,6 +118,11 @@ export const checks = sqliteTable('checks', {
   progress: real('progress').notNull().default(0),
   error: text('error'),
   analysisVersion: integer('analysis_version').notNull().default(1),
+  /**
+   * The photo-quality stage's verdict (report contract `PhotoQuality`), written by the worker before it looks for
+   * the holes, so that the check's page shows it before the full result; null until then.
+   */
+  qualityJson: text('quality_json'),
   /** Detections in the measurement core's points format (image px). */
   detectionsJson: text('detections_json'),
   /** The report JSON of the measurement core's contract. */

@@ -9,6 +9,7 @@ import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { useEffect, useRef } from 'react';
 import { api, errorText } from '@/components/api';
 import { CheckReport } from '@/components/report/CheckReport';
+import { PhotoQualityVerdict } from './PhotoQualityVerdict';
 import { failureAdvice, isSettled, pollInterval, progressPercent, stageWords, type CheckStatusView } from './stages';
 
 export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkId: string; initial: CheckStatusView; canUpload: boolean; canReview: boolean }) {
@@ -51,6 +52,7 @@ export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkI
             {canReview && <Link href={`/checks/${checkId}/review`} className="btn self-start">Review the detections</Link>}
           </div>
         )}
+        {view.quality && <PhotoQualityVerdict quality={view.quality} phase="settled" uploadHref={canUpload ? `/beds/${view.bedId}/upload` : undefined} />}
         <CheckReport checkId={checkId} />
         <p className="flex flex-wrap gap-3 text-sm">
           <a className="underline" href={`/api/checks/${checkId}/report`}>Report as JSON</a>
@@ -66,6 +68,7 @@ export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkI
       <section className="panel flex flex-col gap-4 border-2 border-fail" role="alert" data-testid="check-failed">
         <h2 className="text-2xl font-bold text-fail">{words}</h2>
         <p className="text-lg">{view.error ?? 'The worker gave no reason.'}</p>
+        {view.quality && view.quality.issues.length > 0 && <PhotoQualityVerdict quality={view.quality} phase="failed" />}
         <h3 className="text-lg font-bold">What to try</h3>
         <ul className="flex flex-col gap-3">
           {advice.anotherPhoto && (
@@ -105,6 +108,7 @@ export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkI
           );
         })}
       </ol>
+      {view.quality && <PhotoQualityVerdict quality={view.quality} phase="running" uploadHref={canUpload ? `/beds/${view.bedId}/upload` : undefined} />}
       {q.isError && <p className="field-error">Lost touch with the server ({errorText(q.error)}); trying again.</p>}
       <p className="text-sm text-muted">You can leave this page; the check carries on and shows up on the bed&apos;s page.</p>
     </section>

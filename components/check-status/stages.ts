@@ -2,6 +2,8 @@
  * Words for a check's state on the status page: the worker's stages (lib/checks/run-analysis.ts STAGES) in
  * our own phrasing, and whether polling may stop. Pure; the tests and the page share it.
  */
+import type { PhotoQuality } from '@/lib/geometry/contract';
+
 export type CheckStatusName = 'queued' | 'running' | 'needs-review' | 'done' | 'failed';
 
 export interface CheckStatusView {
@@ -14,6 +16,8 @@ export interface CheckStatusView {
   verdict: string | null;
   createdAt: number;
   finishedAt: number | null;
+  /** The photo-quality verdict, once measured (before the holes). */
+  quality?: PhotoQuality;
 }
 
 const STAGE_WORDS: Record<string, string> = {

@@ -9,7 +9,7 @@
 import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { checkPositions, checks, jobs, panelResults } from '@/db/schema';
 import type { CheckStatus } from '@/db/schema';
-import type { Points, Report } from '@/lib/geometry/contract';
+import { PhotoQualitySchema, type PhotoQuality, type Points, type Report } from '@/lib/geometry/contract';
 import { enqueueJob, finishJobInTx, JOB_KINDS, LeaseLostError, withBusyRetry, type Job } from './jobs';
 import type { Db } from '@/db/client';
 import { newId, type Queryable } from './types';
@@ -129,9 +129,22 @@ export interface CheckStatusView {
   verdict: string | null;
   createdAt: number;
   finishedAt: number | null;
+  /** The photo-quality verdict, once the worker has measured it (before the holes). */
+  quality?: PhotoQuality;
+}
+
+function parseQuality(json: string | null): PhotoQuality | undefined {
+  if (!json) return undefined;
+  try {
+    const parsed = PhotoQualitySchema.safeParse(JSON.parse(json));
+    return parsed.success ? parsed.data : undefined;
+  } catch {
+    return undefined;
+  }
 }
 
 export function checkStatusView(row: CheckRow): CheckStatusView {
+  const quality = parseQuality(row.qualityJson);
   return {
     id: row.id,
     bedId: row.bedId,
@@ -142,6 +155,7 @@ export function checkStatusView(row: CheckRow): CheckStatusView {
     verdict: row.verdict,
     createdAt: row.createdAt,
     finishedAt: row.finishedAt,
+    ...(quality ? { quality } : {}),
   };
 }
 
@@ -155,6 +169,16 @@ const heldBy = (jobId: string, token: string) =>
 export async function setCheckStage(db: Db, checkId: string, held: { jobId: string; token: string }, stage: string, progress: number, now = Date.now()): Promise<boolean> {
   const rows = await withBusyRetry('report progress', () => db.update(checks)
     .set({ status: 'running', stage, progress: Math.max(0, Math.min(1, progress)), error: null, updatedAt: now })
+    .where(and(eq(checks.id, checkId), heldBy(held.jobId, held.token)))
+    .returning({ id: checks.id }), { db });
+  return rows.length === 1;
+}
+
+/** Stores the photo-quality verdict on the check while the job is held with `token`. Returns false when not held. */
+export async function setCheckQuality(db: Db, checkId: string, held: { jobId: string; token: string }, quality: PhotoQuality, now = Date.now()): Promise<boolean> {
+  const json = JSON.stringify(PhotoQualitySchema.parse(quality));
+  const rows = await withBusyRetry('store photo quality', () => db.update(checks)
+    .set({ qualityJson: json, updatedAt: now })
     .where(and(eq(checks.id, checkId), heldBy(held.jobId, held.token)))
     .returning({ id: checks.id }), { db });
   return rows.length === 1;

@@ -12,6 +12,7 @@ export const analysisDeps: AnalysisDeps = {
       referenceMm: o.referenceMm,
       ...(o.corners ? { corners: o.corners } : {}),
       ...(o.onStage ? { onStage: o.onStage } : {}),
+      ...(o.onQuality ? { onQuality: o.onQuality } : {}),
     });
     return points;
   },

@@ -11,11 +11,11 @@
  */
 import { ZodError } from 'zod';
 import type { Db } from '@/db/client';
-import { ANALYSIS_VERSION, getCheckById, saveAnalysisResult, setCheckStage } from '@/db/queries/checks';
+import { ANALYSIS_VERSION, getCheckById, saveAnalysisResult, setCheckQuality, setCheckStage } from '@/db/queries/checks';
 import { LeaseLostError, type ClaimedJob } from '@/db/queries/jobs';
 import { getPattern } from '@/db/queries/patterns';
 import { getPhotoById, setPhotoSize } from '@/db/queries/photos';
-import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report } from '@/lib/geometry/contract';
+import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report, type PhotoQuality } from '@/lib/geometry/contract';
 import { BlobNotFoundError, type Storage } from '@/lib/storage';
 import { CornersSchema, type Corners } from './intake';
 import { needsReview } from './review';
@@ -38,6 +38,8 @@ export interface DetectOptions {
   corners: Corners | null;
   /** Called by vision as it moves on; `fraction` (0…1) is progress within the stage when known. */
   onStage?: (stage: string, fraction?: number) => void;
+  /** Called with the photo-quality verdict before the holes are sought; awaited (the worker stores it first). */
+  onQuality?: (quality: PhotoQuality) => Promise<void>;
 }
 
 /** What the fit takes besides the points and the pattern: the measured distances given with the check. */
@@ -143,8 +145,16 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   const corners = check.cornersJson ? CornersSchema.parse(JSON.parse(check.cornersJson)) : null;
   report('finding square');
   let points: Points;
+  let quality: PhotoQuality | undefined;
+  // the quality verdict is stored as soon as it is known, so that the check's page shows it before the result
+  const onQuality = async (q: PhotoQuality) => {
+    quality = q;
+    ctx.log?.('job.quality', { checkId: check.id, issues: q.issues.map((x) => x.code), predicted: q.predicted, ms: q.timeMs });
+    await writes;
+    await setCheckQuality(ctx.db, check.id, held, q).catch(() => undefined);
+  };
   try {
-    points = await deps.detect(bytes, { pattern, referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction) });
+    points = await deps.detect(bytes, { pattern, referenceMm: check.referenceMm, corners, onStage: (name, fraction) => report(visionStage(name), fraction), onQuality });
   } catch (e) {
     // vision's input errors already say what to do (another photo, mark the corners)
     if (deps.isInputError(e)) throw new PermanentJobError((e as Error).message, { cause: e });
@@ -152,7 +162,7 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
   }
   points = PointsSchema.parse(points);
   ctx.assertHeld();
-  await fitAndSave(ctx, deps, check.id, pattern, points, fitOptionsOf(check), corners !== null, report, () => writes);
+  await fitAndSave(ctx, deps, check.id, pattern, points, fitOptionsOf(check), corners !== null, report, () => writes, quality);
   await setPhotoSize(ctx.db, photo.id, points.image.width, points.image.height).catch(() => undefined);
 }
 
@@ -190,12 +200,14 @@ export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'a
 
 async function fitAndSave(
   ctx: JobContext, deps: Pick<AnalysisDeps, 'analyze' | 'isInputError'>, checkId: string, pattern: Pattern, points: Points, options: FitOptions,
-  cornersGiven: boolean, report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>,
+  cornersGiven: boolean, report: (stage: Stage, fraction?: number) => void, pending: () => Promise<unknown>, quality?: PhotoQuality,
 ) {
   report('fitting');
   let result: Report;
   try {
     result = await deps.analyze(points, pattern, options);
+    // the report carries the photo's quality, so that its numbers are read with the photo's issues in view
+    if (quality) result = { ...result, photo: { quality } };
   } catch (e) {
     if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, cornersGiven), { cause: e });
     throw e;

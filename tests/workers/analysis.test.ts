@@ -98,9 +98,17 @@ describe('a rendered photo through the API and the worker', () => {
     // every stage is reported, in order (the worker logs each one as it writes it to the check)
     const stages = [...new Set(w.lines.filter((l) => l.event === 'job.stage' && l.checkId === id).map((l) => l.stage))];
     expect(stages).toEqual(['reading photo', 'finding square', 'finding holes', 'fitting']);
+    // the photo-quality verdict is stored before the holes are sought, and the check and the report carry it
+    const mine = w.lines.filter((l) => l.checkId === id);
+    const qAt = mine.findIndex((l) => l.event === 'job.quality');
+    expect(qAt).toBeGreaterThan(-1);
+    expect(qAt).toBeLessThan(mine.findIndex((l) => l.event === 'job.stage' && l.stage === 'finding holes'));
+    const status = (await call(checkGet, { cookie, params: { id } })).json as { check: { quality?: { issues: unknown[]; predicted: { positionMm: number } | null } } };
+    expect(status.check.quality?.predicted?.positionMm).toBeGreaterThan(0);
     const r = await call(reportGet, { cookie, params: { id } });
     expect(r.status).toBe(200);
     const report = ReportSchema.parse(r.json);
+    expect(report.photo?.quality).toEqual(status.check.quality);
     const truth = new Map(photo.truth.errors.panels.map((p) => [p.id, p]));
     const L = report.panels.find((p) => p.id === 'L')!;
     const R = report.panels.find((p) => p.id === 'R')!;

@@ -1,0 +1,1 @@
+ALTER TABLE `checks` ADD `quality_json` text;
