@@ -154,6 +154,8 @@ export function makeScene(spec: SceneSpec): Scene {
     const kind = rand();
     // Dust (small), screw heads (large) and hole-sized chips.
     const scale = kind < 0.4 ? 0.2 + 0.2 * rand() : kind < 0.8 ? 1.8 + 0.7 * rand() : 0.9 + 0.2 * rand();
+    // a camera sees nothing beyond its frame (drawn after the random values, so the stream stays the same)
+    if (p[0] < 0 || p[1] < 0 || p[0] >= W || p[1] >= H) continue;
     holes.push({ x: p[0], y: p[1], diameterPx: (d0 / mmPerPx) * scale });
     detPos.push(-1);
   }
