@@ -4,7 +4,8 @@
  *   npm run -s synth -- --pattern P.json --seed N --out DIR [--width 1600 --height 1200 --tilt 5 --turn 3
  *     --material mdf|plywood --focal35 27 --k1 -0.03 --k2 0.01 --blur 0.7 --noise 2 --jpeg 90 --exposure 1
  *     --gradient 0.15 --vignetting 0.2 --dust 400 --screws 6 --target-mm 150 --target-edge --scale-ppm 400
- *     --squareness 0.03 --panel-offset 0.3 --misplaced 3 --misplaced-mm 0.8 --supersample 4]
+ *     --squareness 0.03 --panel-offset 0.3 --misplaced 3 --misplaced-mm 0.8 --supersample 4
+ *     --camera linear|phone|encoded --contrast 0.5 --sharpen-px 1.5 --sharpen-amount 0.8]
  *
  * Writes DIR/photo.jpg and DIR/truth.json (bed mm, image px; see lib/vision/render/scene.ts for the frames
  * and the order in which the injected errors apply).
@@ -21,6 +22,7 @@ const FLAGS: Record<string, keyof SceneOptions> = {
   '--gradient': 'lightGradient', '--vignetting': 'vignetting', '--dust': 'dustPerM2', '--screws': 'screwsPerM2',
   '--target-mm': 'targetMm', '--scale-ppm': 'scalePpm', '--squareness': 'squarenessDeg', '--panel-offset': 'panelOffsetMm',
   '--misplaced': 'misplacedCount', '--misplaced-mm': 'misplacedMm', '--supersample': 'supersample',
+  '--contrast': 'contrast', '--sharpen-px': 'sharpenPx', '--sharpen-amount': 'sharpenAmount',
 };
 
 function fail(msg: string): never {
@@ -42,6 +44,10 @@ async function main(): Promise<void> {
       const m = next();
       if (m !== 'mdf' && m !== 'plywood') fail('--material is mdf or plywood');
       opts.material = m;
+    } else if (a === '--camera') {
+      const c = next();
+      if (c !== 'linear' && c !== 'phone' && c !== 'encoded') fail('--camera is linear, phone or encoded');
+      opts.camera = c;
     } else if (a === '--target-edge') opts.targetPlacement = 'edge';
     else if (FLAGS[a]) {
       const v = Number(next());

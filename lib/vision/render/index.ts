@@ -1,6 +1,6 @@
 /** The photo renderer: a pattern and scene options → JPEG bytes and the exact truth. */
 import type { Pattern } from '@/lib/geometry/contract';
-import { renderScene } from './render';
+import { develop, encodeJpeg, renderLinear, renderScene, CAMERA_PIPELINES, type CameraPipeline } from './render';
 import { buildScene, DEFAULT_SCENE, type SceneOptions, type TruthHole } from './scene';
 
 export interface Truth {
@@ -16,13 +16,9 @@ export interface Truth {
   errors: { scaleX: number; scaleY: number; squarenessDeg: number; panels: { id: string; dx: number; dy: number; rotationDeg: number }[]; misplaced: { family: string; col: number; row: number; dx: number; dy: number }[] };
 }
 
-/** Renders a scene for the pattern; options default to DEFAULT_SCENE. */
-export async function synthesize(pattern: Pattern, options: Partial<SceneOptions> = {}): Promise<{ jpeg: Buffer; truth: Truth }> {
-  const opts = { ...DEFAULT_SCENE, ...options };
-  const scene = buildScene(pattern, opts);
-  const { jpeg } = await renderScene(scene);
+function truthOf(scene: ReturnType<typeof buildScene>, pattern: Pattern, opts: SceneOptions): Truth {
   const cam = scene.camera;
-  const truth: Truth = {
+  return {
     version: 1,
     pattern: pattern.name,
     options: opts,
@@ -33,7 +29,31 @@ export async function synthesize(pattern: Pattern, options: Partial<SceneOptions
     holes: scene.holes,
     errors: scene.errors,
   };
-  return { jpeg, truth };
 }
 
+/** Renders a scene for the pattern; options default to DEFAULT_SCENE. */
+export async function synthesize(pattern: Pattern, options: Partial<SceneOptions> = {}): Promise<{ jpeg: Buffer; truth: Truth }> {
+  const opts = { ...DEFAULT_SCENE, ...options };
+  const scene = buildScene(pattern, opts);
+  const { jpeg } = await renderScene(scene);
+  return { jpeg, truth: truthOf(scene, pattern, opts) };
+}
+
+/**
+ * One scene through several camera pipelines: the scene is ray cast once, then each pipeline develops a copy of
+ * the same linear light (same noise), so the photos differ only by the camera. The truth is shared.
+ */
+export async function synthesizeCameras(pattern: Pattern, options: Partial<SceneOptions>, cameras: readonly CameraPipeline[] = CAMERA_PIPELINES): Promise<{ jpegs: Record<CameraPipeline, Buffer>; truth: Truth }> {
+  const opts = { ...DEFAULT_SCENE, ...options };
+  const scene = buildScene(pattern, opts);
+  const planes = renderLinear(scene);
+  const jpegs = {} as Record<CameraPipeline, Buffer>;
+  for (const c of cameras) {
+    const copy: typeof planes = [Float32Array.from(planes[0]), Float32Array.from(planes[1]), Float32Array.from(planes[2])];
+    jpegs[c] = await encodeJpeg(develop(copy, opts, c), opts);
+  }
+  return { jpegs, truth: truthOf(scene, pattern, { ...opts }) };
+}
+
+export { CAMERA_PIPELINES, type CameraPipeline };
 export { DEFAULT_SCENE, type SceneOptions, type TruthHole };

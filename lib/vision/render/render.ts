@@ -1,7 +1,13 @@
 /**
  * Renders a scene (see scene.ts) to a photo: per-pixel ray cast through the camera (with its distortion) onto the
- * bed plane, supersampled where an edge crosses the pixel, then light (exposure, gradient, vignetting), defocus
- * blur, sensor noise, sRGB tone curve and JPEG. Image frame: px, origin top-left, +y down; pixel (i, j) covers
+ * bed plane, supersampled where an edge crosses the pixel, then light (exposure, gradient, vignetting), and one of
+ * the camera pipelines (`CameraPipeline`) that turn the linear light into 8-bit sRGB values, then JPEG:
+ * - 'linear' (a plain camera): defocus blur in linear light, sensor noise, sRGB curve;
+ * - 'phone': the same, then a mid-tone contrast curve on the encoded values and an unsharp mask (σ `sharpenPx`);
+ * - 'encoded': sensor noise, sRGB curve, then the blur applied to the encoded values (a cheap lens model or a
+ *   resampling step done on gamma-encoded data).
+ * The tone curve and the sharpening move a dark/light edge's half-way crossing; they leave the centre of a
+ * symmetric feature (a hole, a stroke's centreline) where it is. Image frame: px, origin top-left, +y down; pixel (i, j) covers
  * [i − 0.5, i + 0.5] × [j − 0.5, j + 0.5], its centre at (i, j), the same convention as OpenCV's moments and the
  * detector.
  */
@@ -48,8 +54,21 @@ function blurPlane(src: Float32Array, w: number, h: number, sigma: number): void
   }
 }
 
-/** Renders the scene; returns the JPEG bytes (and the raw 8-bit RGB when asked). */
-export async function renderScene(scene: Scene, opts: { keepRaw?: boolean } = {}): Promise<{ jpeg: Buffer; raw?: Buffer }> {
+/** How the camera turns linear light into encoded values (see the file header). */
+export const CAMERA_PIPELINES = ['linear', 'phone', 'encoded'] as const;
+export type CameraPipeline = (typeof CAMERA_PIPELINES)[number];
+
+/**
+ * Mid-tone contrast curve on encoded values in [0, 1]: a blend of the identity with smoothstep (3x² − 2x³), which
+ * keeps black, white and mid-grey and steepens the mid-tones by 1 + strength / 2.
+ */
+export function midToneCurve(x: number, strength: number): number {
+  const c = x < 0 ? 0 : x > 1 ? 1 : x;
+  return (1 - strength) * c + strength * c * c * (3 - 2 * c);
+}
+
+/** Linear-light planes (R, G, B) of the scene: exposure, gradient and vignetting applied, no blur or noise. */
+export function renderLinear(scene: Scene): [Float32Array, Float32Array, Float32Array] {
   const o = scene.options;
   const w = o.width;
   const h = o.height;
@@ -114,18 +133,56 @@ export async function renderScene(scene: Scene, opts: { keepRaw?: boolean } = {}
       planes[1][i]! *= L;
       planes[2][i]! *= L;
     }
-  for (const p of planes) blurPlane(p, w, h, o.blurPx);
-  // noise in linear light (shot + read), then the sRGB curve, 8 bit
-  const out = Buffer.alloc(w * h * 3);
+  return [planes[0], planes[1], planes[2]];
+}
+
+/**
+ * Develops linear-light planes through a camera pipeline into 8-bit interleaved RGB. The planes are changed in
+ * place (pass copies to develop them again). Noise is seeded from the scene's seed, the same for every pipeline.
+ */
+export function develop(planes: [Float32Array, Float32Array, Float32Array], o: Scene['options'], pipeline: CameraPipeline): Buffer {
+  const w = o.width;
+  const h = o.height;
+  const rng = makeRng(o.seed * 31 + 11);
+  if (pipeline !== 'encoded') for (const p of planes) blurPlane(p, w, h, o.blurPx);
+  // noise in linear light (shot + read), then the sRGB curve
   const sig = o.noise / 255;
   for (let i = 0; i < w * h; i++) {
     for (let c = 0; c < 3; c++) {
-      const l = planes[c as 0 | 1 | 2][i]!;
+      const p = planes[c as 0 | 1 | 2];
+      const l = p[i]!;
       const s = sig * Math.sqrt(0.3 + 1.4 * Math.max(0, l)) * 0.5;
-      const e = srgbEncode(l + s * gauss(rng));
-      out[i * 3 + c] = Math.round(e * 255);
+      p[i] = srgbEncode(l + s * gauss(rng));
     }
   }
-  const jpeg = await sharp(out, { raw: { width: w, height: h, channels: 3 } }).jpeg({ quality: Math.round(o.jpegQuality), chromaSubsampling: '4:2:0' }).toBuffer();
+  if (pipeline === 'encoded') for (const p of planes) blurPlane(p, w, h, o.blurPx);
+  if (pipeline === 'phone') {
+    const blurred = new Float32Array(w * h);
+    for (const p of planes) {
+      for (let i = 0; i < w * h; i++) p[i] = midToneCurve(p[i]!, o.contrast);
+      blurred.set(p);
+      blurPlane(blurred, w, h, o.sharpenPx);
+      for (let i = 0; i < w * h; i++) p[i] = p[i]! + o.sharpenAmount * (p[i]! - blurred[i]!);
+    }
+  }
+  const out = Buffer.alloc(w * h * 3);
+  for (let i = 0; i < w * h; i++)
+    for (let c = 0; c < 3; c++) {
+      const e = planes[c as 0 | 1 | 2][i]!;
+      out[i * 3 + c] = Math.round((e < 0 ? 0 : e > 1 ? 1 : e) * 255);
+    }
+  return out;
+}
+
+/** 8-bit RGB → JPEG at the scene's quality (4:2:0 chroma, as cameras write it). */
+export async function encodeJpeg(raw: Buffer, o: Scene['options']): Promise<Buffer> {
+  return sharp(raw, { raw: { width: o.width, height: o.height, channels: 3 } }).jpeg({ quality: Math.round(o.jpegQuality), chromaSubsampling: '4:2:0' }).toBuffer();
+}
+
+/** Renders the scene through its own pipeline (`options.camera`); returns the JPEG bytes (and the raw RGB when asked). */
+export async function renderScene(scene: Scene, opts: { keepRaw?: boolean } = {}): Promise<{ jpeg: Buffer; raw?: Buffer }> {
+  const o = scene.options;
+  const out = develop(renderLinear(scene), o, o.camera);
+  const jpeg = await encodeJpeg(out, o);
   return opts.keepRaw ? { jpeg, raw: out } : { jpeg };
 }

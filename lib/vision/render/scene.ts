@@ -29,8 +29,14 @@ export interface SceneOptions {
   /** Radial distortion k1, k2. */
   k1: number;
   k2: number;
-  /** Defocus blur, Gaussian sigma in px. */
+  /** Defocus blur, Gaussian sigma in px (0–1.5). */
   blurPx: number;
+  /** Camera pipeline from linear light to encoded values (render.ts): 'linear', 'phone' or 'encoded'. */
+  camera: 'linear' | 'phone' | 'encoded';
+  /** Phone pipeline: mid-tone contrast strength (0–1, render.ts midToneCurve), unsharp-mask sigma (px) and amount. */
+  contrast: number;
+  sharpenPx: number;
+  sharpenAmount: number;
   /** Sensor noise sigma at mid grey, in 8-bit units. */
   noise: number;
   jpegQuality: number;
@@ -66,6 +72,10 @@ export const DEFAULT_SCENE: SceneOptions = {
   k1: -0.03,
   k2: 0.01,
   blurPx: 0.7,
+  camera: 'linear',
+  contrast: 0.5,
+  sharpenPx: 1.5,
+  sharpenAmount: 0.8,
   noise: 2,
   jpegQuality: 90,
   exposure: 1,
