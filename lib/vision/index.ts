@@ -48,7 +48,19 @@ export interface DetectMeta {
   bitDepth: 8 | 16;
   format: string;
   /** How the square was obtained and, for Gridproof's target, whether its orientation mark was seen. */
-  square: { source: 'detected' | 'given'; kind?: 'target' | 'square'; markFound?: boolean; edgeRmsPx?: number };
+  square: {
+    source: 'detected' | 'given';
+    kind?: 'target' | 'square';
+    markFound?: boolean;
+    edgeRmsPx?: number;
+    /** Corners from the frame stroke's centreline (camera-independent) or from outer edges only. */
+    reference?: 'centreline' | 'outer-edge';
+    /** Edge bias measured on the frame stroke, px (positive: black reads wider than printed), and its spread. */
+    edgeBiasPx?: number;
+    edgeBiasSdPx?: number;
+    /** 1σ of each corner per image axis, px, from the fitted edges' residuals (not yet passed to the fit). */
+    cornerSigmaPx?: number;
+  };
   /** Factor of the reduced image for the candidate passes. */
   reduction: number;
   /** Grey channel mix (R, G, B weights). */
@@ -94,7 +106,11 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
       throw new VisionInputError('no-square', 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
     }
     corners = sq.corners;
-    square = { source: 'detected', kind: sq.kind, markFound: sq.markFound, edgeRmsPx: Math.round(sq.edgeRmsPx * 1000) / 1000 };
+    const r3 = (x: number) => Math.round(x * 1000) / 1000;
+    square = {
+      source: 'detected', kind: sq.kind, markFound: sq.markFound, edgeRmsPx: r3(sq.edgeRmsPx), reference: sq.reference, cornerSigmaPx: r3(sq.cornerSigmaPx),
+      ...(sq.edgeBiasPx !== undefined ? { edgeBiasPx: r3(sq.edgeBiasPx), edgeBiasSdPx: r3(sq.edgeBiasSdPx ?? 0) } : {}),
+    };
   }
   const S = opts.referenceMm;
   let H: H3;
@@ -119,6 +135,8 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   }
   const points: Points = {
     image: { width: w, height: h, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) },
+    // The corner 1σ stays in the meta only: with lens distortion it reads 2–3× low against the renderer's truth, and
+    // the fit would trust it; until it is calibrated the analysis keeps its cautious default.
     reference: { sizeMm: S, corners: corners.map((c) => [c[0], c[1]]) as Points['reference']['corners'] },
     holes: dets.map((d) => ({ x: d.x, y: d.y, diameterPx: d.diameterPx, confidence: d.confidence })),
   };

@@ -21,6 +21,16 @@ export interface SquareFound {
   markFound: boolean;
   /** RMS distance of the edge points from their fitted side lines, px. */
   edgeRmsPx: number;
+  /**
+   * What the corners were measured from: the frame stroke's centreline (outer and inner edges, free of the
+   * camera's edge bias) or the outer edges only (a plain square, or a frame whose inner edge was not found).
+   */
+  reference: 'centreline' | 'outer-edge';
+  /** Edge bias measured on the stroke (see Centreline), px; absent for outer edges only. */
+  edgeBiasPx?: number;
+  edgeBiasSdPx?: number;
+  /** 1σ of each corner per image axis, px, from the fitted edges' residuals. */
+  cornerSigmaPx: number;
 }
 
 interface Quad {
@@ -107,8 +117,20 @@ function sampleLinear(g: Float32Array, w: number, h: number, x: number, y: numbe
   return a + (b - a) * fx + (c - a) * fy + (a - b - c + d) * fx * fy;
 }
 
+/** A fitted edge line n·p = c (unit normal n, px) with what its precision needs. */
+interface EdgeLine {
+  n: [number, number];
+  c: number;
+  /** RMS distance of the points from the line, px. */
+  rms: number;
+  /** Number of points, their centroid and spread along the line (Σ t², px²), for the offset's variance. */
+  m: number;
+  mean: [number, number];
+  stt: number;
+}
+
 /** Total-least-squares line through points: unit normal n and offset c with n·p = c. */
-function fitLine(pts: [number, number][]): { n: [number, number]; c: number; rms: number } {
+function fitLine(pts: [number, number][]): EdgeLine {
   const m = pts.length;
   let mx = 0;
   let my = 0;
@@ -132,30 +154,54 @@ function fitLine(pts: [number, number][]): { n: [number, number]; c: number; rms
   const n: [number, number] = [-Math.sin(th), Math.cos(th)];
   const c = n[0] * mx + n[1] * my;
   let r = 0;
-  for (const p of pts) r += (n[0] * p[0] + n[1] * p[1] - c) ** 2;
-  return { n, c, rms: Math.sqrt(r / m) };
+  let stt = 0;
+  for (const p of pts) {
+    r += (n[0] * p[0] + n[1] * p[1] - c) ** 2;
+    stt += (-n[1] * (p[0] - mx) + n[0] * (p[1] - my)) ** 2;
+  }
+  return { n, c, rms: Math.sqrt(r / Math.max(1, m - 2)), m, mean: [mx, my], stt };
 }
+
+/** Intersection of two lines n·p = c; null when they are parallel. */
+function meet(A: { n: [number, number]; c: number }, B: { n: [number, number]; c: number }): [number, number] | null {
+  const det = A.n[0] * B.n[1] - A.n[1] * B.n[0];
+  if (Math.abs(det) < 1e-9) return null;
+  return [(A.c * B.n[1] - A.n[1] * B.c) / det, (A.n[0] * B.c - A.c * B.n[0]) / det];
+}
+
+/** Per side of a quad, the lines through its first half (from corner s) and its second half (to corner s + 1). */
+export type SideLines = { a: EdgeLine; b: EdgeLine }[];
 
 /**
  * Refines a quadrilateral's corners on the full-resolution grey image: along each side, edge points where the
  * intensity profile across the side steps from dark to light (located by the area under the normalised darkness), a robust line
  * fit per side, corners at the intersections of neighbouring sides. `reachPx` bounds the search across a side.
+ * `darkInside` (default true): the quad is dark and its surround light (a square's outer edge); false for the
+ * inner edge of a frame (light inside, dark stroke outside).
  */
-export function refineCorners(grey: Float32Array, w: number, h: number, quad: Corners, reachPx: number): { corners: Corners; rms: number } | null {
+export function refineCorners(grey: Float32Array, w: number, h: number, quad: Corners, reachPx: number, darkInside = true): { corners: Corners; rms: number; sides: SideLines; curves: SideCurve[]; points: [number, number][][]; frames: SideFrame[] } | null {
   let q = quad;
   let rms = 0;
   const area = shoelace(q);
+  let halves: SideLines = [];
+  let kept: [number, number][][] = [];
+  let frames: SideFrame[] = [];
   for (let iter = 0; iter < 2; iter++) {
-    // per side: lines through its first and its second half (a lens's bend of the side then hardly moves a corner)
-    const halves: { a: { n: [number, number]; c: number }; b: { n: [number, number]; c: number } }[] = [];
+    // per side: lines through its first and its second half (a lens's bend of the side then hardly moves a
+    // corner), for the next pass's sampling; the final corners come from quadratic curves through all inliers
+    halves = [];
+    kept = [];
+    frames = [];
     let rr = 0;
     for (let s = 0; s < 4; s++) {
       const a = q[s]!;
       const b = q[(s + 1) % 4]!;
       const len = Math.hypot(b[0] - a[0], b[1] - a[1]);
       const t: [number, number] = [(b[0] - a[0]) / len, (b[1] - a[1]) / len];
-      // outward normal: right of the tangent for a positive shoelace area, left for a negative one
-      const out: [number, number] = area < 0 ? [-t[1], t[0]] : [t[1], -t[0]];
+      // outward normal: right of the tangent for a positive shoelace area, left for a negative one; the profile
+      // runs from dark to light, so inward for a light quad in a dark frame
+      const o: [number, number] = area < 0 ? [-t[1], t[0]] : [t[1], -t[0]];
+      const out: [number, number] = darkInside ? o : [-o[0], -o[1]];
       const pts: [number, number][] = [];
       const fs: number[] = [];
       const nSamples = Math.max(12, Math.min(200, Math.floor(len / 2)));
@@ -210,26 +256,269 @@ export function refineCorners(grey: Float32Array, w: number, h: number, quad: Co
         const mad = sorted[Math.floor(sorted.length / 2)]! * 1.4826 + 0.02;
         const keep = sel.filter((_, i) => res[i]! < 3 * mad);
         if (keep.length >= 6) L = fitLine(keep);
-        return L;
+        return { L, keep: keep.length >= 6 ? keep : sel };
       };
-      const La = robust(pts.filter((_, i) => fs[i]! < 0.5));
-      const Lb = robust(pts.filter((_, i) => fs[i]! >= 0.5));
-      if (!La || !Lb) return null;
-      halves.push({ a: La, b: Lb });
-      rr += (La.rms * La.rms + Lb.rms * Lb.rms) / 2;
+      const Ra = robust(pts.filter((_, i) => fs[i]! < 0.5));
+      const Rb = robust(pts.filter((_, i) => fs[i]! >= 0.5));
+      if (!Ra || !Rb) return null;
+      halves.push({ a: Ra.L, b: Rb.L });
+      kept.push([...Ra.keep, ...Rb.keep]);
+      frames.push({ a, t, o });
+      rr += (Ra.L.rms * Ra.L.rms + Rb.L.rms * Rb.L.rms) / 2;
     }
-    const nq: [number, number][] = [];
-    for (let i = 0; i < 4; i++) {
-      const A = halves[(i + 3) % 4]!.b;
-      const B = halves[i]!.a;
-      const det = A.n[0] * B.n[1] - A.n[1] * B.n[0];
-      if (Math.abs(det) < 1e-9) return null;
-      nq.push([(A.c * B.n[1] - A.n[1] * B.c) / det, (A.n[0] * B.c - A.c * B.n[0]) / det]);
-    }
-    q = nq as Corners;
+    const nq = quadOf(halves);
+    if (!nq) return null;
+    q = nq;
     rms = Math.sqrt(rr / 4);
   }
-  return { corners: q, rms };
+  // final corners where the sides' quadratic curves meet (a lens bends a straight side into nearly a parabola)
+  const curves: SideCurve[] = [];
+  for (let s = 0; s < 4; s++) {
+    const C = fitCurve(kept[s]!, frames[s]!);
+    if (!C) return null;
+    curves.push(C);
+  }
+  const cq = curveQuad(curves, q);
+  if (!cq) return null;
+  return { corners: cq, rms, sides: halves, curves, points: kept, frames };
+}
+
+/** Corners where the half-lines next to each corner meet: corner i from side i − 1's second half and side i's first. */
+function quadOf(sides: { a: { n: [number, number]; c: number }; b: { n: [number, number]; c: number } }[]): Corners | null {
+  const nq: [number, number][] = [];
+  for (let i = 0; i < 4; i++) {
+    const p = meet(sides[(i + 3) % 4]!.b, sides[i]!.a);
+    if (!p) return null;
+    nq.push(p);
+  }
+  return nq as Corners;
+}
+
+/** A side's frame: its start corner, unit tangent along it and unit outward normal, px. */
+export interface SideFrame {
+  a: [number, number];
+  t: [number, number];
+  o: [number, number];
+}
+
+/**
+ * A side as a quadratic curve in its frame: offset along the outward normal e(τ) = c0 + c1 τ + c2 τ², with τ the
+ * distance along the tangent in units of `scale` px; `cov` the coefficients' covariance (px², σ² (AᵀA)⁻¹ of the
+ * least-squares fit), rms the residual.
+ */
+export interface SideCurve {
+  f: SideFrame;
+  scale: number;
+  c: [number, number, number];
+  cov: number[];
+  rms: number;
+}
+
+/** Solves a 3 × 3 symmetric system by Cramer's rule; returns the inverse as well. */
+function inv3(m: number[]): number[] | null {
+  const [a, b, c, d, e, f, g, h, i] = m as [number, number, number, number, number, number, number, number, number];
+  const A = e * i - f * h, B = -(d * i - f * g), C = d * h - e * g;
+  const det = a * A + b * B + c * C;
+  if (Math.abs(det) < 1e-18) return null;
+  return [A, -(b * i - c * h), b * f - c * e, B, a * i - c * g, -(a * f - c * d), C, -(a * h - b * g), a * e - b * d].map((x) => x / det);
+}
+
+/** Robust quadratic fit of edge points in a side's frame (two passes, 3 MAD rejection). */
+function fitCurve(pts: [number, number][], f: SideFrame, scale = 0): SideCurve | null {
+  const tau: number[] = [];
+  const e: number[] = [];
+  let tmax = 1;
+  for (const p of pts) {
+    const dx = p[0] - f.a[0];
+    const dy = p[1] - f.a[1];
+    tau.push(dx * f.t[0] + dy * f.t[1]);
+    e.push(dx * f.o[0] + dy * f.o[1]);
+    tmax = Math.max(tmax, Math.abs(tau[tau.length - 1]!));
+  }
+  const sc = scale || tmax;
+  let use = tau.map(() => true);
+  let out: SideCurve | null = null;
+  for (let pass = 0; pass < 2; pass++) {
+    const M = new Array<number>(9).fill(0);
+    const r = [0, 0, 0];
+    let m = 0;
+    for (let k = 0; k < tau.length; k++) {
+      if (!use[k]) continue;
+      const u = tau[k]! / sc;
+      const g = [1, u, u * u];
+      for (let i = 0; i < 3; i++) {
+        r[i]! += g[i]! * e[k]!;
+        for (let j = 0; j < 3; j++) M[i * 3 + j]! += g[i]! * g[j]!;
+      }
+      m++;
+    }
+    if (m < 8) return out;
+    const Mi = inv3(M);
+    if (!Mi) return out;
+    const c: [number, number, number] = [0, 1, 2].map((i) => Mi[i * 3]! * r[0]! + Mi[i * 3 + 1]! * r[1]! + Mi[i * 3 + 2]! * r[2]!) as [number, number, number];
+    const res = tau.map((t, k) => e[k]! - (c[0] + (c[1] * t) / sc + (c[2] * t * t) / (sc * sc)));
+    let ss = 0;
+    for (let k = 0; k < res.length; k++) if (use[k]) ss += res[k]! ** 2;
+    const rms = Math.sqrt(ss / Math.max(1, m - 3));
+    out = { f, scale: sc, c, cov: Mi.map((x) => x * rms * rms), rms };
+    const sorted = res.filter((_, k) => use[k]).map(Math.abs).sort((x, y) => x - y);
+    const mad = sorted[Math.floor(sorted.length / 2)]! * 1.4826 + 0.02;
+    use = res.map((v) => Math.abs(v) < 3 * mad);
+  }
+  return out;
+}
+
+/** Point of a side curve at τ (px along the tangent) and its tangent direction. */
+function curveAt(C: SideCurve, tau: number): { p: [number, number]; d: [number, number] } {
+  const u = tau / C.scale;
+  const e = C.c[0] + C.c[1] * u + C.c[2] * u * u;
+  const de = (C.c[1] + 2 * C.c[2] * u) / C.scale;
+  const { a, t, o } = C.f;
+  return { p: [a[0] + tau * t[0] + e * o[0], a[1] + tau * t[1] + e * o[1]], d: [t[0] + de * o[0], t[1] + de * o[1]] };
+}
+
+/** τ of the point of a curve's frame nearest p (its projection on the tangent). */
+function tauOf(C: SideCurve, p: readonly [number, number]): number {
+  return (p[0] - C.f.a[0]) * C.f.t[0] + (p[1] - C.f.a[1]) * C.f.t[1];
+}
+
+/** Variance of a curve's offset at τ, px². */
+function curveVar(C: SideCurve, tau: number): number {
+  const u = tau / C.scale;
+  const g = [1, u, u * u];
+  let v = 0;
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) v += g[i]! * C.cov[i * 3 + j]! * g[j]!;
+  return Math.max(0, v);
+}
+
+/** Where two side curves meet, from a starting guess (Newton on P₁(τ₁) = P₂(τ₂)). */
+function meetCurves(C1: SideCurve, C2: SideCurve, guess: readonly [number, number]): [number, number] | null {
+  let t1 = tauOf(C1, guess);
+  let t2 = tauOf(C2, guess);
+  for (let it = 0; it < 8; it++) {
+    const A = curveAt(C1, t1);
+    const B = curveAt(C2, t2);
+    const fx = A.p[0] - B.p[0];
+    const fy = A.p[1] - B.p[1];
+    // [d1, −d2] [Δ1, Δ2]ᵀ = −F
+    const det = A.d[0] * -B.d[1] - -B.d[0] * A.d[1];
+    if (Math.abs(det) < 1e-9) return null;
+    const d1 = (-fx * -B.d[1] - -B.d[0] * -fy) / det;
+    const d2 = (A.d[0] * -fy - -fx * A.d[1]) / det;
+    t1 += d1;
+    t2 += d2;
+    if (Math.abs(d1) + Math.abs(d2) < 1e-7) break;
+  }
+  return curveAt(C1, t1).p;
+}
+
+/** Corners where neighbouring side curves meet (corner i: side i − 1 and side i). */
+function curveQuad(curves: SideCurve[], guess: Corners): Corners | null {
+  const q: [number, number][] = [];
+  for (let i = 0; i < 4; i++) {
+    const p = meetCurves(curves[(i + 3) % 4]!, curves[i]!, guess[i]!);
+    if (!p) return null;
+    q.push(p);
+  }
+  return q as Corners;
+}
+
+/** 1σ per image axis of the corners where the side curves meet (RMS over the four), px. */
+function cornerSigmaOf(curves: SideCurve[], q: Corners): number {
+  let v = 0;
+  for (let i = 0; i < 4; i++) {
+    const A = curves[(i + 3) % 4]!;
+    const B = curves[i]!;
+    v += (curveVar(A, tauOf(A, q[i]!)) + curveVar(B, tauOf(B, q[i]!))) / 2;
+  }
+  return Math.sqrt(v / 4);
+}
+
+/** What the frame's two edges tell: the stroke's centreline corners, the edge bias and the corners' precision. */
+export interface Centreline {
+  /** Outer corners implied by the centreline (bias-free), image px, in the quad's order. */
+  corners: Corners;
+  /**
+   * How far a dark/light edge's measured position lies on the light side of the true one, px (positive: the
+   * black stroke reads wider than printed); mean over eight points, two per side, and their standard deviation.
+   */
+  edgeBiasPx: number;
+  edgeBiasSdPx: number;
+  /** 1σ of each outer corner per image axis, px, from the edge points' scatter about the fitted curves. */
+  cornerSigmaPx: number;
+}
+
+/**
+ * The frame stroke's centreline from its outer and inner edge points (per side, in the same order). A tone
+ * curve, blur or sharpening moves both edges of a stroke by the same amount towards the light side, so their mean
+ * stays put. Per side, both edges are fitted as quadratic curves in the outer side's frame and the centreline is
+ * their mean. The mean of the two image curves is not exactly the image of the stroke's centreline under
+ * perspective (second order in the stroke's width); that difference is taken from the centreline quad's own
+ * homography and removed. `strokeFraction` is the stroke's width as a fraction of the outer size: the centreline
+ * square spans [f/2, 1 − f/2] of the target frame.
+ */
+export function strokeCentreline(outer: { curves: SideCurve[]; frames: SideFrame[] }, innerPoints: [number, number][][], strokeFraction: number, guess: Corners): Centreline | null {
+  const f = strokeFraction;
+  const unit: [number, number][] = [[f / 2, f / 2], [1 - f / 2, f / 2], [1 - f / 2, 1 - f / 2], [f / 2, 1 - f / 2]];
+  const sides: { o: SideCurve; i: SideCurve; m: SideCurve; base: [number, number, number] }[] = [];
+  for (let s = 0; s < 4; s++) {
+    const o = outer.curves[s]!;
+    const i = fitCurve(innerPoints[s]!, outer.frames[s]!, o.scale);
+    if (!i) return null;
+    const base: [number, number, number] = [0, 1, 2].map((k) => (o.c[k]! + i.c[k]!) / 2) as [number, number, number];
+    sides.push({ o, i, m: { f: o.f, scale: o.scale, c: [...base], cov: o.cov.map((x, k) => (x + i.cov[k]!) / 4), rms: Math.hypot(o.rms, i.rms) / 2 }, base });
+  }
+  let q = curveQuad(sides.map((x) => x.m), guess);
+  if (!q) return null;
+  let biases: number[] = [];
+  for (let iter = 0; iter < 3; iter++) {
+    let H: ReturnType<typeof homographyFrom4>;
+    try {
+      H = homographyFrom4(unit, q);
+    } catch {
+      return null;
+    }
+    biases = [];
+    for (let s = 0; s < 4; s++) {
+      const A = unit[s]!;
+      const B = unit[(s + 1) % 4]!;
+      // inward normal of side s in the unit frame
+      let nu: [number, number] = [-(B[1] - A[1]), B[0] - A[0]];
+      const k = Math.hypot(nu[0], nu[1]);
+      nu = [nu[0] / k, nu[1] / k];
+      if ((0.5 - (A[0] + B[0]) / 2) * nu[0] + (0.5 - (A[1] + B[1]) / 2) * nu[1] < 0) nu = [-nu[0], -nu[1]];
+      const S = sides[s]!;
+      const N = S.m.f.o;
+      const proj = (p: [number, number]) => (p[0] - S.m.f.a[0]) * N[0] + (p[1] - S.m.f.a[1]) * N[1];
+      const us: number[] = [];
+      const ds: number[] = [];
+      for (const v of [0.2, 0.8]) {
+        const cu: [number, number] = [A[0] + (B[0] - A[0]) * v, A[1] + (B[1] - A[1]) * v];
+        const qc = applyH(H, cu[0], cu[1]);
+        const qo = applyH(H, cu[0] - (nu[0] * f) / 2, cu[1] - (nu[1] * f) / 2);
+        const qi = applyH(H, cu[0] + (nu[0] * f) / 2, cu[1] + (nu[1] * f) / 2);
+        const tau = tauOf(S.m, qc);
+        us.push(tau / S.m.scale);
+        // perspective: the true centreline lies this far (along the normal) from the mean of the true edges
+        ds.push(proj(qc) - (proj(qo) + proj(qi)) / 2);
+        const eo = curveAt(S.o, tau).p;
+        const ei = curveAt(S.i, tau).p;
+        biases.push((Math.abs(proj(eo) - proj(ei)) - Math.abs(proj(qo) - proj(qi))) / 2);
+      }
+      const slope = (ds[1]! - ds[0]!) / (us[1]! - us[0]!);
+      S.m.c = [S.base[0] + ds[0]! - slope * us[0]!, S.base[1] + slope, S.base[2]];
+    }
+    const nq = curveQuad(sides.map((x) => x.m), q);
+    if (!nq) return null;
+    q = nq;
+  }
+  const H = homographyFrom4(unit, q);
+  const corners = ([[0, 0], [1, 0], [1, 1], [0, 1]] as const).map(([x, y]) => applyH(H, x, y)) as Corners;
+  // the outer corners lie 1/(1 − f) times as far from the square's centre as the centreline's
+  const cornerSigmaPx = cornerSigmaOf(sides.map((x) => x.m), q) / (1 - f);
+  const mean = biases.reduce((a, b) => a + b, 0) / biases.length;
+  const sd = Math.sqrt(biases.reduce((a, b) => a + (b - mean) ** 2, 0) / Math.max(1, biases.length - 1));
+  return { corners, edgeBiasPx: mean, edgeBiasSdPx: sd, cornerSigmaPx };
 }
 
 /** Orders corners so that the shoelace area is negative and corner 0 is `first`. */
@@ -313,8 +602,37 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
     const reach = Math.max(3, Math.min(2.5 * factor + 3, cand.kind === 'target' ? 0.45 * FRAME_FRACTION * side : 0.2 * side));
     const ref = refineCorners(grey, w, h, start, reach);
     if (!ref) continue;
+    let c = ref.corners;
+    let line: Centreline | null = null;
+    if (cand.kind === 'target') {
+      // the frame's inner edge, from where the outer corners put it, then the stroke's centreline
+      const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], c);
+      const f = FRAME_FRACTION;
+      const guess = ([[f, f], [1 - f, f], [1 - f, 1 - f], [f, 1 - f]] as const).map(([x, y]) => applyH(U, x, y)) as Corners;
+      const inner = refineCorners(grey, w, h, guess, reach, false);
+      if (inner) line = strokeCentreline(ref, inner.points, f, guess);
+      if (line) {
+        // Check of the model: the outer edges' own corners, moved in by the measured bias, must land on the
+        // centreline's; what they miss by beyond the fits' scatter (a lens bend the curves do not follow, a
+        // bias that is not the same along a side) is added to the corners' stated precision.
+        const ctr = line.corners.reduce((a, p) => [a[0] + p[0] / 4, a[1] + p[1] / 4], [0, 0]);
+        let d2 = 0;
+        for (let i = 0; i < 4; i++) {
+          const p = ref.corners[i]!;
+          const L = Math.hypot(p[0] - ctr[0], p[1] - ctr[1]);
+          const k = (line.edgeBiasPx * Math.SQRT2) / L;
+          d2 += (p[0] - k * (p[0] - ctr[0]) - line.corners[i]![0]) ** 2 + (p[1] - k * (p[1] - ctr[1]) - line.corners[i]![1]) ** 2;
+        }
+        const outerSigma = cornerSigmaOf(ref.curves, ref.corners);
+        const modelVar = Math.max(0, d2 / 8 - outerSigma ** 2 - line.cornerSigmaPx ** 2);
+        line = { ...line, cornerSigmaPx: Math.sqrt(line.cornerSigmaPx ** 2 + modelVar) };
+        c = line.corners;
+      }
+    }
+    const measured = line
+      ? { reference: 'centreline' as const, edgeBiasPx: line.edgeBiasPx, edgeBiasSdPx: line.edgeBiasSdPx, cornerSigmaPx: line.cornerSigmaPx }
+      : { reference: 'outer-edge' as const, cornerSigmaPx: cornerSigmaOf(ref.curves, c) };
     // contrast check: dark inside the edge, lighter outside
-    const c = ref.corners;
     const inside = cand.kind === 'target' ? meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) : meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
     const outsideVals = [
       meanInTarget(grey, w, h, c, -0.04, 0.5, 0.01),
@@ -335,7 +653,7 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
       // the mark is at target-frame (m, m) of corner 0: in the unit frame of `c`, corner k is at spot k
       corners = markFound ? orderCorners(c, () => k) : orderCorners(c, (p) => bottomLeft(p));
     } else corners = orderCorners(c, (p) => bottomLeft(p));
-    return { corners, kind: cand.kind, markFound, edgeRmsPx: ref.rms };
+    return { corners, kind: cand.kind, markFound, edgeRmsPx: ref.rms, ...measured };
   }
   return null;
 }
