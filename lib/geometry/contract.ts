@@ -330,7 +330,13 @@ const Uncertain = finite.nullable();
 export const ReportSchema = z.object({
   version: z.literal(1),
   units: z.literal('mm'),
-  pattern: z.object({ name: z.string() }),
+  /** The pattern's name; a report may also carry the bed's outline and panels (pattern units) for its maps. */
+  pattern: z.object({
+    name: z.string(),
+    units: z.enum(['mm', 'in']).optional(),
+    bed: z.object({ width: finite, height: finite }).optional(),
+    panels: z.array(z.object({ id: z.string(), x: finite, y: finite, width: finite, height: finite })).optional(),
+  }),
   positions: z.array(ReportPositionSchema),
   /** Detections that match no nominal position, in image px (origin top-left, +y down). */
   unmatched: z.array(z.object({ x: finite, y: finite })),
