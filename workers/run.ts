@@ -10,6 +10,7 @@
  * - `stop()` (SIGTERM) stops claiming and waits for the jobs in hand, up to `shutdownMs`.
  */
 import { hostname } from 'node:os';
+import { setTimeout as delay } from 'node:timers/promises';
 import type { Db } from '@/db/client';
 import {
   claimJob, DatabaseBusyError, failJob, LeaseLostError, reapExhaustedJobs, renewLease, type ClaimedJob,
@@ -41,12 +42,9 @@ export interface RunningWorker {
   stop: () => Promise<void>;
 }
 
-const sleep = (ms: number, signal: AbortSignal) => new Promise<void>((resolve) => {
-  if (signal.aborted) return resolve();
-  const t = setTimeout(done, ms);
-  function done() { clearTimeout(t); signal.removeEventListener('abort', done); resolve(); }
-  signal.addEventListener('abort', done, { once: true });
-});
+/** Waits `ms` milliseconds, or until `signal` aborts; resolves either way. */
+const pause = (ms: number, signal: AbortSignal): Promise<void> =>
+  delay(ms, undefined, { signal }).catch((e: unknown) => { if (!signal.aborted) throw e; });
 
 /** JSON lines on stdout: one object per event, with the time in ms. */
 export function jsonLog(event: string, fields: Record<string, unknown> = {}): void {
@@ -129,12 +127,12 @@ export function startWorker(opts: WorkerOptions): RunningWorker {
           if (reaped) log('jobs.reaped', { workerId, count: reaped });
         }
         const job = await claimJob(opts.db, { workerId, leaseMs });
-        if (!job) { await sleep(pollMs, stopping.signal); continue; }
+        if (!job) { await pause(pollMs, stopping.signal); continue; }
         await runOne(job);
       } catch (e) {
         // the database was unreachable or busy for too long: say so, wait, and try again
         log('worker.error', { workerId, error: describe(e), busy: e instanceof DatabaseBusyError });
-        await sleep(pollMs, stopping.signal);
+        await pause(pollMs, stopping.signal);
       }
     }
   }
