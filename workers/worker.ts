@@ -15,7 +15,7 @@
  */
 import { closeDb, getDb } from '@/db/client';
 import { JOB_KINDS } from '@/db/queries/jobs';
-import { startMailDelivery } from '@/lib/services/share-mail';
+import { startMailDelivery } from '@/lib/services/mail-delivery';
 import { getStorage, LocalStorage } from '@/lib/storage';
 import { runProbe } from './probe';
 import { jsonLog, startWorker, type JobHandler } from './run';
@@ -44,7 +44,7 @@ async function main() {
     const swept = await storage.sweepTemp().catch(() => 0);
     if (swept) jsonLog('storage.swept', { files: swept });
   }
-  // the outbox (report links, invitations, password resets): see lib/services/share-mail.ts
+  // the outbox (report links, invitations, password resets): see lib/services/mail-delivery.ts
   const mail = await startMailDelivery(db, { log: jsonLog });
   // opencv-wasm and the analysis code load once per process, before the first job rather than inside it
   const t0 = performance.now();

@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { AppShell } from '@/components/AppShell';
 import { getDb } from '@/db/client';
 import { requireActor } from '@/lib/auth/session';
-import { listOutbox } from '@/lib/services/share-outbox';
+import { listOutbox } from '@/lib/services/dev-outbox';
 import { orNotFound } from '@/lib/http/not-found';
 
 export const metadata: Metadata = { title: 'Outbox (development)' };

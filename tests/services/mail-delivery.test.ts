@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Db } from '@/db/client';
 import { getOutgoingMail } from '@/db/queries/mail';
 import { listLocalMail, passwordResetMail, queueMail, startLocalSmtp, type LocalSmtpServer } from '@/lib/mail';
-import { mailEnv, startMailDelivery } from '@/lib/services/share-mail';
+import { mailEnv, startMailDelivery } from '@/lib/services/mail-delivery';
 import { migratedDb, tempDir } from '@/tests/mail/helpers';
 
 let db: Db;
