@@ -1,11 +1,13 @@
 /**
  * Plane-to-plane homography: normalised direct linear transform (Hartley & Zisserman, Multiple View Geometry,
  * 2nd ed., alg. 4.2) followed by a Gauss–Newton/Levenberg–Marquardt refinement of the transfer error in the
- * destination plane. Frames are the caller's: `src` and `dst` are any two planar frames (e.g. bed mm → image px);
- * H maps src to dst in homogeneous coordinates, row-major, scaled so H[8] = 1.
+ * destination plane; the exact four-point case, the inverse and the local scale. Frames are the caller's: `src`
+ * and `dst` are any two planar frames (e.g. bed mm → image px, reference-square mm → image px); H maps src to dst
+ * in homogeneous coordinates, row-major, scaled so H[8] = 1.
  */
 import { applyH, mat3Inv, mat3Mul, normaliseH, smallestEigenvector, solveSpd, type Mat3 } from './linalg';
 
+export { applyH, type Mat3 };
 export type Pt = readonly [number, number];
 
 /** Similarity that moves points' centroid to 0 and their mean distance to √2 (Hartley normalisation). */
@@ -93,6 +95,43 @@ export function refineHomography(h0: Mat3, src: readonly Pt[], dst: readonly Pt[
     if (!accepted || gain <= 1e-14 * (c0 + 1e-300)) break;
   }
   return normaliseH(mat3Mul(mat3Inv(td), mat3Mul(h, ts)));
+}
+
+/**
+ * The homography mapping the four points `src[i]` exactly onto `dst[i]` (normalised DLT with four pairs).
+ * Throws a RangeError when either quadrilateral is degenerate (three points collinear, or a point repeated).
+ */
+export function homographyFrom4(src: readonly Pt[], dst: readonly Pt[]): Mat3 {
+  if (src.length !== 4 || dst.length !== 4) throw new RangeError('homographyFrom4 needs exactly 4 point pairs');
+  if (hasCollinearTriple(src) || hasCollinearTriple(dst)) throw new RangeError('degenerate homography: three of the four points are collinear');
+  const h = homographyDlt(src, dst);
+  if (!h.every(Number.isFinite)) throw new RangeError('degenerate homography');
+  return h;
+}
+
+/** True when some three of the points are collinear to within 1e-9 of the squared spread (scale-free). */
+function hasCollinearTriple(p: readonly Pt[]): boolean {
+  let spread = 0;
+  for (let i = 0; i < p.length; i++) for (let j = i + 1; j < p.length; j++) spread = Math.max(spread, (p[i]![0] - p[j]![0]) ** 2 + (p[i]![1] - p[j]![1]) ** 2);
+  if (!(spread > 0)) return true;
+  for (let i = 0; i < p.length; i++)
+    for (let j = i + 1; j < p.length; j++)
+      for (let k = j + 1; k < p.length; k++) {
+        const cross = (p[j]![0] - p[i]![0]) * (p[k]![1] - p[i]![1]) - (p[j]![1] - p[i]![1]) * (p[k]![0] - p[i]![0]);
+        if (Math.abs(cross) <= 1e-9 * spread) return true;
+      }
+  return false;
+}
+
+/** The inverse mapping dst → src, scaled so H[8] = 1. */
+export function invertHomography(h: Mat3): Mat3 {
+  return normaliseH(mat3Inv(h));
+}
+
+/** Local linear scale of the mapping at (x, y): √|det J|, destination units per source unit (e.g. px per mm). */
+export function homographyScale(h: Mat3, x: number, y: number): number {
+  const [a, b, c, d] = homographyJacobian(h, x, y);
+  return Math.sqrt(Math.abs(a * d - b * c));
 }
 
 /** DLT then refinement. */

@@ -12,7 +12,7 @@
  * mm (see target.ts). `H` maps the square frame (mm) to image px.
  */
 import { getCv, matFromGrey, type CvMat } from './cv';
-import { applyH, invertH, localScale, type H3 } from './homography';
+import { applyH, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { sampleGrey } from './square';
 
 export type CentreMethod = 'centroid' | 'edge';
@@ -114,8 +114,8 @@ interface Refined {
 }
 
 /** Refines one hole on the bed plane. Returns null when it is not a dark round hole. */
-export function refineHole(grey: Float32Array, w: number, h: number, H: H3, x0: number, y0: number, rMm: number, method: CentreMethod): Refined | null {
-  const s = localScale(H, x0, y0);
+export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0: number, y0: number, rMm: number, method: CentreMethod): Refined | null {
+  const s = homographyScale(H, x0, y0);
   const d = 1 / s; // mm per image px here
   const [h0, h1, h2, h3, h4, h5, h6, h7, h8] = H as [number, number, number, number, number, number, number, number, number];
   const at = (x: number, y: number) => {
@@ -234,16 +234,16 @@ export async function findHoles(
   h: number,
   small: { data: Uint8Array; width: number; height: number },
   factor: number,
-  H: H3,
+  H: Mat3,
   families: FamilySize[],
   search: HoleSearch = {},
 ): Promise<HoleDetection[]> {
   const method = search.method ?? 'centroid';
   const tol = search.sizeTolerance ?? 0.15;
-  const Hi = invertH(H);
+  const Hi = invertHomography(H);
   const { cv } = await getCv();
   const centre = applyH(Hi, w / 2, h / 2);
-  const s0 = localScale(H, centre[0], centre[1]);
+  const s0 = homographyScale(H, centre[0], centre[1]);
   const maxD = Math.max(...families.map((f) => f.diameterMm));
   const block = Math.max(11, Math.round((2.6 * maxD * s0) / factor)) | 1;
   // Bright things (the paper sheet, flanges, chips) would raise the local mean and make the surface next to them
@@ -300,7 +300,7 @@ export async function findHoles(
           const v = (m.m01 / m.m00) * factor + (factor - 1) / 2;
           const b = applyH(Hi, u, v);
           if (search.exclude && insidePoly(search.exclude, b[0], b[1])) continue;
-          const sl = localScale(H, b[0], b[1]) / factor;
+          const sl = homographyScale(H, b[0], b[1]) / factor;
           const peri = cv.arcLength(c, true) as number;
           const circ = (4 * Math.PI * area) / (peri * peri);
           if (circ < 0.5) continue;
@@ -349,7 +349,7 @@ export async function findHoles(
     }
     if (!fam || err > tol) continue;
     const p = applyH(H, r.cx, r.cy);
-    const s = localScale(H, r.cx, r.cy);
+    const s = homographyScale(H, r.cx, r.cy);
     const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (tol * 1.5)) * r.coverage;
     out.push({ x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast });
   }

@@ -6,7 +6,7 @@
 import type { AnalyzeOptions } from '@/lib/geometry';
 import type { Pattern, PhotoQuality, Points, Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
-import { homographyFrom4, type H3 } from './homography';
+import { homographyFrom4, type Mat3 } from '@/lib/geometry/homography';
 import { findHoles, type CentreMethod, type FamilySize, type HoleDetection } from './holes';
 import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
 import { measureQuality } from './quality';
@@ -113,7 +113,7 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     };
   }
   const S = opts.referenceMm;
-  let H: H3;
+  let H: Mat3;
   try {
     H = homographyFrom4(targetCornersMm(S), corners);
   } catch {

@@ -24,7 +24,7 @@
  */
 import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
 import { getCv, matFromGrey, type CvMat } from './cv';
-import { applyH, homographyFrom4, invertH, localScale, type H3 } from './homography';
+import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { sampleGrey, type Corners } from './square';
 import { FRAME_FRACTION, targetCornersMm } from './target';
 
@@ -253,9 +253,9 @@ interface HoleStats {
 }
 
 /** Dark blobs of a family's size on the reduced image, away from the target sheet and the border. */
-async function holeCandidates(q: QualityInput, H: H3): Promise<{ cands: { x: number; y: number; dMm: number }[]; atBorder: number }> {
+async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: number; y: number; dMm: number }[]; atBorder: number }> {
   const { small, factor } = q;
-  const Hi = invertH(H);
+  const Hi = invertHomography(H);
   const S = q.referenceMm;
   const k = q.pattern.units === 'in' ? 25.4 : 1;
   const fams = q.pattern.families.map((f) => f.holeDiameter * k);
@@ -291,7 +291,7 @@ async function holeCandidates(q: QualityInput, H: H3): Promise<{ cands: { x: num
       const p = applyH(Hi, x, y);
       // the sheet around the target (up to A4 paper) is no place for holes
       if (p[0] > -0.6 * S && p[0] < 1.6 * S && p[1] > -0.6 * S && p[1] < 1.6 * S) continue;
-      const s = localScale(H, p[0], p[1]) / factor; // reduced px per mm
+      const s = homographyScale(H, p[0], p[1]) / factor; // reduced px per mm
       if (!(s > 0)) continue;
       const aspect = Math.max(bw, bh) / Math.max(1, Math.min(bw, bh));
       let best = -1;
@@ -326,7 +326,7 @@ async function holeCandidates(q: QualityInput, H: H3): Promise<{ cands: { x: num
 }
 
 /** Darkness moments of one hole at full resolution, less a disc's seen through the target's perspective. */
-function holeMoments(q: QualityInput, H: H3, Hi: H3, c: { x: number; y: number; dMm: number }): HoleStats | null {
+function holeMoments(q: QualityInput, H: Mat3, Hi: Mat3, c: { x: number; y: number; dMm: number }): HoleStats | null {
   const { grey, width: w, height: h } = q;
   const p = applyH(Hi, c.x, c.y);
   // Jacobian of mm → px at the hole
@@ -442,7 +442,7 @@ function holeMoments(q: QualityInput, H: H3, Hi: H3, c: { x: number; y: number; 
   return { dev: [(ex - ey) / 2, exy], contrast, noise: resid.length > 20 ? Math.sqrt(resid.reduce((a, v) => a + v * v, 0) / resid.length) : robustSd(ringEnc), surroundClipped: ringEnc.filter((v) => v >= CLIP_HI).length / ringEnc.length, diameterPx: 2 * rPx };
 }
 
-function tiltFrom(H: H3, w: number, h: number, f: number): number {
+function tiltFrom(H: Mat3, w: number, h: number, f: number): number {
   const kc = (j: number) => [(H[j]! - (w / 2) * H[6 + j]!) / f, (H[3 + j]! - (h / 2) * H[6 + j]!) / f, H[6 + j]!];
   const r1 = kc(0);
   const r2 = kc(1);
@@ -489,7 +489,7 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const corners = q.corners;
   const S = q.referenceMm;
   const H = homographyFrom4(targetCornersMm(S), corners);
-  const Hi = invertH(H);
+  const Hi = invertHomography(H);
   const sides = [0, 1, 2, 3].map((i) => Math.hypot(corners[(i + 1) % 4]![0] - corners[i]![0], corners[(i + 1) % 4]![1] - corners[i]![1]));
   const sidePx = sides.reduce((a, b) => a + b, 0) / 4;
   measured.targetSidePx = round(sidePx, 10);
@@ -518,7 +518,7 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const good = edges.filter((e) => Number.isFinite(e.varPx2));
   const k = q.pattern.units === 'in' ? 25.4 : 1;
   const smallestMm = Math.min(...q.pattern.families.map((fm) => fm.holeDiameter * k));
-  const sCentre = localScale(H, S / 2, S / 2); // px per mm at the target
+  const sCentre = homographyScale(H, S / 2, S / 2); // px per mm at the target
   measured.holeDiameterPx = round(smallestMm * sCentre, 10);
   if (good.length >= 4) {
     const v = good.map((e) => e.varPx2 - ((L * L) / 12) * (e.n[0] * d[0] + e.n[1] * d[1]) ** 2);

@@ -9,7 +9,7 @@
  * photo's bottom-left.
  */
 import { getCv, matFromGrey, type CvMat } from './cv';
-import { applyH, homographyFrom4 } from './homography';
+import { applyH, homographyFrom4 } from '@/lib/geometry/homography';
 import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION } from './target';
 
 export type Corners = [[number, number], [number, number], [number, number], [number, number]];

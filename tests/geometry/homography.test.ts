@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { loadCv } from './opencv';
-import { fitHomography, homographyDlt, type Pt } from '@/lib/geometry/homography';
+import { fitHomography, homographyDlt, homographyFrom4, homographyScale, invertHomography, type Pt } from '@/lib/geometry/homography';
 import { applyH } from '@/lib/geometry/linalg';
 import { mulberry32, normalFrom } from '@/lib/geometry/random';
 
@@ -42,5 +42,47 @@ describe('homography', () => {
       maxDiff = Math.max(maxDiff, Math.hypot(a[0] - b[0], a[1] - b[1]));
     }
     expect(maxDiff).toBeLessThan(0.02);
+  });
+});
+
+describe('four-point homography, inverse and local scale', () => {
+  // Source: Hartley & Zisserman, Multiple View Geometry, 2nd ed., §2.3 (four pairs, no three collinear, fix H
+  // exactly) and §4.1; the Jacobian of x ↦ Hx/(h₃ᵀx) from the quotient rule.
+  const src: Pt[] = [[0, 0], [50, 0], [50, 50], [0, 50]];
+  const dst: Pt[] = [[1012, 804], [1620, 790], [1655, 1420], [980, 1390]];
+
+  it('maps each of the four source points exactly onto its destination', () => {
+    const h = homographyFrom4(src, dst);
+    src.forEach((p, i) => { const q = applyH(h, p[0], p[1]); expect(q[0]).toBeCloseTo(dst[i]![0], 8); expect(q[1]).toBeCloseTo(dst[i]![1], 8); });
+  });
+
+  it('agrees with opencv-wasm getPerspectiveTransform', () => {
+    // Independent library: OpenCV 4.3 (opencv-wasm) getPerspectiveTransform, the exact four-point solve.
+    const cv = loadCv();
+    const sm = cv.matFromArray(4, 1, cv.CV_32FC2, src.flat());
+    const dm = cv.matFromArray(4, 1, cv.CV_32FC2, dst.flat());
+    const H = cv.getPerspectiveTransform(sm, dm);
+    const theirs = Array.from(H.data64F as Float64Array);
+    sm.delete(); dm.delete(); H.delete();
+    const ours = homographyFrom4(src, dst);
+    theirs.forEach((v, i) => expect(ours[i]!).toBeCloseTo(v / theirs[8]!, 6));
+  });
+
+  it('refuses a quadrilateral with three collinear corners', () => {
+    expect(() => homographyFrom4([[0, 0], [1, 0], [2, 0], [0, 1]], dst)).toThrow(RangeError);
+  });
+
+  it('inverts back to the source points', () => {
+    const hi = invertHomography(homographyFrom4(src, dst));
+    expect(hi[8]).toBe(1);
+    dst.forEach((p, i) => { const q = applyH(hi, p[0], p[1]); expect(q[0]).toBeCloseTo(src[i]![0], 8); expect(q[1]).toBeCloseTo(src[i]![1], 8); });
+  });
+
+  it('gives a scale equal to the square root of the area ratio of a small patch', () => {
+    const h = homographyFrom4(src, dst);
+    const e = 1e-4, [x, y] = [20, 30];
+    const a = applyH(h, x, y), b = applyH(h, x + e, y), c = applyH(h, x, y + e);
+    const area = Math.abs((b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])) / (e * e);
+    expect(homographyScale(h, x, y)).toBeCloseTo(Math.sqrt(area), 4);
   });
 });
