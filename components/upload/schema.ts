@@ -11,6 +11,7 @@ export const REFERENCE_CHOICES = [
   { label: '100 mm', mm: 100, units: 'mm' as const, value: 100 },
   { label: '150 mm', mm: 150, units: 'mm' as const, value: 150 },
   { label: '4 in', mm: 4 * MM_PER_IN, units: 'in' as const, value: 4 },
+  { label: '250 mm', mm: 250, units: 'mm' as const, value: 250 },
 ];
 
 /** Smallest and largest reference square the analysis takes, mm (the API refuses above 2000 mm). */

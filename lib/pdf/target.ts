@@ -25,19 +25,31 @@ import {
 } from 'pdf-lib';
 import { z } from 'zod';
 import { MM_PER_IN } from '@/lib/geometry/contract';
-import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION, PAPER_MARGIN_FRACTION } from '@/lib/vision/target';
+import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION, paperMarginMm } from '@/lib/vision/target';
 import { wrapText } from './text';
-import { mmToPt, paperSizePt, PAPERS } from './units';
+import { mmToPt, PAPER_NAME, paperSizePt, PAPERS, type Paper } from './units';
 
-export const TARGET_SIZES = ['100mm', '150mm', '4in'] as const;
+export const TARGET_SIZES = ['100mm', '150mm', '4in', '250mm'] as const;
 export type TargetSize = (typeof TARGET_SIZES)[number];
 
 /** Stated outer size of each printable target, mm (4 in = 101.6 mm exactly). */
-export const TARGET_SIZE_MM: Record<TargetSize, number> = { '100mm': 100, '150mm': 150, '4in': 4 * MM_PER_IN };
+export const TARGET_SIZE_MM: Record<TargetSize, number> = { '100mm': 100, '150mm': 150, '4in': 4 * MM_PER_IN, '250mm': 250 };
 
-/** The options as they arrive from a request (`?size=150mm&paper=a4`). */
-export const TargetPdfOptionsSchema = z.object({ size: z.enum(TARGET_SIZES), paper: z.enum(PAPERS) });
+/** The papers each target is printed on: the small ones on A4 and Letter, the 250 mm one on A3 and Tabloid. */
+export const TARGET_PAPERS: Record<TargetSize, readonly Paper[]> = { '100mm': ['a4', 'letter'], '150mm': ['a4', 'letter'], '4in': ['a4', 'letter'], '250mm': ['a3', 'tabloid'] };
+
+/** The options as they arrive from a request (`?size=150mm&paper=a4`); a query may leave either out (`TargetPdfQuerySchema`). */
+export const TargetPdfOptionsSchema = z.object({ size: z.enum(TARGET_SIZES), paper: z.enum(PAPERS) }).refine((o) => TARGET_PAPERS[o.size].includes(o.paper), {
+  message: 'that target is not printed on that paper: 100 mm, 150 mm and 4 in on A4 or Letter, 250 mm on A3 or Tabloid',
+  path: ['paper'],
+});
 export type TargetPdfOptions = z.infer<typeof TargetPdfOptionsSchema>;
+
+/** A request's query: the size defaults to 150 mm, the paper to the size's first (A4, or A3 for 250 mm). */
+export const TargetPdfQuerySchema = z
+  .object({ size: z.enum(TARGET_SIZES).optional(), paper: z.enum(PAPERS).optional() })
+  .transform((q) => ({ size: q.size ?? '150mm', paper: q.paper ?? TARGET_PAPERS[q.size ?? '150mm'][0]! }))
+  .pipe(TargetPdfOptionsSchema);
 
 /** A download name such as `gridproof-target-150mm-a4.pdf`. */
 export function targetPdfFilename(options: TargetPdfOptions): string {
@@ -120,7 +132,7 @@ export async function renderTargetPdfWithLayout(input: TargetPdfOptions): Promis
   const sizeMm = TARGET_SIZE_MM[options.size];
   const [pageW, pageH] = paperSizePt(options.paper);
   const doc = await PDFDocument.create();
-  const paperName = options.paper === 'a4' ? 'A4' : 'US Letter';
+  const paperName = PAPER_NAME[options.paper];
   doc.setTitle(`Gridproof reference target, ${options.size === '4in' ? '4 in' : `${sizeMm} mm`}, ${paperName}`);
   doc.setSubject('Printable reference square for photographing a CNC fixture bed');
   doc.setCreator('Gridproof');
@@ -136,7 +148,7 @@ export async function renderTargetPdfWithLayout(input: TargetPdfOptions): Promis
   const margin = mmToPt(PAGE_MARGIN_MM);
   const textWidth = pageW - 2 * margin;
   const side = mmToPt(sizeMm);
-  const clear = PAPER_MARGIN_FRACTION * side + mmToPt(1);
+  const clear = mmToPt(paperMarginMm(sizeMm) + 1);
   const ink = rgb(0, 0, 0);
   const grey = rgb(0.25, 0.25, 0.25);
   let y = pageH - margin;

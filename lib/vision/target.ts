@@ -10,8 +10,9 @@
  * - a black square frame, outer edge S × S, stroke `FRAME_FRACTION` × S wide (the inner edge is a white square);
  * - a filled black orientation mark, a square of side `MARK_FRACTION` × S, centred at
  *   (`MARK_CENTRE_FRACTION` × S, `MARK_CENTRE_FRACTION` × S), i.e. inside the white interior next to corner 0;
- * - white paper of at least `PAPER_MARGIN_FRACTION` × S beyond the frame on every side (the detector looks for
- *   a lighter surround); the printed check ruler belongs in that margin, outside the frame.
+ * - white paper of at least `paperMarginMm(S)` beyond the frame on every side (`PAPER_MARGIN_FRACTION` × S, at most
+ *   `PAPER_MARGIN_MAX_MM`; the detector looks for a lighter surround a few per cent of S wide); the printed check
+ *   ruler lies outside that margin.
  */
 
 /** Width of the black frame stroke as a fraction of the outer size. */
@@ -22,6 +23,12 @@ export const MARK_FRACTION = 0.1;
 export const MARK_CENTRE_FRACTION = 0.27;
 /** Minimum white margin around the frame, as a fraction of the outer size. */
 export const PAPER_MARGIN_FRACTION = 0.12;
+/** Largest white margin a target needs, mm (a 250 mm square keeps 14.7 mm to the edges of Tabloid paper). */
+export const PAPER_MARGIN_MAX_MM = 14;
+/** White margin kept clear around the frame of a target of outer size `sizeMm`, mm. */
+export function paperMarginMm(sizeMm: number): number {
+  return Math.min(PAPER_MARGIN_FRACTION * sizeMm, PAPER_MARGIN_MAX_MM);
+}
 /** Default outer size, mm (fits on A4 or US Letter with its margin and ruler). */
 export const DEFAULT_TARGET_MM = 150;
 

@@ -1,8 +1,8 @@
 /**
  * The printable target measured from the PDF bytes. Units: 1 in = 25.4 mm exactly (international inch,
  * 1959); PDF default user space has 72 units per inch, 1 pt = 1/72 in (ISO 32000-1 §8.3.2.3), unless a page
- * sets UserUnit (ISO 32000-1 Table 30). Paper: A4 = 210 × 297 mm (ISO 216); US Letter = 8.5 × 11 in (ANSI/ASME
- * Y14.1). Expected values below are computed from those definitions and the stated sizes, never read from the
+ * sets UserUnit (ISO 32000-1 Table 30). Paper: A4 = 210 × 297 mm and A3 = 297 × 420 mm (ISO 216); US Letter =
+ * 8.5 × 11 in and Tabloid = 11 × 17 in (ANSI/ASME Y14.1). Expected values below are computed from those definitions and the stated sizes, never read from the
  * generator; the geometry is read by interpreting the page's content stream (tests/pdf/pdf-reader.ts) and,
  * when poppler's pdftoppm is installed, by rasterising the page and measuring pixels.
  */
@@ -13,21 +13,26 @@ import { join } from 'node:path';
 import { PDFDocument, PDFName, StandardFonts } from 'pdf-lib';
 import { describe, expect, it } from 'vitest';
 import { renderTargetPdf } from '@/lib/pdf/target';
-import { PAPER_MARGIN_FRACTION, targetInkAt } from '@/lib/vision/target';
+import { paperMarginMm, targetInkAt } from '@/lib/vision/target';
 import { blackAt, bounds, readPage, type PageContent, type Pt } from './pdf-reader';
 
 const PT_PER_IN = 72; // ISO 32000-1
 const MM_PER_IN = 25.4; // exact by definition
 const ptOfMm = (mm: number) => (mm / MM_PER_IN) * PT_PER_IN;
 
-const SIZES = [
-  { size: '100mm', statedPt: ptOfMm(100), label: '100 mm' },
-  { size: '150mm', statedPt: ptOfMm(150), label: '150 mm' },
-  { size: '4in', statedPt: 4 * PT_PER_IN, label: '4 in' },
-] as const;
-const PAPERS = [
+const SMALL_PAPERS = [
   { paper: 'a4', widthPt: ptOfMm(210), heightPt: ptOfMm(297) },
   { paper: 'letter', widthPt: 8.5 * PT_PER_IN, heightPt: 11 * PT_PER_IN },
+] as const;
+const LARGE_PAPERS = [
+  { paper: 'a3', widthPt: ptOfMm(297), heightPt: ptOfMm(420) },
+  { paper: 'tabloid', widthPt: 11 * PT_PER_IN, heightPt: 17 * PT_PER_IN },
+] as const;
+const SIZES = [
+  { size: '100mm', statedPt: ptOfMm(100), label: '100 mm', papers: SMALL_PAPERS },
+  { size: '150mm', statedPt: ptOfMm(150), label: '150 mm', papers: SMALL_PAPERS },
+  { size: '4in', statedPt: 4 * PT_PER_IN, label: '4 in', papers: SMALL_PAPERS },
+  { size: '250mm', statedPt: ptOfMm(250), label: '250 mm', papers: LARGE_PAPERS },
 ] as const;
 
 /** The square frame: the black filled path with the largest outline, and that outline's bounds. */
@@ -85,8 +90,8 @@ function outerEdgesPx(profile: number[]): [number, number] {
 }
 
 describe('printable target PDF', () => {
-  for (const { size, statedPt, label } of SIZES) {
-    for (const { paper, widthPt, heightPt } of PAPERS) {
+  for (const { size, statedPt, label, papers } of SIZES) {
+    for (const { paper, widthPt, heightPt } of papers) {
       it(`prints the ${label} square at its stated size on ${paper}`, async () => {
         const pdf = await renderTargetPdf({ size, paper });
         const content = await readPage(pdf);
@@ -141,11 +146,14 @@ describe('printable target PDF', () => {
   it('keeps the white margin around the frame clear of text and ruler, and everything on the page', async () => {
     const scratch = await PDFDocument.create();
     const metrics = { Helvetica: await scratch.embedFont(StandardFonts.Helvetica), 'Helvetica-Bold': await scratch.embedFont(StandardFonts.HelveticaBold) };
-    for (const { size } of SIZES) {
-      for (const { paper, widthPt, heightPt } of PAPERS) {
+    for (const { size, papers } of SIZES) {
+      for (const { paper, widthPt, heightPt } of papers) {
         const content = await readPage(await renderTargetPdf({ size, paper }));
         const sq = findSquare(content);
-        const m = PAPER_MARGIN_FRACTION * (sq.b.maxX - sq.b.minX);
+        const m = ptOfMm(paperMarginMm(((sq.b.maxX - sq.b.minX) / PT_PER_IN) * MM_PER_IN));
+        // The white margin is paper: where the page is narrower than square and margin, the sheet's edge is its end.
+        expect(sq.b.minX - m).toBeGreaterThanOrEqual(-0.01);
+        expect(sq.b.maxX + m).toBeLessThanOrEqual(widthPt + 0.01);
         const zone = { minX: sq.b.minX - m, minY: sq.b.minY - m, maxX: sq.b.maxX + m, maxY: sq.b.maxY + m };
         const overlaps = (r: { minX: number; minY: number; maxX: number; maxY: number }) => r.minX < zone.maxX && r.maxX > zone.minX && r.minY < zone.maxY && r.maxY > zone.minY;
         const inside = (r: { minX: number; minY: number; maxX: number; maxY: number }) => r.minX >= sq.b.minX && r.maxX <= sq.b.maxX && r.minY >= sq.b.minY && r.maxY <= sq.b.maxY;
@@ -186,8 +194,8 @@ describe('printable target PDF', () => {
   });
 
   it('carries a check ruler with millimetre and sixteenth-inch ticks at their true pitch', async () => {
-    for (const { size } of SIZES) {
-      const content = await readPage(await renderTargetPdf({ size, paper: 'letter' }));
+    for (const { size, papers } of SIZES) {
+      const content = await readPage(await renderTargetPdf({ size, paper: papers[0].paper === 'a4' ? 'letter' : 'tabloid' }));
       const strokes = content.paths.filter((p) => p.stroke && !p.fill).map((p) => p.subpaths[0]!);
       const horizontal = strokes.filter((s) => Math.abs(s[0]![1] - s[s.length - 1]![1]) < 1e-6 && Math.abs(s[0]![0] - s[s.length - 1]![0]) > 100);
       const vertical = strokes.filter((s) => Math.abs(s[0]![0] - s[s.length - 1]![0]) < 1e-6);
@@ -211,6 +219,14 @@ describe('printable target PDF', () => {
     }
   });
 
+  it('names the 250 mm target and its large paper on the page', async () => {
+    for (const [paper, name] of [['a3', 'A3'], ['tabloid', 'US Tabloid']] as const) {
+      const all = (await readPage(await renderTargetPdf({ size: '250mm', paper }))).texts.map((t) => t.text).join(' ');
+      // 250 mm / 25.4 mm per in = 9.843 in
+      expect(all).toContain(`250 mm (9.843 in). Paper: ${name}.`);
+    }
+  });
+
   it('tells how to print and measure, and gives the safety caution', async () => {
     const pdf = await renderTargetPdf({ size: '4in', paper: 'a4' });
     const content = await readPage(pdf);
@@ -226,10 +242,10 @@ describe('printable target PDF', () => {
 
   it.skipIf(!pdftoppmAvailable())('rasterised by poppler, the square measures its stated size within 0.1 pt', async () => {
     const dpi = 1440; // 1 px = 0.05 pt
-    for (const { size, statedPt } of SIZES) {
-      const pdf = await renderTargetPdf({ size, paper: 'a4' });
+    for (const { size, statedPt, papers } of SIZES) {
+      const pdf = await renderTargetPdf({ size, paper: papers[0].paper });
       const { b } = findSquare(await readPage(pdf)); // only to aim the windows; the measure is the pixels'
-      const pageH = PAPERS[0].heightPt;
+      const pageH = papers[0].heightPt;
       const toPx = (pt: number) => Math.round((pt * dpi) / PT_PER_IN);
       const pad = 20;
       // A horizontal strip through the middle, then a vertical one.
@@ -254,6 +270,10 @@ describe('printable target PDF', () => {
 describe('printable target options', () => {
   it('refuses sizes and papers it does not print', async () => {
     await expect(renderTargetPdf({ size: '120mm' as never, paper: 'a4' })).rejects.toThrow();
-    await expect(renderTargetPdf({ size: '150mm', paper: 'a3' as never })).rejects.toThrow();
+    await expect(renderTargetPdf({ size: '150mm', paper: 'a5' as never })).rejects.toThrow();
+    // a 250 mm square with its margin (310 mm) does not fit across A4 (210 mm) or Letter (215.9 mm)
+    await expect(renderTargetPdf({ size: '250mm', paper: 'a4' })).rejects.toThrow(/A3 or Tabloid/);
+    await expect(renderTargetPdf({ size: '250mm', paper: 'letter' })).rejects.toThrow(/A3 or Tabloid/);
+    await expect(renderTargetPdf({ size: '150mm', paper: 'a3' })).rejects.toThrow();
   });
 });

@@ -1,9 +1,9 @@
 import { route } from '@/lib/http/route';
-import { renderTargetPdf, targetPdfFilename, TargetPdfOptionsSchema } from '@/lib/pdf';
+import { renderTargetPdf, targetPdfFilename, TargetPdfQuerySchema } from '@/lib/pdf';
 
-const Query = TargetPdfOptionsSchema.partial().transform((q) => ({ size: q.size ?? '150mm', paper: q.paper ?? 'a4' }));
+const Query = TargetPdfQuerySchema;
 
-/** GET /api/target.pdf?size=100mm|150mm|4in&paper=a4|letter → the printable reference target (public). */
+/** GET /api/target.pdf?size=100mm|150mm|4in&paper=a4|letter or size=250mm&paper=a3|tabloid → the printable reference target (public). */
 export const GET = route({ auth: 'none', query: Query }, async ({ query }) => {
   const bytes = await renderTargetPdf(query);
   return new Response(Buffer.from(bytes), {

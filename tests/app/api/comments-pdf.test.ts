@@ -89,5 +89,10 @@ describe('PDFs', () => {
     expect(height).toBeCloseTo((297 / 25.4) * 72, 1);
     const bad = await call(targetPdf, { path: '/api/target.pdf?size=7cm' });
     expect(bad.status).toBe(422);
+    // the 250 mm target comes on A3 by default (ISO 216: 297 × 420 mm), and is refused on A4
+    const large = await PDFDocument.load(new Uint8Array(await (await targetPdf(new Request('http://gridproof.test/api/target.pdf?size=250mm'))).arrayBuffer()));
+    expect(large.getPage(0).getSize().width).toBeCloseTo((297 / 25.4) * 72, 1);
+    expect(large.getPage(0).getSize().height).toBeCloseTo((420 / 25.4) * 72, 1);
+    expect((await call(targetPdf, { path: '/api/target.pdf?size=250mm&paper=a4' })).status).toBe(422);
   });
 });
