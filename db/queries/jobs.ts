@@ -16,6 +16,7 @@
  * Times are integer milliseconds since the Unix epoch (UTC). No sessions or cookies: the worker imports this.
  */
 import { randomBytes, randomUUID } from 'node:crypto';
+import { setTimeout as delay } from 'node:timers/promises';
 import { and, asc, eq, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { checks, jobs } from '@/db/schema';
@@ -66,8 +67,6 @@ export function isBusyError(error: unknown): boolean {
   return false;
 }
 
-const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
-
 /**
  * Runs `fn`, retrying it on SQLITE_BUSY / SQLITE_LOCKED for up to `budgetMs` (short randomised pauses), then
  * throws a `DatabaseBusyError` that says what was being attempted. Other errors pass through at once.
@@ -88,7 +87,7 @@ export async function withBusyRetry<T>(what: string, fn: () => Promise<T>, opts:
       await resetAfterBusy(opts.db);
       const waited = Date.now() - started;
       if (waited >= budgetMs) throw new DatabaseBusyError(what, waited, e);
-      await sleep(Math.min(25 * 2 ** attempt, 250) * (0.5 + Math.random()));
+      await delay(Math.min(25 * 2 ** attempt, 250) * (0.5 + Math.random()));
     }
   }
 }

@@ -9,6 +9,7 @@
  * Vision and fit are given as `AnalysisDeps` (bound to lib/vision and lib/geometry in lib/checks/pipeline.ts),
  * which keeps this module about order, progress, errors and storage of results.
  */
+import { setTimeout as delay } from 'node:timers/promises';
 import { ZodError } from 'zod';
 import type { Db } from '@/db/client';
 import { ANALYSIS_VERSION, getCheckById, saveAnalysisResult, setCheckQuality, setCheckStage } from '@/db/queries/checks';
@@ -74,8 +75,6 @@ export interface JobContext {
   log?: (event: string, detail: Record<string, unknown>) => void;
 }
 
-const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
-
 /** Maps vision's stage names onto ours (anything about the square / the holes). */
 function visionStage(name: string): Stage {
   const n = name.toLowerCase();
@@ -139,7 +138,7 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
     if (e instanceof BlobNotFoundError) throw new PermanentJobError('The photo file is missing from storage. Upload the photo again.', { cause: e });
     throw e;
   }
-  if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
+  if (ctx.testDelayMs > 0) await delay(ctx.testDelayMs);
   ctx.assertHeld();
 
   const corners = check.cornersJson ? CornersSchema.parse(JSON.parse(check.cornersJson)) : null;
@@ -193,7 +192,7 @@ export async function runCheckRefit(ctx: JobContext, deps: Pick<AnalysisDeps, 'a
     ctx.log?.('job.stage', { checkId: check.id, stage, progress: p });
     writes = writes.then(() => setCheckStage(ctx.db, check.id, held, stage, p)).catch(() => undefined);
   };
-  if (ctx.testDelayMs > 0) await sleep(ctx.testDelayMs);
+  if (ctx.testDelayMs > 0) await delay(ctx.testDelayMs);
   // The edited detections carry the corners the reviewer placed.
   await fitAndSave(ctx, deps, check.id, pattern, parsed.data, fitOptionsOf(check), true, report, () => writes);
 }

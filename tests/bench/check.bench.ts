@@ -12,6 +12,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { setTimeout as delay } from 'node:timers/promises';
 import { eq } from 'drizzle-orm';
 import { migrateDb, openDb } from '@/db/client';
 import { beds, checks, memberships, patterns, users, workshops } from '@/db/schema';
@@ -66,7 +67,7 @@ async function waitDone(id: string) {
   for (;;) {
     const c = await getCheckById(db, id);
     if (c && ['done', 'needs-review', 'failed'].includes(c.status)) return c;
-    await new Promise((r) => setTimeout(r, 10));
+    await delay(10);
   }
 }
 

@@ -19,6 +19,7 @@ import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { setTimeout as delay } from 'node:timers/promises';
 import autocannon from 'autocannon';
 import { closeDb, getDb, migrateDb } from '@/db/client';
 import { checks, jobs } from '@/db/schema';
@@ -81,7 +82,7 @@ for (let i = 0; ; i++) {
     if (r.status < 500) break;
   } catch { /* not up yet */ }
   if (i > 300 || server.exitCode !== null) throw new Error(`the web server did not come up: ${serverErr.slice(-2000)}`);
-  await new Promise((r) => setTimeout(r, 200));
+  await delay(200);
 }
 
 async function hammer(path: string, headers: Record<string, string>) {
@@ -166,7 +167,7 @@ for (;;) {
   if (mine.every((r) => terminal.has(r.status))) break;
   if (Date.now() - t0 > 15 * 60_000) throw new Error('queue did not drain in 15 min');
   if (workers.every((w) => w.exitCode !== null)) throw new Error('both workers exited');
-  await new Promise((r) => setTimeout(r, 100));
+  await delay(100);
 }
 const elapsedS = (Date.now() - t0) / 1000;
 for (const w of workers) w.kill('SIGTERM');

@@ -9,6 +9,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { setTimeout as delay } from 'node:timers/promises';
 import { eq, sql } from 'drizzle-orm';
 import { migrateDb, openDb } from '@/db/client';
 import { auditEvents, jobs } from '@/db/schema';
@@ -67,7 +68,7 @@ t0 = performance.now();
 for (;;) {
   const [row] = await db.select({ n: sql<number>`count(*)` }).from(jobs).where(eq(jobs.status, 'done'));
   if (Number(row?.n) === N) break;
-  await new Promise((r) => setTimeout(r, 20));
+  await delay(20);
 }
 const twoProc = N / ((performance.now() - t0) / 1000);
 await Promise.all(procs.map((p) => new Promise((r) => { p.on('exit', r); p.kill('SIGTERM'); })));

@@ -2,6 +2,7 @@
  * The database client on a local file: writes of one process queue behind its open transaction instead of
  * blocking the event loop in SQLite's busy wait (which the driver runs synchronously) and then failing.
  */
+import { setTimeout as delay } from 'node:timers/promises';
 import { describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
 import { tempDb } from '../queue/helpers';
@@ -16,10 +17,10 @@ describe('local database client', () => {
       const order: string[] = [];
       const tx = t.db.transaction(async (q) => {
         await q.run(sql`INSERT INTO rate_limits (key, count, reset_at) VALUES ('a', 1, 0)`);
-        await new Promise((r) => setTimeout(r, 150));
+        await delay(150);
         order.push('tx');
       });
-      await new Promise((r) => setTimeout(r, 10));
+      await delay(10);
       const write = t.db.run(sql`INSERT INTO rate_limits (key, count, reset_at) VALUES ('b', 1, 0)`).then(() => order.push('write'));
       const read = t.db.all(sql`SELECT count(*) AS n FROM rate_limits`).then(() => { order.push('read'); return Date.now() - t0; });
       const [, , readMs] = await Promise.all([tx, write, read]);

@@ -8,6 +8,7 @@ import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { setTimeout as delay } from 'node:timers/promises';
 import type { TestProject } from 'vitest/node';
 import { migrateDb, openDb } from '@/db/client';
 import { ensureBuilt, ROOT, WEB_SERVER } from '@/lib/cli/start';
@@ -32,7 +33,7 @@ async function waitForServer(url: string, child: { exitCode: number | null }, ti
     } catch {
       /* not listening yet */
     }
-    await new Promise((r) => setTimeout(r, 250));
+    await delay(250);
   }
   throw new Error(`the app did not answer at ${url} within ${timeoutMs} ms`);
 }
@@ -82,7 +83,7 @@ export default async function setup(project: TestProject) {
     if (child.exitCode === null) {
       const exited = new Promise((r) => child.once('exit', r));
       child.kill('SIGTERM');
-      await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))]);
+      await Promise.race([exited, delay(5000)]);
       if (child.exitCode === null) child.kill('SIGKILL');
     }
     if (process.env.E2E_SHOW_SERVER_LOG) console.log(log);

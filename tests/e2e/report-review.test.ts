@@ -12,6 +12,7 @@ import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync }
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { setTimeout as delay } from 'node:timers/promises';
 import { type BrowserContext, type Page } from 'playwright-core';
 import { launchChromium, type LaunchedChromium } from './chromium';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
@@ -78,7 +79,7 @@ async function waitSettled(id: string): Promise<string> {
     if (s.check.status === 'done' || s.check.status === 'needs-review') return s.check.status;
     if (s.check.status === 'failed') throw new Error(`the check failed: ${s.check.error}`);
     if (Date.now() > until) throw new Error(`the check is still ${s.check.status}`);
-    await new Promise((r) => setTimeout(r, 300));
+    await delay(300);
   }
 }
 

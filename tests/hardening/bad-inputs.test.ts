@@ -13,6 +13,7 @@
 import { mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
+import { setTimeout as delay } from 'node:timers/promises';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { POST as bedsPost } from '@/app/api/beds/route';
@@ -82,7 +83,7 @@ async function waitForEnd(id: string, timeoutMs = 90_000): Promise<{ status: str
     const c = (r.json as { check: { status: string; error?: string } }).check;
     if (['done', 'needs-review', 'failed'].includes(c.status)) return c;
     if (Date.now() - t0 > timeoutMs) throw new Error(`check still ${c.status}; worker stderr: ${worker?.stderr.join('').slice(-1500)}`);
-    await new Promise((r) => setTimeout(r, 50));
+    await delay(50);
   }
 }
 

@@ -4,6 +4,7 @@
  * once bytes are on disk, and is killed by the test before it finishes. Args: bedId workshopId userId.
  */
 import { Readable } from 'node:stream';
+import { setTimeout as delay } from 'node:timers/promises';
 import { getDb } from '@/db/client';
 import { intakePhoto } from '@/lib/checks/intake';
 import { LocalStorage } from '@/lib/storage';
@@ -17,7 +18,7 @@ const slow = Readable.from((async function* () {
   for (let i = 0; ; i++) {
     yield Buffer.alloc(32 * 1024, i & 0xff);
     if (i === 3) process.stdout.write('writing\n');
-    await new Promise((r) => setTimeout(r, 25));
+    await delay(25);
   }
 })());
 await intakePhoto(db, storage, { workshopId, bedId, userId, source: slow, referenceMm: 150 });

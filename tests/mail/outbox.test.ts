@@ -12,6 +12,7 @@ import { ensureLocalSmtp, listLocalMail, startLocalSmtp } from '@/lib/mail/local
 import { deliverPendingMail, runMailDelivery } from '@/lib/mail/outbox';
 import { createMailer, type Mailer } from '@/lib/mail/transport';
 import { getEventListeners } from 'node:events';
+import { setTimeout as delay } from 'node:timers/promises';
 import { freePort } from '@/tests/free-port';
 import { migratedDb, tempDir } from './helpers';
 
@@ -149,7 +150,7 @@ describe('mail delivery loop', () => {
     const { id } = await queueOne('loop@example.test');
     const stop = new AbortController();
     const loop = runMailDelivery(db, m.transport, { intervalMs: 20, signal: stop.signal });
-    for (let k = 0; k < 200 && (await getOutgoingMail(db, id))?.status !== 'sent'; k += 1) await new Promise((r) => setTimeout(r, 20));
+    for (let k = 0; k < 200 && (await getOutgoingMail(db, id))?.status !== 'sent'; k += 1) await delay(20);
     stop.abort();
     await loop;
     expect((await getOutgoingMail(db, id))?.status).toBe('sent');
@@ -163,7 +164,7 @@ describe('mail delivery loop', () => {
     const loop = runMailDelivery(db, mailerAt(inbox.port).transport, { intervalMs: 2, signal: stop.signal });
     let most = 0;
     for (let k = 0; k < 40; k += 1) { // about 100 passes of 2 ms
-      await new Promise((r) => setTimeout(r, 5));
+      await delay(5);
       most = Math.max(most, getEventListeners(stop.signal, 'abort').length);
     }
     stop.abort();

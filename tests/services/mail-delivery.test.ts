@@ -1,4 +1,5 @@
 /** The worker's outbox loop: delivers queued mail over real SMTP to the local server, and stops cleanly. */
+import { setTimeout as delay } from 'node:timers/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Db } from '@/db/client';
 import { getOutgoingMail } from '@/db/queries/mail';
@@ -27,7 +28,7 @@ describe('mail delivery loop', () => {
     const id = await queueMail(db, 'someone@example.test', 'password-reset', passwordResetMail({ userName: 'Someone', resetUrl: 'http://gridproof.test/reset-password/x', expiresAt: Date.now() + 3600e3 }));
     const loop = await startMailDelivery(db, { intervalMs: 50, env: { SMTP_HOST: '127.0.0.1', SMTP_PORT: String(server.port), SMTP_SECURE: 'false' } });
     expect(loop).not.toBeNull();
-    for (let i = 0; i < 100 && (await getOutgoingMail(db, id))?.status !== 'sent'; i++) await new Promise((r) => setTimeout(r, 50));
+    for (let i = 0; i < 100 && (await getOutgoingMail(db, id))?.status !== 'sent'; i++) await delay(50);
     await loop!.stop();
     expect((await getOutgoingMail(db, id))?.status).toBe('sent');
     expect((await listLocalMail({ dir: server.dir })).map((m) => m.to.join(','))).toContain('someone@example.test');

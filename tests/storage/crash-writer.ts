@@ -1,5 +1,6 @@
 /** Child process for the crash test: streams slowly into local storage until it is killed. */
 import { Readable } from 'node:stream';
+import { setTimeout as delay } from 'node:timers/promises';
 import { LocalStorage } from '@/lib/storage';
 
 const root = process.argv[2]!;
@@ -8,7 +9,7 @@ const slow = Readable.from((async function* () {
   for (let i = 0; ; i++) {
     yield Buffer.alloc(16 * 1024, i & 0xff);
     if (i === 4) process.stdout.write('writing\n');
-    await new Promise((r) => setTimeout(r, 20));
+    await delay(20);
   }
 })());
 await storage.put(slow, { key: 'photos/w/crash', maxBytes: 10 ** 9 });

@@ -9,6 +9,7 @@ import { createWriteStream, mkdtempSync, readdirSync, rmSync, writeFileSync } fr
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
+import { setTimeout as delay } from 'node:timers/promises';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { BlobNotFoundError, BlobTooLargeError, LocalStorage, S3Storage, storageFromEnv, StorageError, type Storage } from '@/lib/storage';
 import { startFakeS3, type FakeS3 } from './fake-s3';
@@ -18,7 +19,7 @@ const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 /** A stream that yields `chunks` and then fails, like an upload cut off half way. */
 function brokenStream(chunks: Buffer[]): Readable {
   return Readable.from((async function* () {
-    for (const c of chunks) { yield c; await new Promise((r) => setTimeout(r, 5)); }
+    for (const c of chunks) { yield c; await delay(5); }
     throw new Error('connection reset by the client');
   })());
 }

@@ -3,6 +3,7 @@
  * with its user and every workshop of the user (oldest membership first, the role as stored now), nothing for
  * a revoked or expired session, and a session of a user in no workshop still answers (with no workshops).
  */
+import { setTimeout as delay } from 'node:timers/promises';
 import { afterAll, describe, expect, it } from 'vitest';
 import { updateMembershipRole, insertMembership } from '@/db/queries/memberships';
 import { getLiveSessionAuth, insertSession, revokeSession } from '@/db/queries/sessions';
@@ -19,7 +20,7 @@ describe('live session read', () => {
     const user = await insertUser(t.db, { email: uniqueEmail('two-shops'), name: 'Ada', passwordHash: 'x' });
     const first = await insertWorkshop(t.db, { name: 'Lathe corner' });
     await insertMembership(t.db, { workshopId: first.id, userId: user.id, role: 'reviewer' });
-    await new Promise((r) => setTimeout(r, 5)); // a later createdAt for the second membership
+    await delay(5); // a later createdAt for the second membership
     const second = await insertWorkshop(t.db, { name: 'Sign bay' });
     await insertMembership(t.db, { workshopId: second.id, userId: user.id, role: 'owner' });
     const s = await insertSession(t.db, { userId: user.id, expiresAt: Date.now() + 60_000 });
