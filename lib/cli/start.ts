@@ -24,7 +24,7 @@ const NEXT_BIN = join(ROOT, 'node_modules', 'next', 'dist', 'bin', 'next');
 export const WEB_SERVER = join(ROOT, 'lib', 'cli', 'web-server.mjs');
 
 /** What the built app depends on; a change in any of these makes .next stale. */
-const SOURCES = ['app', 'components', 'lib', 'db', 'public', 'next.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json'];
+const SOURCES = ['app', 'components', 'lib', 'db', 'public', 'proxy.ts', 'next.config.mjs', 'package.json', 'package-lock.json', 'tsconfig.json'];
 
 function newestMtime(path: string): number {
   if (!existsSync(path)) return 0;

@@ -164,6 +164,17 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   };
 }
 
+/**
+ * What a share token opens, without reading the report: 'live', 'gone' (revoked or expired: the page and the
+ * JSON answer 410) or 'unknown' (malformed, tampered or never made: 404). One indexed read by the token's hash.
+ */
+export async function shareLinkState(db: Db, token: string, now = Date.now()): Promise<'live' | 'gone' | 'unknown'> {
+  if (!SHARE_TOKEN_PATTERN.test(token)) return 'unknown';
+  const link = await q.findShareLinkByTokenHash(db, hashShareToken(token));
+  if (!link) return 'unknown';
+  return link.revokedAt === null && link.expiresAt > now ? 'live' : 'gone';
+}
+
 // publicReport of each cached parsed report, made once: reportAt hands out the same object per report revision
 const shared = new WeakMap<Report, Report>();
 function sharedReportOf(r: Report): Report {

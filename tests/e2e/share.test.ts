@@ -4,7 +4,8 @@
  * answer the browser receives carries the photo's metadata (its EXIF, written into the uploaded JPEG by
  * sharp, and its file name) or anything else of the workshop (its name, its other bed, its members'
  * addresses, the camera and detector figures of the measurement core's report). The same address answers
- * JSON for Accept: application/json; once revoked, the page is a 404 and the JSON a 410.
+ * JSON for Accept: application/json; once revoked or expired, the page and the JSON both answer 410 Gone
+ * (RFC 9110 §15.5.11: the resource is no longer available and this is likely permanent); an unknown token is a 404.
  * The check's report is the measurement core's own, of a synthetic photo of the bed, written into the app's
  * database file as the worker would.
  */
@@ -16,7 +17,7 @@ import { launchChromium, type LaunchedChromium } from './chromium';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openDb } from '@/db/client';
-import { checks } from '@/db/schema';
+import { checks, shareLinks } from '@/db/schema';
 import { analyzePoints } from '@/lib/geometry';
 import type { Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
@@ -164,13 +165,33 @@ describe('a shared report opened without an account', () => {
     for (const s of SECRETS()) expect(body).not.toContain(s);
   });
 
-  it('is a 404 page and a 410 answer once revoked', async () => {
+  it('answers 410 Gone on the page and the JSON once revoked, 404 for a token never made', async () => {
     expect((await api.req('DELETE', `/api/share-links/${linkId}`)).status).toBe(200);
     const page = await ctx.newPage();
     const res = await page.goto(shareUrl);
-    expect(res?.status()).toBe(404);
+    expect(res?.status()).toBe(410);
+    await page.getByTestId('shared-gone').waitFor();
+    expect(await page.getByTestId('shared-report').count()).toBe(0);
+    // a token of the right form that no link has: not found
+    const unknown = shareUrl.replace(/\/s\/.*$/, `/s/${'A'.repeat(43)}`);
+    const res404 = await page.goto(unknown);
+    expect(res404?.status()).toBe(404);
     await page.getByTestId('shared-missing').waitFor();
     await page.close();
     expect((await fetch(shareUrl, { headers: { accept: 'application/json' } })).status).toBe(410);
+    expect((await fetch(shareUrl)).status).toBe(410);
+  });
+
+  it('answers 410 Gone on the page of a link whose time ran out', async () => {
+    const made = await api.req('POST', `/api/checks/${checkId}/share`, { expiresInDays: 1 });
+    expect(made.status, made.text).toBe(201);
+    const { url, id } = (made.json as { link: { url: string; id: string } }).link;
+    expect((await fetch(url)).status).toBe(200);
+    const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
+    await db.update(shareLinks).set({ expiresAt: Date.now() - 1000 }).where(eq(shareLinks.id, id));
+    db.$client.close();
+    const res = await fetch(url);
+    expect(res.status).toBe(410);
+    expect(await res.text()).toContain('This link no longer opens the report');
   });
 });

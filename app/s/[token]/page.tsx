@@ -4,6 +4,7 @@ import { SharedVerdict } from '@/components/share/SharedVerdict';
 import { getDb } from '@/db/client';
 import { openSharedReport } from '@/lib/services/share';
 import { SharedReportClient } from './SharedReportClient';
+import { AppError } from '@/lib/http/errors';
 import { orNotFound } from '@/lib/http/not-found';
 
 export const dynamic = 'force-dynamic';
@@ -16,8 +17,12 @@ export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-ref
  */
 export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
   const { token } = await params;
-  // unknown, tampered, revoked or expired: the page answers 404 (the JSON tells 404 from 410)
-  const view = await orNotFound(openSharedReport(await getDb(), token, { comments: false }), [404, 410]);
+  // unknown or tampered: the page answers 404; revoked or expired: this text, and 410 (set by proxy.ts)
+  const view = await orNotFound(openSharedReport(await getDb(), token, { comments: false }).catch((e: unknown) => {
+    if (e instanceof AppError && e.status === 410) return null;
+    throw e;
+  }));
+  if (!view) return <SharedGone />;
   return (
     <div className="mx-auto flex min-h-dvh max-w-5xl flex-col gap-6 px-4 py-6">
       <header className="flex flex-wrap items-center justify-between gap-3 border-b-2 border-line pb-4">
@@ -33,6 +38,19 @@ export default async function SharedPage({ params }: { params: Promise<{ token: 
         This link works until {new Date(view.expiresAt).toISOString().slice(0, 16).replace('T', ' ')} UTC unless its owner revokes it sooner.
         Before anyone reaches onto the machine to act on this report: spindle stopped, machine switched off; the machine maker&apos;s manual and local rules come first.
       </p>
+    </div>
+  );
+}
+
+/** A link that was revoked or has expired (answered 410 Gone). */
+function SharedGone() {
+  return (
+    <div className="mx-auto flex min-h-dvh max-w-xl flex-col gap-6 px-4 py-8">
+      <PlainBrand />
+      <section className="panel" data-testid="shared-gone">
+        <h1 className="text-2xl font-bold">This link no longer opens the report</h1>
+        <p className="mt-2">Whoever shared it has revoked it, or its time ran out. Ask them for a new link.</p>
+      </section>
     </div>
   );
 }
