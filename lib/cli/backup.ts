@@ -19,6 +19,7 @@ import { pathToFileURL } from 'node:url';
 import { createClient } from '@libsql/client';
 import { DEFAULT_DATABASE_URL } from '@/db/client';
 import { assertValidKey, storageFromEnv, type Storage } from '@/lib/storage';
+import { parseCliArgs, type CliUsage } from './args';
 
 export const MANIFEST = 'manifest.json';
 export const DB_FILE = 'gridproof.db';
@@ -89,15 +90,23 @@ export async function backup(opts: { databaseUrl: string; storage: Storage; outD
   return manifest;
 }
 
-function argValue(args: string[], name: string): string | undefined {
-  const i = args.indexOf(name);
-  return i >= 0 ? args[i + 1] : undefined;
-}
+const cli: CliUsage = {
+  name: 'backup',
+  usage: `
+Copies the database and every stored photo into a folder, checksummed, and prints a JSON summary.
+
+  npm run backup -- [--out DIR]
+
+  --out DIR    where the backup goes (default data/backups/<time stamp>)
+  -h, --help   this text
+
+Reads DATABASE_URL and the storage settings (STORAGE_DIR, or S3_BUCKET and the other S3_* variables) as the app does.`,
+};
 
 async function main() {
-  const args = process.argv.slice(2);
+  const args = parseCliArgs(cli, { out: { type: 'string' } });
   const stamp = new Date().toISOString().replace(/[:.]/g, '-');
-  const outDir = argValue(args, '--out') ?? join('data', 'backups', stamp);
+  const outDir = args.out ?? join('data', 'backups', stamp);
   const m = await backup({ databaseUrl: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL, storage: storageFromEnv(), outDir });
   process.stdout.write(`${JSON.stringify({ ok: true, dir: resolve(outDir), databaseBytes: m.database.bytes, photos: m.photos.length, photoBytes: m.photos.reduce((s, p) => s + p.bytes, 0) })}\n`);
 }

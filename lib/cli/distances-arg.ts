@@ -6,12 +6,9 @@
 import { readFileSync } from 'node:fs';
 import { MeasuredDistancesSchema, type MeasuredDistance } from '../geometry/contract';
 
-/** The distances of `--distances FILE`, or undefined when the option is absent; `fail` exits with one line. */
-export function readDistancesArg(args: readonly string[], fail: (message: string) => never): MeasuredDistance[] | undefined {
-  const i = args.indexOf('--distances');
-  if (i < 0) return undefined;
-  const path = args[i + 1];
-  if (path === undefined || path.startsWith('--')) fail('--distances needs a value');
+/** The distances in the file `path` of `--distances`, or undefined when the option is absent; `fail` exits with one line. */
+export function readDistancesArg(path: string | undefined, fail: (message: string) => never): MeasuredDistance[] | undefined {
+  if (path === undefined) return undefined;
   let json: unknown;
   try { json = JSON.parse(readFileSync(path, 'utf8')); } catch (e) { fail(`distances: cannot read ${path} as JSON (${(e as Error).message.split('\n')[0]})`); }
   const r = MeasuredDistancesSchema.safeParse(json);

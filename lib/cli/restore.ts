@@ -7,7 +7,8 @@
  * 2. The photos are put back into storage (local or S3) under their keys (a put is whole or nothing).
  * 3. The database file is replaced: the copy is written next to the target and renamed over it, and the old
  *    WAL/SHM files are removed, so the target is either the old database or the restored one, never a mix.
- * An existing database is only replaced with `--force`. Prints a JSON summary; exit 0, or 1 with a message.
+ * An existing database is only replaced with `--force`. Prints a JSON summary; exit 0, or 1 with a message (2 for
+ * bad usage; `--help` prints the usage).
  */
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
@@ -18,6 +19,7 @@ import { createClient } from '@libsql/client';
 import { z } from 'zod';
 import { DEFAULT_DATABASE_URL } from '@/db/client';
 import { assertValidKey, storageFromEnv, type Storage } from '@/lib/storage';
+import { exitWithUsageError, parseCliArgs, type CliUsage } from './args';
 import { DB_FILE, localDbPath, MANIFEST } from './backup';
 
 const ManifestSchema = z.object({
@@ -74,12 +76,25 @@ export async function restore(opts: { fromDir: string; databaseUrl: string; stor
   return { database: target, photos: blobs.length, photoBytes: blobs.reduce((s, b) => s + b.bytes.length, 0) };
 }
 
+const cli: CliUsage = {
+  name: 'restore',
+  usage: `
+Brings back a backup made by \`npm run backup\`: checks every file against the manifest, then puts the photos
+into storage and the database in place. Prints a JSON summary.
+
+  npm run restore -- --from DIR [--force]
+
+  --from DIR   the backup folder (the one holding the manifest)
+  --force      replace an existing database (stop the app first)
+  -h, --help   this text
+
+Reads DATABASE_URL and the storage settings (STORAGE_DIR, or S3_BUCKET and the other S3_* variables) as the app does.`,
+};
+
 async function main() {
-  const args = process.argv.slice(2);
-  const i = args.indexOf('--from');
-  const fromDir = i >= 0 ? args[i + 1] : undefined;
-  if (!fromDir) throw new Error('usage: npm run restore -- --from DIR [--force]');
-  const s = await restore({ fromDir, databaseUrl: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL, storage: storageFromEnv(), force: args.includes('--force') });
+  const args = parseCliArgs(cli, { from: { type: 'string' }, force: { type: 'boolean' } });
+  if (!args.from) exitWithUsageError(cli.name, 'needs --from DIR (see --help)');
+  const s = await restore({ fromDir: args.from, databaseUrl: process.env.DATABASE_URL ?? DEFAULT_DATABASE_URL, storage: storageFromEnv(), force: args.force === true });
   process.stdout.write(`${JSON.stringify({ ok: true, ...s })}\n`);
 }
 

@@ -8,54 +8,70 @@
  *     --camera linear|phone|encoded --contrast 0.5 --sharpen-px 1.5 --sharpen-amount 0.8]
  *
  * Writes DIR/photo.jpg and DIR/truth.json (bed mm, image px; see lib/vision/render/scene.ts for the frames
- * and the order in which the injected errors apply).
+ * and the order in which the injected errors apply). `--help` prints the options; an unknown one exits 2.
  */
 import { mkdir, readFile, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { PatternSchema } from '@/lib/geometry/contract';
 import { synthesize } from '@/lib/vision/render';
 import { DEFAULT_SCENE, type SceneOptions } from '@/lib/vision/render/scene';
+import { exitWithUsageError, numberOption, parseCliArgs, type CliUsage } from './args';
 
-const FLAGS: Record<string, keyof SceneOptions> = {
-  '--width': 'width', '--height': 'height', '--seed': 'seed', '--tilt': 'tiltDeg', '--turn': 'turnDeg', '--focal35': 'focal35mm',
-  '--k1': 'k1', '--k2': 'k2', '--blur': 'blurPx', '--noise': 'noise', '--jpeg': 'jpegQuality', '--exposure': 'exposure',
-  '--gradient': 'lightGradient', '--vignetting': 'vignetting', '--dust': 'dustPerM2', '--screws': 'screwsPerM2',
-  '--target-mm': 'targetMm', '--scale-ppm': 'scalePpm', '--squareness': 'squarenessDeg', '--panel-offset': 'panelOffsetMm',
-  '--misplaced': 'misplacedCount', '--misplaced-mm': 'misplacedMm', '--supersample': 'supersample',
-  '--contrast': 'contrast', '--sharpen-px': 'sharpenPx', '--sharpen-amount': 'sharpenAmount',
+/** The numeric options and the scene field each sets. */
+const NUMBERS: Record<string, keyof SceneOptions> = {
+  width: 'width', height: 'height', seed: 'seed', tilt: 'tiltDeg', turn: 'turnDeg', focal35: 'focal35mm',
+  k1: 'k1', k2: 'k2', blur: 'blurPx', noise: 'noise', jpeg: 'jpegQuality', exposure: 'exposure',
+  gradient: 'lightGradient', vignetting: 'vignetting', dust: 'dustPerM2', screws: 'screwsPerM2',
+  'target-mm': 'targetMm', 'scale-ppm': 'scalePpm', squareness: 'squarenessDeg', 'panel-offset': 'panelOffsetMm',
+  misplaced: 'misplacedCount', 'misplaced-mm': 'misplacedMm', supersample: 'supersample',
+  contrast: 'contrast', 'sharpen-px': 'sharpenPx', 'sharpen-amount': 'sharpenAmount',
+};
+
+const cli: CliUsage = {
+  name: 'synth',
+  usage: `
+Renders a bed photo with exactly known truth: writes DIR/photo.jpg and DIR/truth.json, prints a JSON summary.
+
+  npm run -s synth -- --pattern P.json --seed N --out DIR [options]
+
+  --pattern FILE   the bed's nominal pattern (bed mm)
+  --out DIR        where photo.jpg and truth.json go
+  --material mdf|plywood      --camera linear|phone|encoded      --target-edge (square at the bed's edge)
+  numbers (defaults in lib/vision/render/scene.ts): ${Object.keys(NUMBERS).map((k) => `--${k}`).join(' ')}
+  -h, --help       this text
+
+A negative number may follow its option directly (--k1 -0.03).`,
 };
 
 function fail(msg: string): never {
-  process.stderr.write(`synth: ${msg}\n`);
-  process.exit(2);
+  return exitWithUsageError(cli.name, msg);
 }
 
 async function main(): Promise<void> {
-  const args = process.argv.slice(2);
+  const args = parseCliArgs(cli, {
+    pattern: { type: 'string' },
+    out: { type: 'string' },
+    material: { type: 'string' },
+    camera: { type: 'string' },
+    'target-edge': { type: 'boolean' },
+    ...Object.fromEntries(Object.keys(NUMBERS).map((k) => [k, { type: 'string' as const }])),
+  });
   const opts: SceneOptions = { ...DEFAULT_SCENE };
-  let patternPath: string | undefined;
-  let out: string | undefined;
-  for (let i = 0; i < args.length; i++) {
-    const a = args[i]!;
-    const next = () => args[++i] ?? fail(`${a} needs a value`);
-    if (a === '--pattern') patternPath = next();
-    else if (a === '--out') out = next();
-    else if (a === '--material') {
-      const m = next();
-      if (m !== 'mdf' && m !== 'plywood') fail('--material is mdf or plywood');
-      opts.material = m;
-    } else if (a === '--camera') {
-      const c = next();
-      if (c !== 'linear' && c !== 'phone' && c !== 'encoded') fail('--camera is linear, phone or encoded');
-      opts.camera = c;
-    } else if (a === '--target-edge') opts.targetPlacement = 'edge';
-    else if (FLAGS[a]) {
-      const v = Number(next());
-      if (!Number.isFinite(v)) fail(`${a} needs a number`);
-      (opts as unknown as Record<string, number>)[FLAGS[a]] = v;
-    } else fail(`unknown option ${a}`);
+  const { pattern: patternPath, out, material, camera } = args;
+  if (material !== undefined) {
+    if (material !== 'mdf' && material !== 'plywood') fail('--material is mdf or plywood');
+    opts.material = material;
   }
-  if (!patternPath || !out) fail('usage: synth --pattern P.json --seed N --out DIR [options]');
+  if (camera !== undefined) {
+    if (camera !== 'linear' && camera !== 'phone' && camera !== 'encoded') fail('--camera is linear, phone or encoded');
+    opts.camera = camera;
+  }
+  if (args['target-edge']) opts.targetPlacement = 'edge';
+  for (const [flag, field] of Object.entries(NUMBERS)) {
+    const v = numberOption(cli, flag, (args as Record<string, string | boolean | undefined>)[flag] as string | undefined);
+    if (v !== undefined) (opts as unknown as Record<string, number>)[field] = v;
+  }
+  if (!patternPath || !out) fail('needs --pattern and --out (see --help)');
   if (opts.tiltDeg < 0 || opts.tiltDeg > 25) fail('--tilt is 0–25 degrees');
   if (opts.jpegQuality < 1 || opts.jpegQuality > 100) fail('--jpeg is 1–100');
   const parsed = PatternSchema.safeParse(JSON.parse(await readFile(patternPath, 'utf8')));

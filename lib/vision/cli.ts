@@ -12,27 +12,22 @@ import type { PhotoQuality } from '@/lib/geometry/contract';
 import { analyzeImage, VisionInputError } from './index';
 import { readDistancesArg } from '../cli/distances-arg';
 
-export async function runImageMode(args: string[], fail: (message: string) => never): Promise<void> {
-  const val = (name: string): string | undefined => {
-    const i = args.indexOf(name);
-    if (i < 0) return undefined;
-    const v = args[i + 1];
-    if (v === undefined || v.startsWith('--')) fail(`${name} needs a value`);
-    return v;
-  };
-  const imagePath = val('--image');
-  const patternPath = val('--pattern');
-  const refArg = val('--reference-mm');
-  if (!imagePath || !patternPath || !refArg) fail('usage: analyze --image PHOTO --pattern P.json --reference-mm MM [--corners x1,y1,…,x4,y4] [--detections-out D.json] [--distances DISTANCES.json]');
-  const referenceMm = Number(refArg);
-  if (!(referenceMm > 0)) fail('--reference-mm: must be a positive number of mm');
-  let corners: [[number, number], [number, number], [number, number], [number, number]] | undefined;
-  const c = val('--corners');
-  if (c !== undefined) {
-    const v = c.split(',').map(Number);
-    if (v.length !== 8 || v.some((x) => !Number.isFinite(x))) fail('--corners: give eight numbers x1,y1,…,x4,y4 (image px)');
-    corners = [[v[0]!, v[1]!], [v[2]!, v[3]!], [v[4]!, v[5]!], [v[6]!, v[7]!]];
-  }
+/** Photo mode's inputs, read from the command line by lib/cli/analyze.ts. */
+export interface ImageModeOptions {
+  imagePath: string;
+  patternPath: string;
+  /** Printed side of the reference square, mm. */
+  referenceMm: number;
+  /** The square's corners, image px (top-left origin, y down), instead of finding them. */
+  corners?: [[number, number], [number, number], [number, number], [number, number]];
+  /** Where the detections are written in the points format. */
+  detectionsOut?: string;
+  /** The `--distances` file, if given. */
+  distancesPath?: string;
+}
+
+export async function runImageMode(opts: ImageModeOptions, fail: (message: string) => never): Promise<void> {
+  const { imagePath, patternPath, referenceMm, corners } = opts;
   let bytes: Buffer;
   try {
     bytes = readFileSync(imagePath);
@@ -49,10 +44,9 @@ export async function runImageMode(args: string[], fail: (message: string) => ne
   if (!parsed.success) fail(`pattern.${parsed.error.issues[0]?.path.join('.') ?? ''}: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
   let quality: PhotoQuality | undefined;
   try {
-    const distances = readDistancesArg(args, fail);
+    const distances = readDistancesArg(opts.distancesPath, fail);
     const { report, points } = await analyzeImage(bytes, parsed.data, { referenceMm, ...(corners ? { corners } : {}), ...(distances ? { analyze: { distances } } : {}), onQuality: (q) => void (quality = q) });
-    const out = val('--detections-out');
-    if (out) writeFileSync(out, `${JSON.stringify(points, null, 1)}\n`);
+    if (opts.detectionsOut) writeFileSync(opts.detectionsOut, `${JSON.stringify(points, null, 1)}\n`);
     process.stdout.write(`${JSON.stringify(report)}\n`);
   } catch (e) {
     if (e instanceof VisionInputError || e instanceof GeometryInputError) {

@@ -17,6 +17,7 @@ import { patternToMm } from '../../lib/geometry/units';
 import { fitAffine } from '../../lib/geometry/affine';
 import { rigid2, umeyama } from '../../lib/geometry/umeyama';
 import type { Pattern, Report } from '../../lib/geometry/contract';
+import { exitWithUsageError, parseCliArgs } from '../../lib/cli/args';
 
 const m6 = PRESETS.find((p) => p.id === 'm6-50')!;
 const bed = (side: number): Pattern => m6.size({ bedWidthMm: side, bedHeightMm: side, stripWidthMm: side / 8 });
@@ -236,7 +237,11 @@ function fourInchSquare(cornerSigmaPx: number | undefined) {
   return { cornerSigmaPx: cornerSigmaPx ?? 'not stated', measured, tooCloseToCall: marginal };
 }
 
-const parts = (() => { const i = process.argv.indexOf('--part'); return i > 0 ? process.argv[i + 1]!.split(',') : ['timing', 'accuracy', 'calibration']; })();
+const PARTS = ['timing', 'accuracy', 'calibration'];
+const cli = { name: 'bench:fit', usage: `Benchmark of the measurement core; prints JSON.\n\n  npm run bench:fit [-- --part ${PARTS.join(',')}]` };
+const parts = parseCliArgs(cli, { part: { type: 'string' } }).part?.split(',') ?? PARTS;
+const unknownPart = parts.find((p) => !PARTS.includes(p));
+if (unknownPart !== undefined) exitWithUsageError(cli.name, `--part: no part "${unknownPart}" (${PARTS.join(', ')})`);
 const result: Record<string, unknown> = { bench: 'fit', node: process.version, date: new Date().toISOString() };
 if (parts.includes('timing')) {
   const t = timing();
