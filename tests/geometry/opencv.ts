@@ -6,9 +6,11 @@ export interface Cv {
   CV_64F: number;
   CV_64FC2: number;
   CV_32F: number;
+  CV_32FC2: number;
   Mat: new () => CvMat;
   matFromArray(rows: number, cols: number, type: number, data: number[]): CvMat;
   findHomography(src: CvMat, dst: CvMat): CvMat;
+  getPerspectiveTransform(src: CvMat, dst: CvMat): CvMat;
   undistort(src: CvMat, dst: CvMat, K: CvMat, D: CvMat): void;
 }
 
