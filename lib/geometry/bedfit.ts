@@ -12,7 +12,7 @@
  */
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { cholesky, choleskySolve, invertSpd } from './linalg';
-import { normalisingTransform, type Pt } from './homography';
+import { homographyScale, normalisingTransform, type Pt } from './homography';
 import { undistortPx, type Lens } from './camera';
 import { huberWeight, madSigma } from './robust';
 import type { PanelInfo } from './lattice';
@@ -43,7 +43,10 @@ export interface BedModel {
   panelRot: Float64Array;
   /** Parameter index of panel j's dx (dy = +1, rot = +2), or −1 if the panel had too few holes to fit. */
   panelParam: Int32Array;
-  /** Covariance of all parameters (np × np, row-major); parameters 0–7 homography (normalised), 8–9 k1 k2. */
+  /**
+   * Covariance of all parameters (np × np, row-major), in the layout of `PARAM`: 0–7 the normalised homography, 8–9
+   * k1 k2, then (dx mm, dy mm, ρ rad) per fitted panel. Read it through `paramCov`, `paramSigma`, `panelParams`.
+   */
   cov: Float64Array;
   np: number;
   /** Robust 1σ of the image residuals, px (per axis). */
@@ -58,7 +61,40 @@ export interface BedModel {
   hHat: Float64Array;
 }
 
-const NG = 10;
+/**
+ * Parameter layout of the fit: entries 0–7 of the normalised homography Ĥ (H = Ti⁻¹ Ĥ Tb, Ĥ[8] = 1), then the
+ * radial distortion k1, k2; these `GLOBAL` parameters come first, then (dx mm, dy mm, ρ rad) for each fitted panel.
+ */
+export const PARAM = { homography: 0, k1: 8, k2: 9, global: 10 } as const;
+const NG = PARAM.global;
+
+/** Covariance of parameters a and b (units of the parameters, e.g. mm² for panel offsets). */
+export function paramCov(m: BedModel, a: number, b: number): number {
+  return m.cov[a * m.np + b]!;
+}
+
+/** 1σ of parameter a (0 when its variance comes out negative by round-off, NaN when the fit could not state it). */
+export function paramSigma(m: BedModel, a: number): number {
+  return Math.sqrt(Math.max(0, paramCov(m, a, a)));
+}
+
+/** Parameter indices of panel j's offset (dx, dy mm) and turn (rot rad), or null when the panel was not fitted. */
+export function panelParams(m: BedModel, j: number): { dx: number; dy: number; rot: number } | null {
+  const b = m.panelParam[j]!;
+  return b < 0 ? null : { dx: b, dy: b + 1, rot: b + 2 };
+}
+
+/** gᵀ Σ g over the parameters `idx` (Σ their covariance block): the variance of the linear combination g. */
+export function paramQuadratic(m: BedModel, idx: readonly number[], g: readonly number[]): number {
+  let s = 0;
+  for (let i = 0; i < idx.length; i++) for (let k = 0; k < idx.length; k++) s += g[i]! * paramCov(m, idx[i]!, idx[k]!) * g[k]!;
+  return s;
+}
+
+/** Local scale of the image → lattice map at image point (u, v) px, mm per px (homography part; the lens is near 1). */
+export function mmPerPxAt(m: BedModel, u: number, v: number): number {
+  return homographyScale(m.Hinv, u, v);
+}
 
 /** Maps an observed image point (px) to the bed lattice frame (mm) through the fitted lens and homography. */
 export function toLattice(m: BedModel, u: number, v: number): [number, number] {
