@@ -6,7 +6,8 @@
  * - The lease is renewed every third of its length; when a renewal finds the token gone (the lease ran out and
  *   another worker took the job) the handler is told (`assertHeld` throws) and whatever it tries to finish is
  *   refused by the token guard.
- * - Errors: `PermanentJobError` and input errors fail the job at once; anything else is retried with backoff.
+ * - Errors: `PermanentJobError` and input errors fail the job at once; anything else is retried with backoff
+ *   (an `AnalysisLimitError`, a crash or limit of the analysis process, ends with its own words for the person).
  * - `stop()` (SIGTERM) stops claiming and waits for the jobs in hand, up to `shutdownMs`.
  */
 import { hostname } from 'node:os';
@@ -16,7 +17,7 @@ import {
   claimJob, DatabaseBusyError, failJob, LeaseLostError, reapExhaustedJobs, renewLease, type ClaimedJob,
 } from '@/db/queries/jobs';
 import type { JobContext } from '@/lib/checks/run-analysis';
-import { PermanentJobError } from '@/lib/checks/run-analysis';
+import { AnalysisLimitError, PermanentJobError } from '@/lib/checks/run-analysis';
 import type { Storage } from '@/lib/storage';
 
 export type JobHandler = (ctx: JobContext) => Promise<void>;
@@ -108,7 +109,7 @@ export function startWorker(opts: WorkerOptions): RunningWorker {
       const outcome = await failJob(opts.db, job.id, job.lockToken, {
         error: describe(e),
         retryable: !permanent,
-        ...(permanent ? { finalMessage: e.message } : {}),
+        ...(permanent ? { finalMessage: e.message } : e instanceof AnalysisLimitError ? { finalMessage: e.finalMessage(job.attempts) } : {}),
       }).catch((err: unknown) => ({ outcome: 'error', error: describe(err) }));
       log('job.failed', { workerId, jobId: job.id, kind: job.kind, error: describe(e), ...outcome, ms: Date.now() - started });
     } finally {

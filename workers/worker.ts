@@ -9,16 +9,21 @@
  *   WORKER_SHUTDOWN_MS      how long SIGTERM waits for jobs in hand (default 30000)
  *   WORKER_ID               name in the jobs table (default host:pid)
  *   WORKER_TEST_DELAY_MS    tests only (ignored when NODE_ENV=production): pause inside each job
+ *   WORKER_JOB_MEMORY_MB    memory cap of one analysis process, JS heap and resident set (default 1536)
+ *   WORKER_JOB_TIMEOUT_MS   wall-clock limit of one job's analysis (default 120000)
+ * Each analysis runs in an analysis process of its own (workers/isolate.ts), started once and reused; one that
+ * crashes or passes a limit is killed and replaced, and only its job fails (retried, then failed with the
+ * reason: "The analysis ran out of memory (cap 1536 MB)", "… took longer than 120 s").
  *   storage: see lib/storage/index.ts (STORAGE_DIR or S3_*)
  *   mail: SMTP_* / MAIL_FROM (lib/mail/config.ts); MAIL_DELIVERY=0 turns the outbox loop off
  * The database must be migrated (`npm run db:migrate`); SIGTERM / SIGINT stop it gracefully.
  */
 import { closeDb, getDb } from '@/db/client';
-import { JOB_KINDS } from '@/db/queries/jobs';
 import { startMailDelivery } from '@/lib/services/mail-delivery';
 import { getStorage, LocalStorage } from '@/lib/storage';
-import { runProbe } from './probe';
-import { jsonLog, startWorker, type JobHandler } from './run';
+import { workerHandlers } from './handlers';
+import { AnalysisPool } from './isolate';
+import { jsonLog, startWorker } from './run';
 
 function intEnv(name: string, fallback: number, min = 0): number {
   const raw = process.env[name];
@@ -30,12 +35,6 @@ function intEnv(name: string, fallback: number, min = 0): number {
   return v;
 }
 
-const handlers: Record<string, JobHandler> = {
-  [JOB_KINDS.probe]: runProbe,
-  [JOB_KINDS.analyze]: async (ctx) => (await import('@/lib/checks/pipeline')).analyzeCheck(ctx),
-  [JOB_KINDS.refit]: async (ctx) => (await import('@/lib/checks/fit')).refitCheck(ctx),
-};
-
 async function main() {
   const db = await getDb();
   const storage = getStorage();
@@ -46,18 +45,21 @@ async function main() {
   }
   // the outbox (report links, invitations, password resets): see lib/services/mail-delivery.ts
   const mail = await startMailDelivery(db, { log: jsonLog });
-  // opencv-wasm and the analysis code load once per process, before the first job rather than inside it
-  const t0 = performance.now();
+  // opencv-wasm and the analysis code load once per analysis process, before the first job rather than inside it
+  const pool = new AnalysisPool({
+    memoryMb: intEnv('WORKER_JOB_MEMORY_MB', 1536, 128),
+    timeoutMs: intEnv('WORKER_JOB_TIMEOUT_MS', 120_000, 100),
+    log: jsonLog,
+  });
   try {
-    await (await import('@/lib/checks/pipeline')).warmAnalysis();
-    jsonLog('worker.warm', { ms: Math.round(performance.now() - t0) });
+    jsonLog('worker.warm', { ms: await pool.warm() });
   } catch (e) {
     jsonLog('worker.warm-failed', { error: e instanceof Error ? e.message : String(e) });
   }
   const worker = startWorker({
     db,
     storage,
-    handlers,
+    handlers: workerHandlers(pool),
     workerId: process.env.WORKER_ID || undefined,
     concurrency: intEnv('WORKER_CONCURRENCY', 1, 1),
     leaseMs: intEnv('WORKER_LEASE_MS', 30_000, 100),
@@ -70,7 +72,7 @@ async function main() {
     if (stopping) return;
     stopping = true;
     jsonLog('worker.signal', { workerId: worker.workerId, signal });
-    void Promise.all([worker.stop(), mail?.stop()]).then(async () => { await closeDb(); process.exit(0); });
+    void Promise.all([worker.stop(), mail?.stop()]).then(async () => { await Promise.all([pool.close(), closeDb()]); process.exit(0); });
   };
   process.on('SIGTERM', () => stop('SIGTERM'));
   process.on('SIGINT', () => stop('SIGINT'));

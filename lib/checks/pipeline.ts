@@ -1,10 +1,10 @@
 /**
- * The full analysis bound to lib/vision (photo → points) and lib/geometry (points → report): the `check.analyze`
- * job of the worker.
+ * The full analysis bound to lib/vision (photo → points) and lib/geometry (points → report), as the worker's
+ * analysis process (workers/analysis-child.ts) runs it for the `check.analyze` and `check.refit` jobs.
  */
 import { detectFromImage, VisionInputError } from '@/lib/vision';
 import { fitDeps } from './fit';
-import { runCheckAnalysis, type AnalysisDeps, type JobContext } from './run-analysis';
+import type { AnalysisDeps } from './run-analysis';
 
 export const analysisDeps: AnalysisDeps = {
   detect: async (bytes, o) => {
@@ -37,9 +37,4 @@ export async function warmAnalysis(): Promise<void> {
   }
   const sharp = (await import('sharp')).default;
   await sharp({ create: { width: 8, height: 8, channels: 3, background: '#808080' } }).jpeg().toBuffer().then((b) => sharp(b).raw().toBuffer());
-}
-
-/** The `check.analyze` job: the check's photo → report. */
-export function analyzeCheck(ctx: JobContext): Promise<void> {
-  return runCheckAnalysis(ctx, analysisDeps);
 }

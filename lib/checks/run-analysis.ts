@@ -63,6 +63,23 @@ export class PermanentJobError extends Error {
   }
 }
 
+/**
+ * The analysis process crashed or broke a limit (memory, time): retried like any passing failure; once no
+ * attempt is left the check says `reason` ("ran out of memory (cap 1536 MB)", "took longer than 120 s").
+ */
+export class AnalysisLimitError extends Error {
+  constructor(readonly reason: string) {
+    super(`The analysis ${reason}.`);
+    this.name = 'AnalysisLimitError';
+  }
+
+  /** What the check says when this was its last attempt (`attempts` made in all). */
+  finalMessage(attempts: number): string {
+    return `The analysis ${this.reason}${attempts > 1 ? `, on the last of ${attempts} attempts` : ''}. ` +
+      'Try a photo with fewer megapixels, or mark the reference square\'s corners by hand, and upload it again.';
+  }
+}
+
 export interface JobContext {
   db: Db;
   storage: Storage;
