@@ -10,8 +10,8 @@
  * - distort is Brown–Conrady radial k1, k2 about the principal point (camera.ts), fitted from straightness.
  * Robust: Huber-weighted IRLS around LM. Returns the estimates with their covariance (σ² (JᵀWJ)⁻¹).
  */
-import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
-import { cholesky, choleskySolve, invertSpd } from './linalg';
+import { applyH, invertSpd, mat3Inv, mat3Mul, type Mat3 } from './linalg';
+import { levenbergMarquardt } from './levenberg-marquardt';
 import { homographyScale, normalisingTransform, type Pt } from './homography';
 import { undistortPx, type Lens } from './camera';
 import { huberWeight, madSigma } from './robust';
@@ -114,42 +114,71 @@ export function predictPx(m: BedModel, x: number, y: number, j: number, panels: 
   return [m.lens.cx + m.lens.fPx * xn * d, m.lens.cy + m.lens.fPx * yn * d];
 }
 
-export function fitBed(inp: BedFitInput): BedModel {
-  const { n, panels, nominal, observed } = inp;
-  const fitK = inp.fitDistortion !== false;
-  // Which panels get parameters: those with ≥ 3 matches.
+/** Which panels get parameters (those with ≥ 3 matches, when there is more than one panel) and where. */
+interface ParamLayout {
+  /** Parameter index of panel j's dx, or −1. */
+  panelParam: Int32Array;
+  /** The fitted panels' indices. */
+  fitted: number[];
+  /** Number of parameters. */
+  np: number;
+}
+
+function paramLayout(inp: BedFitInput): ParamLayout {
+  const { n, panels } = inp;
   const perPanel = new Int32Array(panels.length);
   for (let k = 0; k < n; k++) perPanel[inp.panel[k]!]!++;
   const panelParam = new Int32Array(panels.length).fill(-1);
   let np = NG;
   const fitted: number[] = [];
   if (panels.length > 1) panels.forEach((_, j) => { if (perPanel[j]! >= 3) { panelParam[j] = np; np += 3; fitted.push(j); } });
+  return { panelParam, fitted, np };
+}
+
+/** Hartley normalisations of the nominal points (Tb, bed mm) and the observed ones (Ti, image px); a warm start's own. */
+function normalisations(inp: BedFitInput): { Tb: Mat3; Ti: Mat3 } {
+  if (inp.warm) return { Tb: inp.warm.Tb, Ti: inp.warm.Ti };
   const nomPts: Pt[] = [], obsPts: Pt[] = [];
-  for (let k = 0; k < n; k++) { nomPts.push([nominal[2 * k]!, nominal[2 * k + 1]!]); obsPts.push([observed[2 * k]!, observed[2 * k + 1]!]); }
-  const Tb = inp.warm?.Tb ?? normalisingTransform(nomPts), Ti = inp.warm?.Ti ?? normalisingTransform(obsPts);
-  const sb = Tb[0], si = Ti[0];
-  const lens = { ...inp.lens };
-  const theta = new Float64Array(np);
-  if (inp.warm && inp.warm.np === np) {
-    theta.set(inp.warm.hHat.subarray(0, 8));
-    theta[8] = inp.warm.lens.k1; theta[9] = inp.warm.lens.k2;
-    fitted.forEach((j) => { const b = panelParam[j]!; theta[b] = inp.warm!.panelDx[j]!; theta[b + 1] = inp.warm!.panelDy[j]!; theta[b + 2] = inp.warm!.panelRot[j]!; });
+  for (let k = 0; k < inp.n; k++) { nomPts.push([inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!]); obsPts.push([inp.observed[2 * k]!, inp.observed[2 * k + 1]!]); }
+  return { Tb: normalisingTransform(nomPts), Ti: normalisingTransform(obsPts) };
+}
+
+/** θ to start from: a warm model's parameters when its layout matches, else Ĥ from H0 and the given lens, panels at rest. */
+function startingParameters(inp: BedFitInput, layout: ParamLayout, Tb: Mat3, Ti: Mat3): Float64Array {
+  const theta = new Float64Array(layout.np);
+  const warm = inp.warm;
+  if (warm && warm.np === layout.np) {
+    theta.set(warm.hHat.subarray(0, 8));
+    theta[PARAM.k1] = warm.lens.k1; theta[PARAM.k2] = warm.lens.k2;
+    layout.fitted.forEach((j) => { const b = layout.panelParam[j]!; theta[b] = warm.panelDx[j]!; theta[b + 1] = warm.panelDy[j]!; theta[b + 2] = warm.panelRot[j]!; });
   } else {
     const hh = mat3Mul(Ti, mat3Mul(inp.H0, mat3Inv(Tb)));
     for (let i = 0; i < 8; i++) theta[i] = hh[i]! / hh[8];
-    theta[8] = inp.lens.k1; theta[9] = inp.lens.k2;
+    theta[PARAM.k1] = inp.lens.k1; theta[PARAM.k2] = inp.lens.k2;
   }
-  const prior = inp.weights ?? new Float64Array(n).fill(1);
-  const w = Float64Array.from(prior);
-  const res = new Float64Array(2 * n);
-  const J = new Float64Array(2 * 13);
-  const cols = new Int32Array(13);
-  const { cx, cy, fPx } = lens;
+  return theta;
+}
 
-  /** Residual (and Jacobian into J/cols) of match k at parameters t. Returns number of columns used. */
+/** Most Jacobian columns one match touches: 10 global + 3 of its panel. */
+const MAX_COLS = NG + 3;
+
+/**
+ * The model's prediction for one match: residual (predicted − observed, px) and, on request, its sparse Jacobian
+ * (rows x and y in `J[0..]` and `J[MAX_COLS..]`, the parameter index of each column in `cols`).
+ */
+function matchModel(inp: BedFitInput, layout: ParamLayout, Tb: Mat3, Ti: Mat3, fitK: boolean) {
+  const { panels, nominal, observed } = inp;
+  const { panelParam } = layout;
+  const sb = Tb[0], si = Ti[0];
+  const { cx, cy, fPx } = inp.lens;
+  const J = new Float64Array(2 * MAX_COLS);
+  const cols = new Int32Array(MAX_COLS);
+  const R = MAX_COLS;
+  /** Residual of match k at θ into `out`; with `wantJ` also J and cols. Returns the number of columns used. */
   const evalMatch = (t: Float64Array, k: number, out: Float64Array, wantJ: boolean): number => {
     const nx = nominal[2 * k]!, ny = nominal[2 * k + 1]!, j = inp.panel[k]!;
     const b = panelParam[j]!;
+    // Panel j's rigid move of the nominal point (mm), then Hartley-normalised.
     let px = nx, py = ny, ax = 0, ay = 0, c = 1, s = 0;
     if (b >= 0) {
       const q = panels[j]!;
@@ -158,11 +187,12 @@ export function fitBed(inp: BedFitInput): BedModel {
       px = q.cx + c * ax - s * ay + t[b]!; py = q.cy + s * ax + c * ay + t[b + 1]!;
     }
     const qx = sb * px + Tb[2], qy = sb * py + Tb[5];
+    // Ĥ, back to undistorted px, then Brown–Conrady about the principal point.
     const den = t[6]! * qx + t[7]! * qy + 1;
     const wx = (t[0]! * qx + t[1]! * qy + t[2]!) / den, wy = (t[3]! * qx + t[4]! * qy + t[5]!) / den;
     const uu = (wx - Ti[2]) / si, vv = (wy - Ti[5]) / si;
     const xn = (uu - cx) / fPx, yn = (vv - cy) / fPx;
-    const r2 = xn * xn + yn * yn, k1 = t[8]!, k2 = t[9]!;
+    const r2 = xn * xn + yn * yn, k1 = t[PARAM.k1]!, k2 = t[PARAM.k2]!;
     const d = 1 + k1 * r2 + k2 * r2 * r2;
     out[0] = cx + fPx * xn * d - observed[2 * k]!;
     out[1] = cy + fPx * yn * d - observed[2 * k + 1]!;
@@ -174,57 +204,107 @@ export function fitBed(inp: BedFitInput): BedModel {
     const E00 = D00 / si, E01 = D01 / si, E11 = D11 / si;
     const g0 = qx / den, g1 = qy / den, g2 = 1 / den;
     // wx depends on t0..2 and t6,7; wy on t3..5 and t6,7
-    cols[0] = 0; J[0] = E00 * g0; J[13] = E01 * g0;
-    cols[1] = 1; J[1] = E00 * g1; J[14] = E01 * g1;
-    cols[2] = 2; J[2] = E00 * g2; J[15] = E01 * g2;
-    cols[3] = 3; J[3] = E01 * g0; J[16] = E11 * g0;
-    cols[4] = 4; J[4] = E01 * g1; J[17] = E11 * g1;
-    cols[5] = 5; J[5] = E01 * g2; J[18] = E11 * g2;
+    cols[0] = 0; J[0] = E00 * g0; J[R] = E01 * g0;
+    cols[1] = 1; J[1] = E00 * g1; J[R + 1] = E01 * g1;
+    cols[2] = 2; J[2] = E00 * g2; J[R + 2] = E01 * g2;
+    cols[3] = 3; J[3] = E01 * g0; J[R + 3] = E11 * g0;
+    cols[4] = 4; J[4] = E01 * g1; J[R + 4] = E11 * g1;
+    cols[5] = 5; J[5] = E01 * g2; J[R + 5] = E11 * g2;
     let m = 6;
     const g6x = (-wx * qx) / den, g6y = (-wy * qx) / den, g7x = (-wx * qy) / den, g7y = (-wy * qy) / den;
-    cols[m] = 6; J[m] = E00 * g6x + E01 * g6y; J[13 + m] = E01 * g6x + E11 * g6y; m++;
-    cols[m] = 7; J[m] = E00 * g7x + E01 * g7y; J[13 + m] = E01 * g7x + E11 * g7y; m++;
-    cols[m] = 8; J[m] = fitK ? fPx * xn * r2 : 0; J[13 + m] = fitK ? fPx * yn * r2 : 0; m++;
-    cols[m] = 9; J[m] = fitK ? fPx * xn * r2 * r2 : 0; J[13 + m] = fitK ? fPx * yn * r2 * r2 : 0; m++;
+    cols[m] = 6; J[m] = E00 * g6x + E01 * g6y; J[R + m] = E01 * g6x + E11 * g6y; m++;
+    cols[m] = 7; J[m] = E00 * g7x + E01 * g7y; J[R + m] = E01 * g7x + E11 * g7y; m++;
+    cols[m] = PARAM.k1; J[m] = fitK ? fPx * xn * r2 : 0; J[R + m] = fitK ? fPx * yn * r2 : 0; m++;
+    cols[m] = PARAM.k2; J[m] = fitK ? fPx * xn * r2 * r2 : 0; J[R + m] = fitK ? fPx * yn * r2 * r2 : 0; m++;
     if (b >= 0) {
       // d w / d q (homography Jacobian), d q / d p = sb
       const a00 = ((t[0]! - wx * t[6]!) / den) * sb, a01 = ((t[1]! - wx * t[7]!) / den) * sb;
       const a10 = ((t[3]! - wy * t[6]!) / den) * sb, a11 = ((t[4]! - wy * t[7]!) / den) * sb;
       const F00 = E00 * a00 + E01 * a10, F01 = E00 * a01 + E01 * a11, F10 = E01 * a00 + E11 * a10, F11 = E01 * a01 + E11 * a11;
       const drx = -s * ax - c * ay, dry = c * ax - s * ay;
-      cols[m] = b; J[m] = F00; J[13 + m] = F10; m++;
-      cols[m] = b + 1; J[m] = F01; J[13 + m] = F11; m++;
-      cols[m] = b + 2; J[m] = F00 * drx + F01 * dry; J[13 + m] = F10 * drx + F11 * dry; m++;
+      cols[m] = b; J[m] = F00; J[R + m] = F10; m++;
+      cols[m] = b + 1; J[m] = F01; J[R + m] = F11; m++;
+      cols[m] = b + 2; J[m] = F00 * drx + F01 * dry; J[R + m] = F10 * drx + F11 * dry; m++;
     }
     return m;
   };
+  return { evalMatch, J, cols };
+}
 
-  const GAUGE = 1e6, PRIOR_MM = 1e-4, PRIOR_RAD = 1e-4 * (180 / Math.PI) ** 2, PRIOR_K = 1e-6;
-  const penalty = (t: Float64Array) => {
-    let c = 0;
-    if (fitted.length) {
-      let sx = 0, sy = 0, sr = 0;
-      for (const j of fitted) { const b = panelParam[j]!; sx += t[b]!; sy += t[b + 1]!; sr += t[b + 2]!; c += PRIOR_MM * (t[b]! ** 2 + t[b + 1]! ** 2) + PRIOR_RAD * t[b + 2]! ** 2; }
-      const P = fitted.length;
-      c += GAUGE * ((sx / P) ** 2 + (sy / P) ** 2 + (sr / P) ** 2 * 1e4);
+/**
+ * Priors, as quadratic penalties: the gauge (the fitted panels' mean offset and turn are zero: a common move is the
+ * camera's), a weak pull of each panel's offset (per mm²) and turn (per degree²) to rest, and of k1, k2 to zero.
+ */
+const GAUGE = 1e6, GAUGE_ROT = 1e4, PRIOR_MM = 1e-4, PRIOR_RAD = 1e-4 * (180 / Math.PI) ** 2, PRIOR_K = 1e-6;
+/** Damping that pins k1, k2 when distortion is not fitted. */
+const PIN_K = 1e12;
+
+function priorPenalty(t: Float64Array, layout: ParamLayout): number {
+  const { fitted, panelParam } = layout;
+  let c = 0;
+  if (fitted.length) {
+    let sx = 0, sy = 0, sr = 0;
+    for (const j of fitted) { const b = panelParam[j]!; sx += t[b]!; sy += t[b + 1]!; sr += t[b + 2]!; c += PRIOR_MM * (t[b]! ** 2 + t[b + 1]! ** 2) + PRIOR_RAD * t[b + 2]! ** 2; }
+    const P = fitted.length;
+    c += GAUGE * ((sx / P) ** 2 + (sy / P) ** 2 + (sr / P) ** 2 * GAUGE_ROT);
+  }
+  c += PRIOR_K * (t[PARAM.k1]! ** 2 + t[PARAM.k2]! ** 2);
+  return c;
+}
+
+/** Adds the priors' part of the normal equations at θ. */
+function addPriorNormalEquations(t: Float64Array, layout: ParamLayout, fitK: boolean, jtj: Float64Array, jtr: Float64Array): void {
+  const { fitted, panelParam, np } = layout;
+  if (fitted.length) {
+    const P = fitted.length;
+    for (let o = 0; o < 3; o++) {
+      const g = GAUGE * (o === 2 ? GAUGE_ROT : 1) / (P * P);
+      let sum = 0;
+      for (const j of fitted) sum += t[panelParam[j]! + o]!;
+      for (const ja of fitted) {
+        const a = panelParam[ja]! + o;
+        jtr[a]! += g * sum;
+        for (const jb of fitted) jtj[a * np + panelParam[jb]! + o]! += g;
+        jtj[a * np + a]! += o === 2 ? PRIOR_RAD : PRIOR_MM;
+        jtr[a]! += (o === 2 ? PRIOR_RAD : PRIOR_MM) * t[a]!;
+      }
     }
-    c += PRIOR_K * (t[8]! ** 2 + t[9]! ** 2);
-    return c;
-  };
-  const rc = new Float64Array(2), rb = new Float64Array(2);
+  }
+  for (const a of [PARAM.k1, PARAM.k2]) { jtj[a * np + a]! += PRIOR_K + (fitK ? 0 : PIN_K); jtr[a]! += PRIOR_K * t[a]!; }
+}
+
+/** IRLS: Huber weights at this many robust σ of the residuals. */
+const HUBER_K = 2;
+
+/**
+ * Fits the model to the matches: Levenberg–Marquardt (levenberg-marquardt.ts) inside Huber IRLS (3 rounds, 2 from a
+ * warm start), then the covariance σ² (JᵀWJ)⁻¹ with σ² the weighted residual variance (px²).
+ */
+export function fitBed(inp: BedFitInput): BedModel {
+  const { n, panels } = inp;
+  const fitK = inp.fitDistortion !== false;
+  const layout = paramLayout(inp);
+  const { np, panelParam, fitted } = layout;
+  const { Tb, Ti } = normalisations(inp);
+  const theta = startingParameters(inp, layout, Tb, Ti);
+  const prior = inp.weights ?? new Float64Array(n).fill(1);
+  const w = Float64Array.from(prior);
+  const res = new Float64Array(2 * n);
+  const { evalMatch, J, cols } = matchModel(inp, layout, Tb, Ti, fitK);
+
+  const r = new Float64Array(2);
   const cost = (t: Float64Array) => {
     let c = 0;
-    const r = rc;
     for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); c += w[k]! * (r[0]! ** 2 + r[1]! ** 2); }
-    return c + penalty(t);
+    return c + priorPenalty(t, layout);
   };
   const residuals = (t: Float64Array) => {
-    for (let k = 0; k < n; k++) { evalMatch(t, k, rc, false); res[2 * k] = rc[0]!; res[2 * k + 1] = rc[1]!; }
+    for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!; }
   };
   const jtj = new Float64Array(np * np), jtr = new Float64Array(np);
-  const build = (t: Float64Array) => {
+  /** JᵀWJ and JᵀWr at θ (and the residuals into `res`). */
+  const normalEquations = (t: Float64Array) => {
     jtj.fill(0); jtr.fill(0);
-    const r = rb;
     for (let k = 0; k < n; k++) {
       const m = evalMatch(t, k, r, true);
       res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!;
@@ -232,62 +312,28 @@ export function fitBed(inp: BedFitInput): BedModel {
       if (!(wk > 0)) continue;
       // Upper triangle only (columns are in increasing order); mirrored below.
       for (let a = 0; a < m; a++) {
-        const ca = cols[a]!, ja0 = wk * J[a]!, ja1 = wk * J[13 + a]!;
+        const ca = cols[a]!, ja0 = wk * J[a]!, ja1 = wk * J[MAX_COLS + a]!;
         jtr[ca]! += ja0 * r[0]! + ja1 * r[1]!;
         const row = ca * np;
-        for (let bb = a; bb < m; bb++) jtj[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[13 + bb]!;
+        for (let bb = a; bb < m; bb++) jtj[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[MAX_COLS + bb]!;
       }
     }
     for (let i = 0; i < np; i++) for (let j = 0; j < i; j++) jtj[i * np + j] = jtj[j * np + i]!;
-    if (fitted.length) {
-      const P = fitted.length;
-      for (let o = 0; o < 3; o++) {
-        const g = GAUGE * (o === 2 ? 1e4 : 1) / (P * P);
-        let sum = 0;
-        for (const j of fitted) sum += t[panelParam[j]! + o]!;
-        for (const ja of fitted) {
-          const a = panelParam[ja]! + o;
-          jtr[a]! += g * sum;
-          for (const jb of fitted) jtj[a * np + panelParam[jb]! + o]! += g;
-          jtj[a * np + a]! += o === 2 ? PRIOR_RAD : PRIOR_MM;
-          jtr[a]! += (o === 2 ? PRIOR_RAD : PRIOR_MM) * t[a]!;
-        }
-      }
-    }
-    for (const a of [8, 9]) { jtj[a * np + a]! += PRIOR_K + (fitK ? 0 : 1e12); jtr[a]! += PRIOR_K * t[a]!; }
-  };
-
-  const lm = (maxIt: number) => {
-    let c0 = cost(theta);
-    let lambda = 1e-4;
-    for (let it = 0; it < maxIt; it++) {
-      build(theta);
-      let accepted = false, gain = 0;
-      for (let tries = 0; tries < 8; tries++) {
-        const a = Float64Array.from(jtj);
-        for (let i = 0; i < np; i++) a[i * np + i]! += lambda * (jtj[i * np + i]! || 1);
-        if (!cholesky(a, np)) { lambda *= 10; continue; }
-        const step = choleskySolve(a, np, jtr);
-        const tn = Float64Array.from(theta);
-        for (let i = 0; i < np; i++) tn[i]! -= step[i]!;
-        const c1 = cost(tn);
-        if (c1 <= c0) { gain = c0 - c1; theta.set(tn); c0 = c1; lambda = Math.max(lambda / 10, 1e-12); accepted = true; break; }
-        lambda *= 10;
-      }
-      if (!accepted || gain < 1e-7 * c0) break;
-    }
+    addPriorNormalEquations(t, layout, fitK, jtj, jtr);
+    return { jtj, jtr };
   };
 
   // IRLS with Huber weights at 2 σ.
-  let sigma = 1;
   const outerN = inp.warm ? 2 : 3;
   for (let outer = 0; outer < outerN; outer++) {
-    lm(outer === 0 ? 25 : 10);
+    levenbergMarquardt({ n: np, cost, normalEquations }, theta, { maxIterations: outer === 0 ? 25 : 10, lambda: 1e-4, minRelativeGain: 1e-7 });
     residuals(theta);
-    sigma = Math.max(madSigma(res), 1e-6);
-    for (let k = 0; k < n; k++) w[k] = prior[k]! * huberWeight(Math.hypot(res[2 * k]!, res[2 * k + 1]!), 2 * sigma);
+    const sigma = Math.max(madSigma(res), 1e-6);
+    for (let k = 0; k < n; k++) w[k] = prior[k]! * huberWeight(Math.hypot(res[2 * k]!, res[2 * k + 1]!), HUBER_K * sigma);
   }
-  build(theta);
+
+  // Covariance.
+  normalEquations(theta);
   let rss = 0, sw = 0;
   for (let k = 0; k < n; k++) { rss += w[k]! * (res[2 * k]! ** 2 + res[2 * k + 1]! ** 2); sw += w[k]!; }
   const dof = Math.max(1, 2 * sw - np);
@@ -295,13 +341,12 @@ export function fitBed(inp: BedFitInput): BedModel {
   const inv = invertSpd(jtj, np) ?? new Float64Array(np * np).fill(NaN);
   const cov = inv.map((x) => x * s2);
 
-  const hHat = Float64Array.from(theta);
   const Hn: Mat3 = [theta[0]!, theta[1]!, theta[2]!, theta[3]!, theta[4]!, theta[5]!, theta[6]!, theta[7]!, 1];
   const H = mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb));
   const panelDx = new Float64Array(panels.length), panelDy = new Float64Array(panels.length), panelRot = new Float64Array(panels.length);
   fitted.forEach((j) => { const b = panelParam[j]!; panelDx[j] = theta[b]!; panelDy[j] = theta[b + 1]!; panelRot[j] = theta[b + 2]!; });
   return {
-    H, Hinv: mat3Inv(H), lens: { ...lens, k1: theta[8]!, k2: theta[9]! }, panelDx, panelDy, panelRot, panelParam, cov, np,
-    sigmaPx: Math.sqrt(s2 / 1), weights: w, residualPx: Float64Array.from(res), Tb, Ti, hHat,
+    H, Hinv: mat3Inv(H), lens: { ...inp.lens, k1: theta[PARAM.k1]!, k2: theta[PARAM.k2]! }, panelDx, panelDy, panelRot, panelParam, cov, np,
+    sigmaPx: Math.sqrt(s2), weights: w, residualPx: Float64Array.from(res), Tb, Ti, hHat: Float64Array.from(theta),
   };
 }

@@ -5,7 +5,8 @@
  * and `dst` are any two planar frames (e.g. bed mm → image px, reference-square mm → image px); H maps src to dst
  * in homogeneous coordinates, row-major, scaled so H[8] = 1.
  */
-import { applyH, mat3Inv, mat3Mul, normaliseH, smallestEigenvector, solveSpd, type Mat3 } from './linalg';
+import { levenbergMarquardt } from './levenberg-marquardt';
+import { applyH, mat3Inv, mat3Mul, normaliseH, smallestEigenvector, type Mat3 } from './linalg';
 
 export { applyH, type Mat3 };
 export type Pt = readonly [number, number];
@@ -46,55 +47,50 @@ export function homographyDlt(src: readonly Pt[], dst: readonly Pt[], weights?: 
 
 /**
  * Refines H by minimising Σ wᵢ‖H(srcᵢ) − dstᵢ‖² (transfer error in the destination frame) with
- * Levenberg–Marquardt over the 8 free entries, in Hartley-normalised coordinates.
+ * Levenberg–Marquardt (levenberg-marquardt.ts) over the 8 free entries, in Hartley-normalised coordinates.
  */
 export function refineHomography(h0: Mat3, src: readonly Pt[], dst: readonly Pt[], weights?: ArrayLike<number>, iterations = 10): Mat3 {
   const ts = normalisingTransform(src), td = normalisingTransform(dst);
   const sx = src.map((p) => applyH(ts, p[0], p[1]));
   const dx = dst.map((p) => applyH(td, p[0], p[1]));
-  let h = normaliseH(mat3Mul(td, mat3Mul(h0, mat3Inv(ts))));
-  const cost = (hh: Mat3) => {
-    let c = 0;
-    for (let k = 0; k < sx.length; k++) {
-      const [u, v] = applyH(hh, sx[k]![0], sx[k]![1]);
-      c += (weights ? weights[k]! : 1) * ((u - dx[k]![0]) ** 2 + (v - dx[k]![1]) ** 2);
-    }
-    return c;
-  };
-  let c0 = cost(h);
-  let lambda = 1e-3;
-  for (let it = 0; it < iterations; it++) {
-    const jtj = new Float64Array(64), jtr = new Float64Array(8);
-    const ju = new Float64Array(8), jv = new Float64Array(8);
-    for (let k = 0; k < sx.length; k++) {
-      const w = weights ? weights[k]! : 1;
-      if (!(w > 0)) continue;
-      const [x, y] = sx[k]!;
-      const den = h[6] * x + h[7] * y + h[8];
-      const u = (h[0] * x + h[1] * y + h[2]) / den, v = (h[3] * x + h[4] * y + h[5]) / den;
-      ju.set([x / den, y / den, 1 / den, 0, 0, 0, (-u * x) / den, (-u * y) / den]);
-      jv.set([0, 0, 0, x / den, y / den, 1 / den, (-v * x) / den, (-v * y) / den]);
-      const ru = u - dx[k]![0], rv = v - dx[k]![1];
-      for (let i = 0; i < 8; i++) {
-        jtr[i]! += w * (ju[i]! * ru + jv[i]! * rv);
-        for (let j = 0; j < 8; j++) jtj[i * 8 + j]! += w * (ju[i]! * ju[j]! + jv[i]! * jv[j]!);
+  const start = normaliseH(mat3Mul(td, mat3Mul(h0, mat3Inv(ts))));
+  const h8 = start[8];
+  const asH = (t: Float64Array): Mat3 => [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!, t[5]!, t[6]!, t[7]!, h8];
+  const jtj = new Float64Array(64), jtr = new Float64Array(8);
+  const ju = new Float64Array(8), jv = new Float64Array(8);
+  const theta = Float64Array.from(start.slice(0, 8));
+  levenbergMarquardt({
+    n: 8,
+    cost: (t) => {
+      const hh = asH(t);
+      let c = 0;
+      for (let k = 0; k < sx.length; k++) {
+        const [u, v] = applyH(hh, sx[k]![0], sx[k]![1]);
+        c += (weights ? weights[k]! : 1) * ((u - dx[k]![0]) ** 2 + (v - dx[k]![1]) ** 2);
       }
-    }
-    let accepted = false, gain = 0;
-    for (let tries = 0; tries < 8; tries++) {
-      const a = Float64Array.from(jtj);
-      for (let i = 0; i < 8; i++) a[i * 9]! += lambda * (jtj[i * 9]! || 1);
-      const step = solveSpd(a, 8, jtr);
-      if (!step) { lambda *= 10; continue; }
-      const hn = h.slice() as Mat3;
-      for (let i = 0; i < 8; i++) hn[i]! -= step[i]!;
-      const c1 = cost(hn);
-      if (c1 <= c0) { h = hn; gain = c0 - c1; c0 = c1; lambda = Math.max(lambda / 10, 1e-12); accepted = true; break; }
-      lambda *= 10;
-    }
-    if (!accepted || gain <= 1e-14 * (c0 + 1e-300)) break;
-  }
-  return normaliseH(mat3Mul(mat3Inv(td), mat3Mul(h, ts)));
+      return c;
+    },
+    normalEquations: (t) => {
+      const h = asH(t);
+      jtj.fill(0); jtr.fill(0);
+      for (let k = 0; k < sx.length; k++) {
+        const w = weights ? weights[k]! : 1;
+        if (!(w > 0)) continue;
+        const [x, y] = sx[k]!;
+        const den = h[6] * x + h[7] * y + h[8];
+        const u = (h[0] * x + h[1] * y + h[2]) / den, v = (h[3] * x + h[4] * y + h[5]) / den;
+        ju.set([x / den, y / den, 1 / den, 0, 0, 0, (-u * x) / den, (-u * y) / den]);
+        jv.set([0, 0, 0, x / den, y / den, 1 / den, (-v * x) / den, (-v * y) / den]);
+        const ru = u - dx[k]![0], rv = v - dx[k]![1];
+        for (let i = 0; i < 8; i++) {
+          jtr[i]! += w * (ju[i]! * ru + jv[i]! * rv);
+          for (let j = 0; j < 8; j++) jtj[i * 8 + j]! += w * (ju[i]! * ju[j]! + jv[i]! * jv[j]!);
+        }
+      }
+      return { jtj, jtr };
+    },
+  }, theta, { maxIterations: iterations, lambda: 1e-3, minRelativeGain: 1e-14 });
+  return normaliseH(mat3Mul(mat3Inv(td), mat3Mul(asH(theta), ts)));
 }
 
 /**
