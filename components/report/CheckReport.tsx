@@ -26,6 +26,7 @@ import { PanelsTable } from './PanelsTable';
 import { PhotoMarks, type PhotoMark } from './PhotoMarks';
 import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
 import { ExaggerationSelect } from './ExaggerationSelect';
+import { MethodNote } from './MethodNote';
 import type { CheckDetail } from '@/lib/services/check-views';
 import { VERDICT_BOX, VERDICT_WORD } from '@/components/Verdict';
 
@@ -183,6 +184,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
           <p>The photo is not available for this check.{detail.photo.reason ? ` ${detail.photo.reason}` : ''}</p>
         )}
       </section>
+      <MethodNote pattern={detail.pattern} unit={unit} />
       <div className="no-print">
         {/* comments on the check or one position; deleting is on the share-and-discuss page */}
         <CommentsPanel checkId={id} meId="" isOwner={false} positionLabels={report.positions.map((p) => p.label)} onSelectPosition={setSelected} />
