@@ -9,7 +9,7 @@
  */
 import { decomposeAffine, fitAffine, invert2, type AffineTerms, type Mat2 } from './affine';
 import { undistortPx } from './camera';
-import type { BedModel } from './bedfit';
+import { PARAM, paramCov, type BedModel } from './bedfit';
 import type { Pt } from './homography';
 import { applyH, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { squareCornersMm } from './square';
@@ -104,8 +104,8 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
   }
   // Homography and lens: full covariance of the 10 global parameters. Jg is 3 × 10.
   const Jg: number[][] = [[], [], []];
-  for (let p = 0; p < 10; p++) {
-    const sd = Math.sqrt(Math.max(m.cov[p * m.np + p]!, 0));
+  for (let p = 0; p < PARAM.global; p++) {
+    const sd = Math.sqrt(Math.max(paramCov(m, p, p), 0));
     const step = sd > 0 && Number.isFinite(sd) ? sd * 1e-2 : 1e-9;
     const g = Float64Array.from(g0);
     g[p]! += step;
@@ -118,7 +118,7 @@ export function latticeShape(m: BedModel, cornersPx: readonly Pt[], sizeMm: numb
     for (let k = 0; k < 8; k++) for (let l = 0; l < 8; l++) s += Jc[a]![k]! * Sc(k, l) * Jc[b]![l]!;
     covC[a * 3 + b] = s;
     let t = 0;
-    for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) t += Jg[a]![p]! * m.cov[p * m.np + q]! * Jg[b]![q]!;
+    for (let p = 0; p < PARAM.global; p++) for (let q = 0; q < PARAM.global; q++) t += Jg[a]![p]! * paramCov(m, p, q) * Jg[b]![q]!;
     covG[a * 3 + b] = Number.isFinite(t) ? t : a === b ? Infinity : 0;
   }
   const eps2 = (sizeSigmaMm / sizeMm) ** 2;
@@ -178,14 +178,14 @@ export function globalSigma(m: BedModel, f: (H: Mat3, k1: number, k2: number) =>
   const Hof = (g: Float64Array) => mat3Inv(modelHinv(m, g));
   const v0 = f(Hof(g0), g0[8]!, g0[9]!);
   const J: number[] = [];
-  for (let p = 0; p < 10; p++) {
-    const sd = Math.sqrt(Math.max(m.cov[p * m.np + p]!, 0));
+  for (let p = 0; p < PARAM.global; p++) {
+    const sd = Math.sqrt(Math.max(paramCov(m, p, p), 0));
     const step = sd > 0 && Number.isFinite(sd) ? sd * 1e-2 : 1e-9;
     const g = Float64Array.from(g0);
     g[p]! += step;
     J.push((f(Hof(g), g[8]!, g[9]!) - v0) / step);
   }
   let s = 0;
-  for (let p = 0; p < 10; p++) for (let q = 0; q < 10; q++) s += J[p]! * m.cov[p * m.np + q]! * J[q]!;
+  for (let p = 0; p < PARAM.global; p++) for (let q = 0; q < PARAM.global; q++) s += J[p]! * paramCov(m, p, q) * J[q]!;
   return Number.isFinite(s) ? Math.sqrt(Math.max(s, 0)) : Infinity;
 }
