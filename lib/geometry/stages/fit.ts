@@ -13,6 +13,11 @@ import type { Mat3 } from '../linalg';
 import type { AnalysisInput } from './input';
 import { familiesBySize, mapDetections, matchedPairs, minPitchMm, requireMatches } from './matching';
 
+const FIT_ROUNDS = 3;
+/** Diameter tolerance (relative) and largest gate (mm) of the wide gate. */
+const WIDE_DIAMETER_TOL = 0.15;
+const WIDE_GATE_MM = 5;
+
 export interface LensAndBedFit {
   model: BedModel;
   /** The final assignment: the fit's matches plus those of the wide gate. */
@@ -22,11 +27,6 @@ export interface LensAndBedFit {
   /** Number of matches in the fit. */
   fitCount: number;
 }
-
-const FIT_ROUNDS = 3;
-/** Diameter tolerance (relative) and largest gate (mm) of the wide gate. */
-const WIDE_DIAMETER_TOL = 0.15;
-const WIDE_GATE_MM = 5;
 
 /**
  * @param start assignment and bed → image homography (mm → px) from the correspondence stages
