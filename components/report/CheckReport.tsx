@@ -28,6 +28,7 @@ import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTab
 import { ExaggerationSelect } from './ExaggerationSelect';
 import { MethodNote } from './MethodNote';
 import type { CheckDetail } from '@/lib/services/check-views';
+import { hiddenWords } from '@/lib/report/hidden';
 import { VERDICT_BOX, VERDICT_WORD } from '@/components/Verdict';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
@@ -62,7 +63,7 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
   const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
   const items: MapItem[] = useMemo(() => report.positions.map((p) => ({
     key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: p.verdict,
-    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen${p.hidden ? ' (under the reference square)' : ''}`,
+    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen${p.hidden ? ` (${hiddenWords(p)})` : ''}`,
   })), [report, unit]);
   const rows = useMemo(() => positionRows(report), [report]);
   const counts = useMemo(() => {

@@ -17,6 +17,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import type { Report, Verdict } from '@/lib/geometry/contract';
+import { hiddenWords } from '@/lib/report/hidden';
 import { MARKS } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { MarkChip } from './Mark';
@@ -35,6 +36,8 @@ export interface PositionRow {
   /** Tolerance left: tol − r, mm (negative when out). */
   spare: number | null;
   hidden: boolean;
+  /** Why a hidden position was not seen, in words (lib/report/hidden.ts); null when not hidden. */
+  notSeen: string | null;
   /** Hole-to-hole (form) verdict and deviation, mm; null when not measured or in a report made before them. */
   formVerdict: Verdict | null;
   formR: number | null;
@@ -75,6 +78,7 @@ export function positionRows(report: Report): PositionRow[] {
     tol: p.toleranceMm,
     spare: p.deviation ? p.toleranceMm - p.deviation.r : null,
     hidden: !!p.hidden,
+    notSeen: hiddenWords(p),
     formVerdict: p.form?.verdict ?? null,
     formR: p.form?.r ?? null,
   }));
@@ -201,7 +205,12 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
       {shown.length > limit && (
         <button type="button" className="btn btn-quiet no-print self-start" onClick={() => setLimit(shown.length)}>Show all {shown.length} positions</button>
       )}
-      {rows.some((r) => r.hidden) && <p className="text-sm text-muted">Positions under the reference square are listed as not seen; that is expected.</p>}
+      {rows.some((r) => r.hidden) && (
+        <p className="text-sm text-muted" data-testid="hidden-note">
+          Not measured, neither in nor out, because only part of the hole could be seen or none of it:{' '}
+          {[...new Set(rows.flatMap((r) => (r.notSeen ? [r.notSeen] : [])))].map((w) => `${rows.filter((r) => r.notSeen === w).length} ${w}`).join('; ')}. That is expected; move the sheet or what covers them and take another photo to check them.
+        </p>
+      )}
       <p className="sr-only">{Object.values(MARKS).map((m) => `${m.label}: ${m.meaning}.`).join(' ')}</p>
     </div>
   );

@@ -162,6 +162,20 @@ export const PatternSchema = z
 export type Pattern = z.infer<typeof PatternSchema>;
 
 const PointPx = z.tuple([num('x'), num('y')]);
+
+/**
+ * Why a position was not measured although it may be in the photo: its rim, with a blur margin, meets the reference
+ * sheet ('sheet'), the photo's border ('border') or something lying over it ('occluded', e.g. a clamp). Such a hole
+ * is reported not seen, never in or out.
+ */
+export const HIDDEN_REASONS = ['sheet', 'border', 'occluded'] as const;
+export type HiddenReason = (typeof HIDDEN_REASONS)[number];
+
+/**
+ * Blur margin around a hole's rim, image px: a rim closer than this to the sheet or the photo's border is seen only in
+ * part (the edge spread of a photo blurred by up to σ 1.5 px reaches about 2σ, plus a pixel for the outline's error).
+ */
+export const RIM_MARGIN_PX = 4;
 const side = (field: string) => num(field).int(`${field} must be a whole number of px`).min(1, `${field} must be between 1 and ${MAX_IMAGE_SIDE_PX} px`).max(MAX_IMAGE_SIDE_PX, `${field} must be between 1 and ${MAX_IMAGE_SIDE_PX} px`);
 
 export const PointsSchema = z.object({
@@ -194,6 +208,20 @@ export const PointsSchema = z.object({
       }),
     )
     .max(MAX_DETECTIONS, `at most ${MAX_DETECTIONS} holes`),
+  /**
+   * The reference sheet's outline (the paper around the printed square), image px, four corners in order around it;
+   * may reach past the photo. A hole whose rim, with a blur margin, meets it is not measured (reported hidden by the
+   * sheet). Absent: only the printed square is known to hide holes.
+   */
+  sheet: z.tuple([PointPx, PointPx, PointPx, PointPx]).optional(),
+  /**
+   * Holes the detector saw only in part (their rim meets the sheet, the photo's border or something lying over it):
+   * not measured; the position they belong to is reported not seen, with the reason. Image px.
+   */
+  hidden: z
+    .array(z.object({ x: num('x'), y: num('y'), diameterPx: num('diameterPx').positive('diameterPx must be more than 0'), by: z.enum(HIDDEN_REASONS) }))
+    .max(MAX_DETECTIONS, `at most ${MAX_DETECTIONS} hidden holes`)
+    .optional(),
 }).superRefine((d, ctx) => {
   // every point lies on the photo (image px, origin top-left); a hole is smaller than the photo
   const { width: w, height: h } = d.image;
@@ -270,8 +298,10 @@ export const ReportPositionSchema = z.object({
   uncertaintyMm: finite.nullable(),
   toleranceMm: finite,
   verdict: z.enum(VERDICTS),
-  /** True when a missing position lies under the reference sheet (expected to be unseen). */
+  /** True when a missing position lies under the reference sheet or is seen only in part (expected to be unseen). */
   hidden: z.boolean().optional(),
+  /** Why a hidden position was not measured (HIDDEN_REASONS); absent in reports made before it existed. */
+  hiddenBy: z.enum(HIDDEN_REASONS).optional(),
   /** True when a missing position falls outside the photo. */
   outOfView: z.boolean().optional(),
   /** Hole-to-hole deviation; `deviation`, `uncertaintyMm` and `verdict` above are the rigid ones (whole bed). */

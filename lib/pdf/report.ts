@@ -13,6 +13,7 @@ import { distanceSentence } from '@/lib/report/distances';
 import { bandRadiusMm } from '@/lib/geometry/band';
 import { mapGeometry, nearestSpacing, niceFactor, VERDICT_RGB } from './map';
 import { drawable, wrapText } from './text';
+import { hiddenWords } from '@/lib/report/hidden';
 import { mmToPt, paperSizePt, type Paper } from './units';
 
 export interface ReportPdfComment {
@@ -343,8 +344,14 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     f.y -= 6;
     f.paragraph(`Not seen (${missing.length}): ${missing.slice(0, 120).map((q) => q.label).join(', ')}${missing.length > 120 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
-  if (hidden.length) {
-    f.paragraph(`Under the reference sheet, so not seen (${hidden.length}): ${hidden.slice(0, 60).map((q) => q.label).join(', ')}${hidden.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
+  // hidden positions grouped by why they were not seen (not measured: neither in nor out)
+  const byReason = new Map<string, string[]>();
+  for (const q of hidden) {
+    const w = hiddenWords(q)!;
+    byReason.set(w, [...(byReason.get(w) ?? []), q.label]);
+  }
+  for (const [words, labels] of byReason) {
+    f.paragraph(`Not seen, ${words} (${labels.length}): ${labels.slice(0, 60).join(', ')}${labels.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
 
   // Comments

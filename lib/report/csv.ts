@@ -5,6 +5,7 @@
  * Bed frame: origin front-left, +X right, +Y away from the operator.
  */
 import type { Report } from '@/lib/geometry/contract';
+import { hiddenWords } from './hidden';
 import { csvLength, type LengthUnit } from './units';
 
 /** One CSV field, quoted when RFC 4180 needs it. */
@@ -26,7 +27,7 @@ export function toCsv(rows: readonly (readonly (string | number | boolean | null
 export function positionsCsv(report: Report, unit: LengthUnit): string {
   const u = unit;
   const header = ['label', 'family', 'col', 'row', 'panel', `nominal_x_${u}`, `nominal_y_${u}`, `measured_x_${u}`, `measured_y_${u}`, `dx_${u}`, `dy_${u}`, `deviation_${u}`, `uncertainty_1sigma_${u}`, `tolerance_${u}`, 'verdict', 'under_reference',
-    `hole_to_hole_dx_${u}`, `hole_to_hole_dy_${u}`, `hole_to_hole_deviation_${u}`, `hole_to_hole_uncertainty_1sigma_${u}`, 'hole_to_hole_verdict'];
+    `hole_to_hole_dx_${u}`, `hole_to_hole_dy_${u}`, `hole_to_hole_deviation_${u}`, `hole_to_hole_uncertainty_1sigma_${u}`, 'hole_to_hole_verdict', 'not_seen_because'];
   const rows = report.positions.map((p) => [
     p.label, p.family, p.col, p.row, p.panel ?? '',
     csvLength(p.nominal.x, u), csvLength(p.nominal.y, u),
@@ -34,7 +35,7 @@ export function positionsCsv(report: Report, unit: LengthUnit): string {
     csvLength(p.deviation?.dx, u), csvLength(p.deviation?.dy, u), csvLength(p.deviation?.r, u),
     csvLength(p.uncertaintyMm, u), csvLength(p.toleranceMm, u),
     p.verdict, p.hidden ? 'yes' : '',
-    csvLength(p.form?.dx, u), csvLength(p.form?.dy, u), csvLength(p.form?.r, u), csvLength(p.form?.uncertaintyMm, u), p.form?.verdict ?? '',
+    csvLength(p.form?.dx, u), csvLength(p.form?.dy, u), csvLength(p.form?.r, u), csvLength(p.form?.uncertaintyMm, u), p.form?.verdict ?? '', hiddenWords(p) ?? '',
   ]);
   return toCsv([header, ...rows]);
 }

@@ -45,7 +45,7 @@ export function publicReport(r: Report): Report {
     pattern: { name: r.pattern.name },
     positions: r.positions.map((p) => ({
       family: p.family, col: p.col, row: p.row, label: p.label, panel: p.panel, nominal: p.nominal, measured: p.measured,
-      deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}),
+      deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}), ...(p.hiddenBy ? { hiddenBy: p.hiddenBy } : {}),
       ...(p.form ? { form: { dx: p.form.dx, dy: p.form.dy, r: p.form.r, uncertaintyMm: p.form.uncertaintyMm, verdict: p.form.verdict } } : {}),
     })),
     unmatched: [],

@@ -35,6 +35,16 @@ export interface HoleDetection {
   planeMm: [number, number];
   /** Hole-to-surround contrast, grey levels (0–255 scale). */
   contrast: number;
+  /** Longest run of the rim without edge points on the fitted circle, degrees (a cut rim: sheet, clamp, border). */
+  rimGapDeg: number;
+}
+
+/** A dark round blob of a family's size whose rim is broken over too long an arc to measure it (seen in part). */
+export interface PartialHole {
+  x: number;
+  y: number;
+  diameterPx: number;
+  planeMm: [number, number];
 }
 
 export interface HoleSearch {
@@ -43,6 +53,8 @@ export interface HoleSearch {
   exclude?: [number, number][];
   /** Relative size tolerance for a family (default 0.15). */
   sizeTolerance?: number;
+  /** Receives the candidates refused because their rim is broken over a long arc (holes seen in part). */
+  onPartial?: (p: PartialHole) => void;
 }
 
 function insidePoly(poly: [number, number][], x: number, y: number): boolean {
@@ -111,10 +123,24 @@ interface Refined {
   contrast: number;
   roundness: number;
   coverage: number;
+  rimGapDeg: number;
+}
+
+/** Longest circular run of rays (of K) not in `kept`, degrees. */
+function longestGapDeg(kept: boolean[]): number {
+  const K = kept.length;
+  if (kept.every((k) => !k)) return 360;
+  let best = 0;
+  let run = 0;
+  for (let i = 0; i < 2 * K; i++) {
+    if (kept[i % K]) run = 0;
+    else best = Math.max(best, ++run);
+  }
+  return (Math.min(best, K) * 360) / K;
 }
 
 /** Refines one hole on the bed plane. Returns null when it is not a dark round hole. */
-export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0: number, y0: number, rMm: number, method: CentreMethod): Refined | null {
+export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0: number, y0: number, rMm: number, method: CentreMethod, onBrokenRim?: (cx: number, cy: number, rMm: number) => void): Refined | null {
   const s = homographyScale(H, x0, y0);
   const d = 1 / s; // mm per image px here
   const [h0, h1, h2, h3, h4, h5, h6, h7, h8] = H as [number, number, number, number, number, number, number, number, number];
@@ -139,6 +165,7 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0
   const rays = (K: number) => {
     const mid = (Lin + Lout) / 2;
     const pts: [number, number][] = [];
+    rayOf.length = 0;
     const step = 0.25 * d;
     const rho0 = Math.max(0.3 * r, r - 5 * d);
     const rho1 = r + 5 * d;
@@ -160,12 +187,17 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0
         }
         prev = v;
       }
-      if (best > 0) pts.push([cx + best * c, cy + best * sn]);
+      if (best > 0) {
+        pts.push([cx + best * c, cy + best * sn]);
+        rayOf.push(k);
+      }
     }
     return pts;
   };
+  const rayOf: number[] = [];
   let fitRes = 0;
   let coverage = 0;
+  let rimGapDeg = 0;
   let diameterMm = 2 * r;
   for (let iter = 0; iter < 4; iter++) {
     levels();
@@ -173,14 +205,25 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0
     const K = 48;
     let pts = rays(K);
     coverage = pts.length / K;
-    if (coverage < 0.6) return null;
+    if (coverage < 0.6) {
+      onBrokenRim?.(cx, cy, r);
+      return null;
+    }
     let c = fitCircle(pts);
     if (!c) return null;
     let res = pts.map((p) => Math.abs(Math.hypot(p[0] - c!.cx, p[1] - c!.cy) - c!.r));
     const mad = median(res) * 1.4826 + 0.05 * d;
     const keep = pts.filter((_, i) => res[i]! < 3 * mad);
     // a hole partly covered (by the paper sheet, a clamp) shows a straight or broken rim: too many rays disagree
-    if (keep.length < 0.8 * K) return null;
+    if (keep.length < 0.8 * K) {
+      onBrokenRim?.(c.cx, c.cy, c.r);
+      return null;
+    }
+    const kept = new Array<boolean>(K).fill(false);
+    pts.forEach((_, i) => {
+      if (res[i]! < 3 * mad) kept[rayOf[i]!] = true;
+    });
+    rimGapDeg = longestGapDeg(kept);
     coverage = keep.length / K;
     {
       pts = keep;
@@ -222,7 +265,7 @@ export function refineHole(grey: Float32Array, w: number, h: number, H: Mat3, x0
     cy = ny;
     if (moved < 0.005 * d && iter >= 1) break;
   }
-  return { cx, cy, diameterMm, contrast: Lout - Lin, roundness: fitRes / r, coverage };
+  return { cx, cy, diameterMm, contrast: Lout - Lin, roundness: fitRes / r, coverage, rimGapDeg };
 }
 
 /**
@@ -335,9 +378,19 @@ export async function findHoles(
   }
   const out: HoleDetection[] = [];
   for (const c of cands) {
-    const r = refineHole(grey, w, h, H, c.x, c.y, c.fam.diameterMm / 2, method);
+    const r = refineHole(grey, w, h, H, c.x, c.y, c.fam.diameterMm / 2, method, search.onPartial ? (px, py, rr) => {
+      const p = applyH(H, px, py);
+      search.onPartial!({ x: p[0], y: p[1], diameterPx: 2 * rr * homographyScale(H, px, py), planeMm: [px, py] });
+    } : undefined);
     if (!r) continue;
-    if (r.roundness > 0.08) continue;
+    if (r.roundness > 0.08) {
+      // a dark blob of a hole's size and contrast whose rim is out of round: a rim cut straight (sheet, board) or broken
+      if (search.onPartial && r.contrast >= 10) {
+        const p = applyH(H, r.cx, r.cy);
+        search.onPartial({ x: p[0], y: p[1], diameterPx: r.diameterMm * homographyScale(H, r.cx, r.cy), planeMm: [r.cx, r.cy] });
+      }
+      continue;
+    }
     let fam: FamilySize | undefined;
     let err = Infinity;
     for (const f of families) {
@@ -351,7 +404,7 @@ export async function findHoles(
     const p = applyH(H, r.cx, r.cy);
     const s = homographyScale(H, r.cx, r.cy);
     const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (tol * 1.5)) * r.coverage;
-    out.push({ x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast });
+    out.push({ x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast, rimGapDeg: r.rimGapDeg });
   }
   // one detection per hole: keep the most confident of any that overlap
   out.sort((a, b) => b.confidence - a.confidence);

@@ -4,10 +4,11 @@
  * (image px, origin top-left, +y down). `analyzeImage` adds the fit and returns the Report.
  */
 import type { AnalyzeOptions } from '@/lib/geometry';
-import type { Pattern, PhotoQuality, Points, Report } from '@/lib/geometry/contract';
+import { RIM_MARGIN_PX, type HiddenReason, type Pattern, type PhotoQuality, type Points, type Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
-import { homographyFrom4, type Mat3 } from '@/lib/geometry/homography';
-import { findHoles, type CentreMethod, type FamilySize, type HoleDetection } from './holes';
+import { homographyFrom4, homographyScale, type Mat3 } from '@/lib/geometry/homography';
+import { findHoles, type CentreMethod, type FamilySize, type HoleDetection, type PartialHole } from './holes';
+import { findSheet, signedDistanceToOutline, type SheetOutline } from './sheet';
 import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
 import { measureQuality } from './quality';
 import { findSquare, type Corners } from './square';
@@ -18,6 +19,27 @@ export { DEFAULT_MAX_PIXELS } from './load';
 
 /** Stages reported through `onStage`, in order. */
 export type VisionStage = 'reading photo' | 'finding square' | 'finding holes' | 'fitting';
+
+/** A rim cut over at least this arc (degrees) by something lying over the hole is not measured. */
+export const OCCLUDED_GAP_DEG = 30;
+
+/** A hole seen only in part: image px, and why. */
+export interface HiddenHole {
+  x: number;
+  y: number;
+  diameterPx: number;
+  by: HiddenReason;
+  family?: string;
+}
+
+function medianOf(a: Uint8Array): number {
+  const hist = new Uint32Array(256);
+  for (let i = 0; i < a.length; i += 7) hist[a[i]!]!++;
+  let acc = 0;
+  const half = hist.reduce((x, y) => x + y, 0) / 2;
+  for (let v = 0; v < 256; v++) if ((acc += hist[v]!) >= half) return v;
+  return 255;
+}
 
 /** Fewest holes the fit can work with. */
 export const MIN_HOLES = 4;
@@ -66,6 +88,10 @@ export interface DetectMeta {
   /** Grey channel mix (R, G, B weights). */
   mix: [number, number, number];
   detections: (HoleDetection & { family: string })[];
+  /** Holes seen only in part, not measured, with the reason (also in the points). */
+  hidden: HiddenHole[];
+  /** The reference sheet's outline, image px, and how each side was found (sheet.ts); absent for corners given by hand. */
+  sheet?: { cornersPx: [number, number][]; sides: SheetOutline['sides'] };
   /** The photo-quality stage's verdict (lib/vision/quality.ts). */
   quality: PhotoQuality;
   timingsMs: Record<string, number>;
@@ -128,7 +154,32 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   // the sheet itself hides what lies under it; only the printed square is kept out of the search
   const m = 0.02 * S;
   const exclude: [number, number][] = [[-m, -m], [S + m, -m], [S + m, S + m], [-m, S + m]];
-  const dets = await findHoles(grey, w, h, small, factor, H, familySizes(pattern), { method: opts.method ?? 'centroid', ...(square.source === 'detected' ? { exclude } : {}) });
+  const partial: PartialHole[] = [];
+  const found = await findHoles(grey, w, h, small, factor, H, familySizes(pattern), { method: opts.method ?? 'centroid', onPartial: (p) => partial.push(p), ...(square.source === 'detected' ? { exclude } : {}) });
+  // Holes seen in part are not measured: their rim, with a blur margin, meets the sheet or the photo's border, or is
+  // cut over a long arc by something lying over it.
+  // (only around a square found in the photo: corners marked by hand may lie on anything)
+  const sheet = square.source === 'detected' ? findSheet(grey, w, h, H, S, medianOf(small.data)) : null;
+  const dets: typeof found = [];
+  const hidden: HiddenHole[] = [];
+  const reasonOf = (x: number, y: number, diameterPx: number, planeMm: [number, number], gapDeg: number): HiddenReason | null => {
+    const reachPx = diameterPx / 2 + RIM_MARGIN_PX;
+    if (x < reachPx || y < reachPx || x > w - reachPx || y > h - reachPx) return 'border';
+    const mmPerPx = 1 / homographyScale(H, planeMm[0], planeMm[1]);
+    if (sheet && signedDistanceToOutline(sheet.cornersMm, planeMm[0], planeMm[1]) < reachPx * mmPerPx) return 'sheet';
+    return gapDeg >= OCCLUDED_GAP_DEG ? 'occluded' : null;
+  };
+  for (const d of found) {
+    const by = reasonOf(d.x, d.y, d.diameterPx, d.planeMm, d.rimGapDeg);
+    if (by) hidden.push({ x: d.x, y: d.y, diameterPx: d.diameterPx, by, family: d.family });
+    else dets.push(d);
+  }
+  for (const p of partial) {
+    // a broken rim is one seen in part: by the sheet or the border when they are that near, else by something on it
+    if (p.x < 0 || p.y < 0 || p.x > w || p.y > h) continue;
+    if (hidden.some((q) => Math.hypot(q.x - p.x, q.y - p.y) < q.diameterPx / 2) || dets.some((q) => Math.hypot(q.x - p.x, q.y - p.y) < q.diameterPx / 2)) continue;
+    hidden.push({ x: p.x, y: p.y, diameterPx: p.diameterPx, by: reasonOf(p.x, p.y, p.diameterPx, p.planeMm, 360)! });
+  }
   lap('holes');
   if (dets.length < MIN_HOLES) {
     throw new VisionInputError('too-few-holes', `Only ${dets.length} hole${dets.length === 1 ? ' was' : 's were'} found; at least ${MIN_HOLES} are needed. Check that the pattern's hole sizes are right, the bed is swept clean and evenly lit, and the photo is sharp.`);
@@ -139,10 +190,12 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     // the fit would trust it; until it is calibrated the analysis keeps its cautious default.
     reference: { sizeMm: S, corners: corners.map((c) => [c[0], c[1]]) as Points['reference']['corners'] },
     holes: dets.map((d) => ({ x: d.x, y: d.y, diameterPx: d.diameterPx, confidence: d.confidence })),
+    ...(sheet ? { sheet: sheet.cornersPx.map((c) => [c[0], c[1]]) as NonNullable<Points['sheet']> } : {}),
+    ...(hidden.length ? { hidden: hidden.map((q) => ({ x: q.x, y: q.y, diameterPx: q.diameterPx, by: q.by })) } : {}),
   };
   return {
     points,
-    meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, quality, timingsMs: t },
+    meta: { width: w, height: h, orientation: photo.orientation, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), bitDepth: photo.bitDepth, format: photo.format, square, reduction: factor, mix: photo.mix, detections: dets, hidden, ...(sheet ? { sheet: { cornersPx: sheet.cornersPx, sides: sheet.sides } } : {}), quality, timingsMs: t },
   };
 }
 

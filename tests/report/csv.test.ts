@@ -24,10 +24,10 @@ describe('CSV export', () => {
   it('writes every position with lengths in mm', () => {
     const lines = positionsCsv(report, 'mm').split('\r\n');
     expect(lines[0]).toBe('label,family,col,row,panel,nominal_x_mm,nominal_y_mm,measured_x_mm,measured_y_mm,dx_mm,dy_mm,deviation_mm,uncertainty_1sigma_mm,tolerance_mm,verdict,under_reference,'
-      + 'hole_to_hole_dx_mm,hole_to_hole_dy_mm,hole_to_hole_deviation_mm,hole_to_hole_uncertainty_1sigma_mm,hole_to_hole_verdict');
+      + 'hole_to_hole_dx_mm,hole_to_hole_dy_mm,hole_to_hole_deviation_mm,hole_to_hole_uncertainty_1sigma_mm,hole_to_hole_verdict,not_seen_because');
     // √(0.1² + 0.2²) = 0.2236… → 0.224
-    expect(lines[1]).toBe('insert A1,ins,0,0,P1,50.800,25.400,50.900,25.200,0.100,-0.200,0.224,0.050,0.500,in,,0.030,-0.040,0.050,0.010,in');
-    expect(lines[2]).toBe('insert B1,ins,1,0,,101.600,25.400,,,,,,,0.500,missing,yes,,,,,');
+    expect(lines[1]).toBe('insert A1,ins,0,0,P1,50.800,25.400,50.900,25.200,0.100,-0.200,0.224,0.050,0.500,in,,0.030,-0.040,0.050,0.010,in,');
+    expect(lines[2]).toBe('insert B1,ins,1,0,,101.600,25.400,,,,,,,0.500,missing,yes,,,,,,under the reference square');
     expect(lines).toHaveLength(4);
     expect(lines[3]).toBe('');
   });

@@ -4,7 +4,7 @@
  * corners (px) with its homography (square frame mm → image px), and sets aside the detections that lie on the
  * reference sheet (they are not holes of the bed).
  */
-import { PatternSchema, PointsSchema, type Pattern, type Points } from '../contract';
+import { PatternSchema, PointsSchema, RIM_MARGIN_PX, type HiddenReason, type Pattern, type Points } from '../contract';
 import { defaultFocalPx } from '../camera';
 import type { Detections } from '../correspond';
 import { GeometryInputError } from '../errors';
@@ -33,8 +33,13 @@ export interface AnalysisInput {
     sidePx: number;
   };
   detections: Detections;
-  /** 1 for a detection that may be a hole of the bed, 0 for one on the reference sheet. */
+  /** 1 for a detection that may be a hole of the bed, 0 for one on the reference sheet or seen only in part. */
   usable: Uint8Array;
+  /**
+   * Whether a hole centred at (u, v) px with rim radius rPx is seen only in part: its rim, with RIM_MARGIN_PX, meets
+   * the reference sheet's outline (`points.sheet`) or the photo's border.
+   */
+  rimMeets: (u: number, v: number, rPx: number) => HiddenReason | null;
 }
 
 /** Parses `x` with a zod schema, throwing GeometryInputError naming the first bad field under `root`. */
@@ -71,10 +76,20 @@ export function prepareInput(points: Points, pattern: Pattern): AnalysisInput {
   const sidePx = Math.sqrt(Math.abs((corners[2][0] - corners[0][0]) * (corners[3][1] - corners[1][1]) - (corners[3][0] - corners[1][0]) * (corners[2][1] - corners[0][1])) / 2);
   const usable = new Uint8Array(n);
   for (let i = 0; i < n; i++) usable[i] = insideQuad(corners, detections.u[i]!, detections.v[i]!, ON_SHEET_PAD * sidePx) ? 0 : 1;
+  // A hole whose rim meets the sheet or the border is seen only in part: its centre would be biased, so it is not
+  // measured (its position is reported hidden, stage 8).
+  const sheet = pts.sheet ? orderSquareCorners(pts.sheet as unknown as Pt[]) : null;
+  const rimMeets = (u: number, v: number, rPx: number): HiddenReason | null => {
+    const reach = rPx + RIM_MARGIN_PX;
+    if (sheet && insideQuad(sheet, u, v, reach)) return 'sheet';
+    if (u < reach || v < reach || u > width - reach || v > height - reach) return 'border';
+    return null;
+  };
+  for (let i = 0; i < n; i++) if (usable[i] && rimMeets(detections.u[i]!, detections.v[i]!, detections.dPx[i]! / 2)) usable[i] = 0;
   return {
     points: pts, pattern: pm, lattice,
     image: { width, height, startFocalPx: pts.image.focalPx ?? defaultFocalPx(width, height) },
     square: { corners, toImage, fromImage: mat3Inv(toImage), sidePx },
-    detections, usable,
+    detections, usable, rimMeets,
   };
 }

@@ -3,12 +3,13 @@
  * the shape-only map into the true (metric) frame, and placed on nominal by the best rigid fit (Umeyama) of the
  * fitted positions; its deviation (bed mm) has a 1σ per axis of √((σ_centre · mm/px)² + shape term), the shape term
  * growing with the distance from the fitted positions' centroid (shape.ts). A position not seen is `missing`, marked
- * `hidden` when it would lie under the reference sheet and `outOfView` when outside the photo; those two are not
- * expected to be seen.
+ * `hidden` when it would lie under the reference sheet or be seen only in part — a hole the detector saw in part
+ * (`points.hidden`), or a rim that meets the sheet or the photo's border — with the reason (`hiddenBy`), and
+ * `outOfView` when outside the photo; those are not expected to be seen, and never in or out.
  */
 import type { Mat2 } from '../affine';
 import { mmPerPxAt, predictPx, toLattice, type BedModel } from '../bedfit';
-import type { Report } from '../contract';
+import type { HiddenReason, Report } from '../contract';
 import type { Assignment } from '../correspond';
 import { shapeDisplacementVar } from '../shape';
 import { insideQuad } from '../square';
@@ -54,6 +55,7 @@ export function placePositions(
   cxm /= Math.max(1, fitW.length); cym /= Math.max(1, fitW.length);
 
   const hidden = new Uint8Array(P), notExpected = new Uint8Array(P);
+  const spots = inp.points.hidden ?? [];
   const positions: Report['positions'] = lat.positions.map((q, pos) => {
     const fam = lat.families[q.family]!;
     const panel = lat.panels[q.panel]!.implicit ? null : lat.panels[q.panel]!.id;
@@ -61,11 +63,20 @@ export function placePositions(
     const d = assignment.detOf[pos]!;
     if (d < 0) {
       const [pu, pv] = predictPx(model, q.x, q.y, q.panel, lat.panels);
-      const hid = insideQuad(square.corners, pu, pv, ON_SHEET_PAD * square.sidePx);
       const away = !(pu >= 0 && pv >= 0 && pu < W && pv < H);
+      const rPx = fam.family.holeDiameter / 2 / Math.max(1e-9, mmPerPxAt(model, pu, pv));
+      // under the printed square; a hole the detector saw in part (the nearest spot within a radius); a rim that meets
+      // the sheet or the border
+      let by: HiddenReason | null = insideQuad(square.corners, pu, pv, ON_SHEET_PAD * square.sidePx) ? 'sheet' : null;
+      if (!by) {
+        let best = rPx;
+        for (const sp of spots) { const dd = Math.hypot(sp.x - pu, sp.y - pv); if (dd < best) { best = dd; by = sp.by; } }
+      }
+      if (!by && !away) by = inp.rimMeets(pu, pv, rPx);
+      const hid = by !== null;
       hidden[pos] = hid ? 1 : 0;
       notExpected[pos] = hid || away ? 1 : 0;
-      return { ...base, measured: null, deviation: null, uncertaintyMm: null, verdict: 'missing' as const, ...(hid ? { hidden: true } : {}), ...(away ? { outOfView: true } : {}) };
+      return { ...base, measured: null, deviation: null, uncertaintyMm: null, verdict: 'missing' as const, ...(hid ? { hidden: true, hiddenBy: by! } : {}), ...(away ? { outOfView: true } : {}) };
     }
     const mx = mXY[2 * pos]! - rg.tx, my = mXY[2 * pos + 1]! - rg.ty;
     const x = rc * mx + rs * my, y = -rs * mx + rc * my;

@@ -59,6 +59,13 @@ export interface SceneOptions {
   misplacedMm: number;
   /** Supersampling factor per axis for pixels on an edge. */
   supersample: number;
+  /** The sheet the target is printed on, width × height mm (default: A4, or the square and its margin if larger). */
+  sheetMm?: [number, number];
+  /** Where the square's centre lies on the bed, mm, and its turn, degrees (default: drawn from the seed). */
+  targetCentreMm?: [number, number];
+  targetRotationDeg?: number;
+  /** Objects lying on the bed (clamp bars, a scrap of board), bed mm rectangles, linear reflectance (default 0.06, black): they hide what lies under them. */
+  occluders?: { x: number; y: number; width: number; height: number; tone?: number }[];
 }
 
 export const DEFAULT_SCENE: SceneOptions = {
@@ -105,7 +112,7 @@ export interface TruthHole {
   px: [number, number];
   diameterMm: number;
   visible: boolean;
-  hiddenBy?: 'target' | 'channel' | 'outside';
+  hiddenBy?: 'target' | 'channel' | 'outside' | 'occluder';
 }
 
 interface Disc {
@@ -196,7 +203,8 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
 
   // --- target -------------------------------------------------------------------------------------------
   const S = opts.targetMm;
-  const rot = uniform(rng, -0.6, 0.6);
+  const rot0 = uniform(rng, -0.6, 0.6);
+  const rot = opts.targetRotationDeg !== undefined ? (opts.targetRotationDeg * Math.PI) / 180 : rot0;
   const half = S / 2 + PAPER_MARGIN_FRACTION * S + 20;
   let tcx: number;
   let tcy: number;
@@ -222,6 +230,7 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
     tcx = uniform(rng, half, Math.max(half, bw - half));
     tcy = uniform(rng, half, Math.max(half, bh - half));
   }
+  if (opts.targetCentreMm) [tcx, tcy] = opts.targetCentreMm;
   const cr = Math.cos(rot);
   const sr = Math.sin(rot);
   const toBed = (x: number, y: number): [number, number] => {
@@ -231,8 +240,11 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
   };
   const cornersBed = ([[0, 0], [S, 0], [S, S], [0, S]] as const).map(([x, y]) => toBed(x, y));
   const cornersPx = cornersBed.map(([X, Y]) => projectBed(cam, X, Y)!);
-  const paperHalfW = S / 2 + Math.max(PAPER_MARGIN_FRACTION * S, (210 - S) / 2);
-  const paperHalfH = S / 2 + Math.max(PAPER_MARGIN_FRACTION * S, (297 - S) / 2);
+  const paperHalfW = opts.sheetMm ? opts.sheetMm[0] / 2 : S / 2 + Math.max(PAPER_MARGIN_FRACTION * S, (210 - S) / 2);
+  const paperHalfH = opts.sheetMm ? opts.sheetMm[1] / 2 : S / 2 + Math.max(PAPER_MARGIN_FRACTION * S, (297 - S) / 2);
+  const occluders = opts.occluders ?? [];
+  const occluderAt = (X: number, Y: number) => occluders.find((o) => X >= o.x && X <= o.x + o.width && Y >= o.y && Y <= o.y + o.height);
+  const underOccluder = (X: number, Y: number) => occluderAt(X, Y) !== undefined;
   const underPaper = (X: number, Y: number): [number, number] | null => {
     const dx = X - tcx;
     const dy = Y - tcy;
@@ -306,6 +318,7 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
           const qx = X + outer * 1.05 * Math.cos(a);
           const qy = Y + outer * 1.05 * Math.sin(a);
           if (underPaper(qx, qy) || underPaper(X, Y)) hiddenBy = 'target';
+          else if (underOccluder(qx, qy) || underOccluder(X, Y)) hiddenBy = 'occluder';
           else if (inChannel(qx, qy) >= 0) hiddenBy = 'channel';
         }
         holes.push({ family: f.id, kind: f.kind, col, row, nominal: { x: nx, y: ny }, bed: { x: X, y: Y }, px, diameterMm: f.holeDiameter, visible: !hiddenBy, ...(hiddenBy ? { hiddenBy } : {}) });
@@ -382,6 +395,12 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
     out[2] = b;
   };
   const shade = (X: number, Y: number, out: Float64Array): void => {
+    const oc = occluders.length ? occluderAt(X, Y) : undefined;
+    if (oc) {
+      const t = oc.tone ?? 0.06;
+      set(out, t, t, t * 1.05);
+      return;
+    }
     const tp = underPaper(X, Y);
     if (tp) {
       if (targetInkAt(tp[0], tp[1], S)) set(out, 0.035, 0.035, 0.04);
