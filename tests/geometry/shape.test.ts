@@ -61,13 +61,13 @@ describe('lattice shape uncertainty from the reference square', () => {
     const noisy = makeScene({ ...flat, cornerNoisePx: 0.3, seed: 5 });
     noisy.points.reference.cornerSigmaPx = 0.02;
     const rn = analyzePoints(noisy.points, m6);
-    const dn = rn.diagnostics as { cornerSigmaPx: number; squareResidualPx: number };
+    const dn = rn.diagnostics!;
     expect(dn.squareResidualPx).toBeGreaterThan(CORNER_RESIDUAL_GATE * 0.02);
     expect(dn.cornerSigmaPx).toBe(dn.squareResidualPx);
     // Exact corners stated at 0.05 px: the residual is far below it, the stated value stays.
     const exact = makeScene(flat);
     exact.points.reference.cornerSigmaPx = 0.05;
-    const de = analyzePoints(exact.points, m6).diagnostics as { cornerSigmaPx: number };
+    const de = analyzePoints(exact.points, m6).diagnostics!;
     expect(de.cornerSigmaPx).toBe(0.05);
   });
 
@@ -81,7 +81,7 @@ describe('lattice shape uncertainty from the reference square', () => {
     const far = seen.reduce((a, b) => (Math.hypot(a.nominal.x - cx, a.nominal.y - cy) > Math.hypot(b.nominal.x - cx, b.nominal.y - cy) ? a : b));
     expect(far.uncertaintyMm!).toBeGreaterThan(near.uncertaintyMm!);
     // Centre term alone: residual scatter (px) × mm per px.
-    expect(near.uncertaintyMm!).toBeGreaterThanOrEqual((r.diagnostics as { centreSigmaPx: number }).centreSigmaPx * MM_PER_PX * 0.99);
+    expect(near.uncertaintyMm!).toBeGreaterThanOrEqual(r.diagnostics!.centreSigmaPx * MM_PER_PX * 0.99);
   });
 
   it("adds the square's size uncertainty to both scales alike, leaving squareness alone", () => {
