@@ -12,7 +12,8 @@
  * Limits of one analysis process (`IsolationOptions`):
  * - memory: `--max-old-space-size=memoryMb` for its JavaScript heap, and its resident memory (Linux:
  *   /proc/<pid>/status VmRSS, read every `watchMs`) for everything else; over the cap it is killed;
- * - time: the job's time inside the process (warm-up excluded) may not pass `timeoutMs`; then it is killed.
+ * - time: the job's time inside the process (warm-up excluded) may not pass `timeoutMs`; then it is killed;
+ * - reuse: a process whose resident memory after a step is above half the cap is replaced before the next.
  * A kill, a crash or a fatal error rejects the call with `AnalysisLimitError` naming the reason (retried by
  * the loop like any passing failure; the check shows the reason after the last attempt), and the next call
  * gets a fresh process. Input errors (no square, unreadable photo, points that do not fit the pattern) come
@@ -240,8 +241,20 @@ export class AnalysisPool {
     return this.spawn();
   }
 
+  /**
+   * Back to the idle list after a step, unless its resident memory is already above half the cap (opencv-wasm's
+   * memory grows and is never given back): such a process is ended now, between jobs, and the next step starts
+   * a fresh one, rather than a later job running into the cap.
+   */
   private release(p: AnalysisProcess): void {
-    if (p.alive && this.all.has(p)) this.idle.push(p);
+    if (!p.alive || !this.all.has(p)) return;
+    const mb = residentMb(p.child.pid!);
+    if (mb !== undefined && mb > this.opts.memoryMb / 2) {
+      this.opts.log?.('analysis.recycle', { pid: p.child.pid, residentMb: Math.round(mb), capMb: this.opts.memoryMb });
+      p.kill('was replaced after a job (resident memory above half the cap)', 'SIGTERM');
+      return;
+    }
+    this.idle.push(p);
   }
 
   /** Process ids of the analysis processes now running (for tests and logs). */
