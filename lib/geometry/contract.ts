@@ -330,7 +330,8 @@ export type PhotoIssueCode = (typeof PHOTO_ISSUE_CODES)[number];
 /**
  * The photo-quality verdict: each issue with what was measured and what to do, and the accuracy the photo can
  * reach (1σ): `positionMm` the RMS distance of a measured position from the truth with the global scale set
- * apart (hole to hole), `scalePpm` the global scale; null when the photo cannot be measured at all.
+ * apart (hole to hole), `scalePpm` the scale along each axis (the report's scale X or Y, from the square); null
+ * when the photo cannot be measured at all.
  */
 export const PhotoQualitySchema = z.object({
   issues: z.array(z.object({ code: z.enum(PHOTO_ISSUE_CODES), message: z.string(), advice: z.string() })),

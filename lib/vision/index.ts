@@ -146,7 +146,7 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     throw new VisionInputError('no-square', 'The four corners given do not form a quadrilateral. Mark them in order around the square.');
   }
   lap('square');
-  const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners, referenceMm: S, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
+  const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners, referenceMm: S, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), ...(square.cornerSigmaPx !== undefined ? { cornerSigmaPx: square.cornerSigmaPx } : {}) });
   await opts.onQuality?.(quality);
   lap('quality');
 

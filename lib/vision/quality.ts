@@ -13,13 +13,22 @@
  *   length or a 27 mm-equivalent phone lens), whether the bed at the target's scale fits in the frame.
  *
  * Predicted accuracy from a stated model, not from a table of scenes:
- * - an edge blurred by a Gaussian line spread of σ_b with contrast ΔI and noise σ_n (per px) is located with
- *   variance v = 2√π·σ_b·σ_n²/ΔI² per unit length of edge (the Cramér–Rao bound of a blurred step; e.g. Kay,
- *   Fundamentals of Statistical Signal Processing I, ch. 3, applied to the step's known shape);
- * - a circle's centre from its rim of perimeter 2πr: per-axis variance 2v/(2πr); a position's 2-D RMS error is √2 times
- *   the per-axis σ, in mm through the target's scale;
- * - the target's corner from half-side lines of length l = 0.44·side, extrapolated by 0.64·l: variance 5.9·v/l per
- *   axis; the scale of four corners at side S: σ/(√2·S) (least squares of a similarity on four points).
+ * - a hole's centre as the detector takes it (holes.ts: a centroid weighing each px by a ramp from 35 % to 75 % of
+ *   the way from the hole's floor to its surround, in linear light): noise σ_n per px (measured on the flat bed just
+ *   outside the rim, with its px-to-px correlation) in the ramp's band of 1.06 σ_b moves it by a per-axis variance
+ *   σ_n²·(1 + 2ρ₁ + 2ρ₂)·band/(0.16 π ΔL² r) (derivation at the prediction below); a surround or a floor that is
+ *   brighter on one side (light falling off, a flange, a bore wall seen at a tilt; measured per sampled hole as the
+ *   first harmonic of the ring outside and the plane of the floor) moves the ramp's crossing of a blurred rim, hence
+ *   the centre, by 1.39 or 1.14 σ_b times its relative tone difference across the hole; the two add as variances;
+ *   a position's 2-D RMS error is √2 times the per-axis σ, in mm through the target's scale;
+ * - the target's corners where the sides' fitted quadratic curves meet (square.ts): the square stage states their
+ *   1σ per axis from its fits' covariance and its model check (a lens bend the curves miss), which is used when
+ *   given; otherwise a curve of n edge points spread over 88 % of the side, read at its end (13.6 % beyond the
+ *   samples), has variance 15.2·s²/n (the leverage of a quadratic least-squares fit there: 1 + 3u² + 5/4·(3u² − 1)²
+ *   at u = 1/0.88), s the single points' scatter, halved for the stroke's centreline (the mean of two edges);
+ * - the scale along each photo axis from four corners at side S px with per-axis 1σ σ_c: σ_c/S (least squares of an
+ *   affine on the corners, Σx² = 4·(S/2)²), which is how the report's scale X and Y take it from the square; the
+ *   fit's own share (the camera from the holes) is not in it.
  * Frames: image px (origin top-left, +y down); the target frame as in target.ts.
  */
 import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
@@ -77,6 +86,8 @@ export interface QualityInput {
   referenceMm: number;
   pattern: Pattern;
   focalPx?: number;
+  /** 1σ of each corner per image axis, px, as the square stage measured it (absent for corners given by hand). */
+  cornerSigmaPx?: number;
 }
 
 interface EdgeStats {
@@ -246,8 +257,15 @@ function quadraticResiduals(x: number[], y: number[]): number[] {
 interface HoleStats {
   /** Anisotropic part of the point spread's covariance, px²: (Σxx − Σyy)/2 and Σxy. */
   dev: [number, number];
+  /** Surround less the hole's middle, linear light (0–1). */
   contrast: number;
+  /** Noise per px in the rim band, linear light, and the factor by which its correlation between px widens a sum. */
   noise: number;
+  corr: number;
+  /** The surround's slope across the hole times its radius, over the contrast (moves the rim as seen by the ramp). */
+  slopeRatio: number;
+  /** The same for the hole's floor. */
+  slopeInRatio: number;
   surroundClipped: number;
   diameterPx: number;
 }
@@ -412,34 +430,111 @@ function holeMoments(q: QualityInput, H: Mat3, Hi: Mat3, c: { x: number; y: numb
   const ex = sxx - dxx;
   const ey = syy - dyy;
   const exy = sxy - dxy;
-  // noise that moves a centre: what departs from a round profile in the rim band (sensor, texture, JPEG, pixel
-  // quantisation of the edge), as residuals from the mean profile at the same distance on the bed plane
+  // noise that moves a centre: what the bed around the rim adds to its light (sensor, texture, JPEG), in linear light
+  // as the detector weighs it, measured just outside the rim's spread where the profile is flat (inside the spread a
+  // px's sub-pixel phase against the rim would pass for noise), as residuals from the mean profile at the same
+  // distance on the bed plane (read between 0.25 px bins: shading and the rim's tail are not noise); and how far it
+  // is correlated from one px to the next (a sum over correlated px varies 1 + 2ρ₁ + 2ρ₂ times more)
   const s0 = Math.sqrt(Math.abs(J[0]! * J[3]! - J[1]! * J[2]!));
   const c1 = applyH(Hi, cx, cy);
-  const bins = new Map<number, number[]>();
   const band = 1.5 * Math.sqrt(Math.max(0, (sxx + syy) / 2 - (dxx + dyy) / 2)) + 1;
-  for (let y = Math.floor(cy - rPx - band - 1); y <= Math.ceil(cy + rPx + band + 1); y++)
-    for (let x = Math.floor(cx - rPx - band - 1); x <= Math.ceil(cx + rPx + band + 1); x++) {
+  const flat0 = rPx + band + 0.5;
+  const flat1 = flat0 + 3;
+  const bx0 = Math.floor(cx - flat1 - 1);
+  const by0 = Math.floor(cy - flat1 - 1);
+  const bw = Math.ceil(cx + flat1 + 1) - bx0 + 1;
+  const bh = Math.ceil(cy + flat1 + 1) - by0 + 1;
+  if (bx0 < 0 || by0 < 0 || bx0 + bw > w || by0 + bh > h) return null;
+  const rhoAt = new Float64Array(bw * bh).fill(NaN);
+  const val = new Float64Array(bw * bh);
+  const bsum = new Map<number, [number, number]>();
+  for (let j = 0; j < bh; j++)
+    for (let i = 0; i < bw; i++) {
+      const x = bx0 + i;
+      const y = by0 + j;
       const b = applyH(Hi, x, y);
       const rho = Math.hypot(b[0] - c1[0], b[1] - c1[1]) * s0;
-      if (Math.abs(rho - rPx) > band) continue;
+      if (rho < flat0 || rho > flat1) continue;
+      const v = lin(grey[y * w + x]!);
+      rhoAt[j * bw + i] = rho;
+      val[j * bw + i] = v;
       const key = Math.round(rho * 4);
-      const l = bins.get(key);
-      if (l) l.push(grey[y * w + x]!);
-      else bins.set(key, [grey[y * w + x]!]);
+      const t = bsum.get(key);
+      if (t) { t[0] += v; t[1]++; } else bsum.set(key, [v, 1]);
     }
-  const resid: number[] = [];
-  for (const l of bins.values()) {
-    if (l.length < 4) continue;
-    const m = l.reduce((a, v) => a + v, 0) / l.length;
-    const k = Math.sqrt(l.length / (l.length - 1));
-    for (const v of l) resid.push((v - m) * k);
+  const meanAt = (k: number) => { const t = bsum.get(k); return t && t[1] >= 3 ? t[0] / t[1] : NaN; };
+  const res = new Float64Array(bw * bh).fill(NaN);
+  let rs = 0;
+  let rn = 0;
+  for (let k = 0; k < res.length; k++) {
+    const rho = rhoAt[k]!;
+    if (!Number.isFinite(rho)) continue;
+    const u = rho * 4;
+    const k0 = Math.floor(u);
+    const a0 = meanAt(k0);
+    const a1 = meanAt(k0 + 1);
+    const m = Number.isFinite(a0) && Number.isFinite(a1) ? a0 + (a1 - a0) * (u - k0) : Number.isFinite(a0) ? a0 : a1;
+    if (!Number.isFinite(m)) continue;
+    res[k] = val[k]! - m;
+    rs += res[k]! ** 2;
+    rn++;
   }
+  const lag = (d: number) => {
+    let c = 0;
+    let n = 0;
+    for (let j = 0; j < bh; j++)
+      for (let i = 0; i < bw; i++) {
+        const e0 = res[j * bw + i]!;
+        if (!Number.isFinite(e0)) continue;
+        if (i + d < bw && Number.isFinite(res[j * bw + i + d]!)) { c += e0 * res[j * bw + i + d]!; n++; }
+        if (j + d < bh && Number.isFinite(res[(j + d) * bw + i]!)) { c += e0 * res[(j + d) * bw + i]!; n++; }
+      }
+    return n ? c / n : 0;
+  };
+  const noiseVar = rn > 20 ? rs / rn : NaN;
+  // the surround's slope across the hole: the first harmonic of the flat ring's residuals, linear light per px
+  let sc = 0, ss = 0, cc = 0, sn = 0, cs = 0;
+  for (let j = 0; j < bh; j++)
+    for (let i = 0; i < bw; i++) {
+      const e0 = res[j * bw + i]!;
+      if (!Number.isFinite(e0)) continue;
+      const th = Math.atan2(by0 + j - cy, bx0 + i - cx);
+      const c = Math.cos(th), sv = Math.sin(th);
+      sc += e0 * c; ss += e0 * sv; cc += c * c; sn += sv * sv; cs += c * sv;
+    }
+  const det = cc * sn - cs * cs;
+  const ga = det > 0 ? (sc * sn - ss * cs) / det : 0;
+  const gb = det > 0 ? (ss * cc - sc * cs) / det : 0;
+  const slope = Math.hypot(ga, gb) / ((flat0 + flat1) / 2);
+  // the hole's floor sloping across it (an insert's flange, a bore wall seen at a tilt): a plane fitted to the flat
+  // middle, inside the rim's spread, linear light per px
+  const inR = rPx - band - 0.5;
+  let slopeIn = 0;
+  if (inR >= 2) {
+    let n = 0, m = 0, xx = 0, yy = 0, xy = 0, xv = 0, yv = 0;
+    const pts: [number, number, number][] = [];
+    for (let y = Math.ceil(cy - inR); y <= Math.floor(cy + inR); y++)
+      for (let x = Math.ceil(cx - inR); x <= Math.floor(cx + inR); x++) {
+        const b = applyH(Hi, x, y);
+        if (Math.hypot(b[0] - c1[0], b[1] - c1[1]) * s0 > inR) continue;
+        const v = lin(grey[y * w + x]!);
+        pts.push([x - cx, y - cy, v]);
+        m += v;
+        n++;
+      }
+    if (n >= 8) {
+      m /= n;
+      for (const [dx, dy, v] of pts) { xx += dx * dx; yy += dy * dy; xy += dx * dy; xv += dx * (v - m); yv += dy * (v - m); }
+      const dt = xx * yy - xy * xy;
+      if (dt > 0) slopeIn = Math.hypot((xv * yy - yv * xy) / dt, (yv * xx - xv * xy) / dt);
+    }
+  }
+  const corr = Number.isFinite(noiseVar) && noiseVar > 0 ? Math.min(10, Math.max(1, 1 + (2 * (lag(1) + lag(2))) / noiseVar)) : 1;
   const inner: number[] = [];
-  for (let k = 0; k < 16; k++) inner.push(sampleGrey(grey, w, h, cx + 0.3 * rPx * Math.cos((k * Math.PI) / 8), cy + 0.3 * rPx * Math.sin((k * Math.PI) / 8)));
-  inner.push(sampleGrey(grey, w, h, cx, cy));
-  const contrast = median(ringEnc) - median(inner);
-  return { dev: [(ex - ey) / 2, exy], contrast, noise: resid.length > 20 ? Math.sqrt(resid.reduce((a, v) => a + v * v, 0) / resid.length) : robustSd(ringEnc), surroundClipped: ringEnc.filter((v) => v >= CLIP_HI).length / ringEnc.length, diameterPx: 2 * rPx };
+  for (let k = 0; k < 16; k++) inner.push(lin(sampleGrey(grey, w, h, cx + 0.3 * rPx * Math.cos((k * Math.PI) / 8), cy + 0.3 * rPx * Math.sin((k * Math.PI) / 8))));
+  inner.push(lin(sampleGrey(grey, w, h, cx, cy)));
+  const contrast = surround - median(inner);
+  return { dev: [(ex - ey) / 2, exy], contrast, noise: Number.isFinite(noiseVar) ? Math.sqrt(noiseVar) : robustSd(ring), corr, slopeRatio: (slope * rPx) / Math.max(1e-6, contrast), slopeInRatio: (slopeIn * rPx) / Math.max(1e-6, contrast), surroundClipped: ringEnc.filter((v) => v >= CLIP_HI).length / ringEnc.length, diameterPx: 2 * rPx };
 }
 
 function tiltFrom(H: Mat3, w: number, h: number, f: number): number {
@@ -563,29 +658,33 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const sigma2 = m.defocusSigmaPx ** 2;
   // Gaussian-equivalent line spread averaged over directions (a box of L: L²/12 along d, 0 across, mean L²/24)
   const sb = Math.sqrt(sigma2 + (L * L) / 24 + 1e-6);
-  // target: edge location variance per px of edge, in linear light
-  // target: the detector fits a line to max(12, min(200, side/2)) edge points per side, each half side on its own;
-  // single points scatter by edgeSd (measured here the same way); a half line's offset extrapolated to the corner
-  // has variance 5.9 σ²/n (uniform points over l, corner 0.64 l beyond their middle)
+  // target: the corners' 1σ per axis, as the square stage measured it or from the curve model (header)
   const outerEdges = good.filter((e) => e.outer);
   const edgeSd = Math.sqrt(median(outerEdges.map((e) => e.edgeSdPx ** 2)));
-  const nHalf = Math.max(6, Math.min(200, Math.floor(sidePx / 2)) * 0.44);
-  const cornerSd = edgeSd * Math.sqrt(5.9 / nHalf);
-  const scalePpm = (1e6 * cornerSd) / (Math.SQRT2 * sidePx);
+  const nSide = Math.max(12, Math.min(200, Math.floor(sidePx / 2)));
+  const cornerSd = q.cornerSigmaPx ?? (edgeSd * Math.sqrt(15.2 / nSide)) / Math.SQRT2 / (1 - FRAME_FRACTION);
+  const scalePpm = (1e6 * cornerSd) / sidePx;
   // holes: per-axis centre variance from the rim; each family at its own size, weighted by its count
   let positionMm = NaN;
   if (holes.length) {
     const dH = median(holes.map((x) => x.contrast));
     const nH = median(holes.map((x) => x.noise));
+    const cH = median(holes.map((x) => x.corr));
+    // the surround brighter on one side by ΔL(θ) = G·r·cos θ moves the ramp's half-way crossing of a blurred rim by
+    // −σ_b·ΔL/(Φ'(z₀)·ΔL̄)·0.55 (z₀ = Φ⁻¹(0.55), Φ' = 0.396), i.e. 1.39·σ_b·G·r/ΔL̄ cos θ: a disc of radius r + a cos θ has
+    // its centroid moved by a. The floor sloping by G'·r moves it by (1 − 0.55)/0.396 = 1.14·σ_b·G'·r/ΔL̄. Per axis half
+    // the squares, over the sampled holes (each family alike, relative to r).
+    const shadeVarPx = holes.reduce((acc, x) => acc + ((1.39 * sb * x.slopeRatio) ** 2 + (1.14 * sb * x.slopeInRatio) ** 2) / 2, 0) / holes.length;
     // the detector's centroid weighs each px by a ramp from 35 % to 75 % of the way from hole to surround: a px in
     // that band (a ring 1.06 σ_b wide, at least 0.4 px for a pixel-sharp edge) moves the weight by δI / (0.4 ΔI);
-    // over the ring's 2πr·band px at distance r, of a total weight πr²: var = σ²·band / (0.16 π ΔI² r) per axis
+    // over the ring's 2πr·band px at distance r, of a total weight πr²: var = σ²·band / (0.16 π ΔI² r) per axis for
+    // noise independent from px to px, times 1 + 2ρ₁ + 2ρ₂ for noise correlated over neighbours (linear light)
     const bandPx = Math.max(0.4, 1.06 * sb);
     let num = 0;
     let cnt = 0;
     for (const fm of q.pattern.families) {
       const rPx = (fm.holeDiameter * k * sCentre) / 2;
-      const varAxisPx = (nH * nH * bandPx) / (0.16 * Math.PI * dH * dH * rPx);
+      const varAxisPx = (nH * nH * cH * bandPx) / (0.16 * Math.PI * dH * dH * rPx) + shadeVarPx;
       const nPos = fm.count.x * fm.count.y;
       num += nPos * (varAxisPx / (sCentre * sCentre));
       cnt += nPos;

@@ -7,6 +7,9 @@
  * - Our candidate pass (reduce + opencv-wasm adaptive threshold, contours, moments on the reduced image) against
  *   native OpenCV doing the same threshold, contour and moment pass on the full image (Debian's python3-opencv at
  *   /usr/bin/python3, when installed), and the same pass in wasm on the full image.
+ * - The photo-quality stage (tests/bench/quality.bench.ts, in its own process): its time on a 12 MP photo, hits and
+ *   false alarms per issue code on photos made bad on purpose, predicted against measured accuracy.
+ *   `npm run bench:vision -- --part quality` runs that part alone, `--part scenes` the rest alone.
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
@@ -164,8 +167,19 @@ for i in range(3):
 print(sorted(ts)[1])
 `;
 
+function qualityPart(): Record<string, unknown> {
+  const c = spawnSync('npx', ['tsx', path.join(ROOT, 'tests/bench/quality.bench.ts')], { cwd: ROOT, encoding: 'utf8', maxBuffer: 1 << 24 });
+  if (c.status !== 0) throw new Error(`quality bench failed: ${c.stderr}`);
+  return JSON.parse(c.stdout) as Record<string, unknown>;
+}
+
 async function main(): Promise<void> {
   if (process.argv[2] === '--child') return child(process.argv[3]!);
+  const part = process.argv.includes('--part') ? process.argv[process.argv.indexOf('--part') + 1] : undefined;
+  if (part === 'quality') {
+    process.stdout.write(`${JSON.stringify({ bench: 'vision', part: 'quality', quality: qualityPart() }, null, 1)}\n`);
+    return;
+  }
   const cache = path.join(os.tmpdir(), 'gridproof-bench-vision-v1');
   mkdirSync(cache, { recursive: true });
   const results: Record<string, unknown>[] = [];
@@ -213,6 +227,7 @@ async function main(): Promise<void> {
       worstPanelOffsetRawRmsMm: Math.max(...results.map((r) => (r.panelOffsetRawRmsMm as number | null) ?? 0)),
     },
     scenes: results,
+    ...(part === 'scenes' ? {} : { quality: qualityPart() }),
   }, null, 1)}\n`);
 }
 
