@@ -1,6 +1,7 @@
 'use client';
 /**
  * Upload one photo of the bed: drag and drop, click to choose, or the phone's back camera; a preview; the
+ * browser's own checks of the photo (./PhotoPrecheck.tsx: size, type, EXIF orientation and focal length); the
  * reference square's measured side (mm or in) and the bed, checked with zod (./schema.ts); then a real
  * progress bar while XMLHttpRequest sends it to POST /api/beds/{bedId}/checks, and on to the check's page.
  */
@@ -8,12 +9,14 @@ import { useRouter } from 'next/navigation';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import { useDropzone } from 'react-dropzone';
 import { DistancesFields } from './DistancesFields';
+import { PhotoPrecheck } from './PhotoPrecheck';
+import type { BedSize } from './photo-checks';
 import { EMPTY_DISTANCE_ROW, parseDistanceRows, type DistanceRow } from './distances';
 import { photoProblem, REFERENCE_CHOICES, UploadFormSchema } from './schema';
 import { xhrUpload, type UploadProgress, type XhrUpload } from './xhr';
 
 type Units = 'mm' | 'in';
-export interface UploadBed { id: string; name: string; hasPattern: boolean }
+export interface UploadBed { id: string; name: string; hasPattern: boolean; size?: BedSize }
 
 const ACCEPT = { 'image/jpeg': ['.jpg', '.jpeg'], 'image/png': ['.png'], 'image/webp': ['.webp'], 'image/heic': ['.heic', '.heif'], 'image/tiff': ['.tif', '.tiff'], 'image/avif': ['.avif'] };
 
@@ -129,6 +132,7 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
           <button type="button" className="btn" disabled={phase !== 'idle'} onClick={() => cameraRef.current?.click()}>Take a photo with the camera</button>
           {file && phase === 'idle' && <button type="button" className="btn btn-quiet" onClick={() => setFile(null)}>Remove</button>}
         </div>
+        {file && <PhotoPrecheck file={file} bed={bed?.size ?? null} />}
         {(errors.photo || rejectionText) && <p role="alert" className="field-error">{errors.photo ?? rejectionText}</p>}
         <p className="text-sm text-muted">Machine off and spindle stopped before you lean over the bed. Shoot from straight above with the whole bed and the reference square in the frame; no flash glare on the square.</p>
       </section>
