@@ -133,6 +133,8 @@ class AnalysisProcess {
   private limitError(code?: number | null, signal?: NodeJS.Signals | null): AnalysisLimitError {
     if (this.killReason) return new AnalysisLimitError(this.killReason);
     if (OUT_OF_MEMORY.test(this.stderrTail)) return new AnalysisLimitError(`ran out of memory (cap ${this.opts.memoryMb} MB)`);
+    // a SIGKILL this worker did not send: the system's out-of-memory killer, most often
+    if (signal === 'SIGKILL') return new AnalysisLimitError('process was killed by the system (signal SIGKILL; it does that when the machine runs out of memory)');
     return new AnalysisLimitError(`process stopped unexpectedly (${signal ? `signal ${signal}` : `exit code ${code ?? '?'}`})`);
   }
 

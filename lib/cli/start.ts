@@ -5,7 +5,8 @@
  *   3. migrates the database (DATABASE_URL, default file:data/gridproof.db);
  *   4. in demo mode (DEMO_MODE, default 1 here) seeds the demo workshop into an empty database;
  *   5. runs the web server (lib/cli/web-server.mjs: the built app on ${PORT:-3000}, forwarding headers checked)
- *      and the analysis worker (`node --import tsx workers/worker.ts`, if present) side by side, forwarding
+ *      and the analysis worker (`node --import tsx workers/worker.ts`, if present; it runs each analysis in a
+ *      capped analysis process of its own, workers/isolate.ts) side by side, forwarding
  *      SIGINT/SIGTERM to both. A worker that dies is started again after a growing pause while the web server
  *      keeps serving; the web server exiting stops everything.
  * `ensureBuilt()` is also used by the browser tests' global setup.

@@ -95,7 +95,7 @@ describe('an analysis that breaks a limit or crashes', () => {
     for (const pid of before) expect(pool.pids()).not.toContain(pid);
   });
 
-  it('that fills native memory (buffers outside the heap) is stopped by the resident-memory watch', async () => {
+  it.skipIf(process.platform !== 'linux')('that fills native memory (buffers outside the heap) is stopped by the resident-memory watch', async () => {
     const check = await ended(await queue(151, 'native', 1));
     expect(check.status).toBe('failed');
     expect(check.error).toMatch(new RegExp(`^The analysis ran out of memory \\(cap ${MEMORY_MB} MB\\)\\. `));
