@@ -11,12 +11,14 @@ import { useMemo, useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
 import { useCheckDetail } from '@/components/report/CheckReport';
-import { BedMap, autoExaggeration, type MapItem } from '@/components/report/BedMap';
-import { MarkShape } from '@/components/report/Mark';
+import { BedMap, type MapItem } from '@/components/report/BedMap';
+import { MarkIcon } from '@/components/report/Mark';
 import type { Comparison } from '@/lib/geometry';
 import { BAND_K, bandRadiusMm } from '@/lib/geometry/band';
 import type { Report } from '@/lib/geometry/contract';
-import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
+import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
+import { autoExaggeration } from '@/lib/report/map-scale';
+import { arrowScaleWords } from '@/lib/report/words';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
 
@@ -48,7 +50,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
   const err = cmp.error ?? reportB.error ?? detA.error ?? detB.error;
   if (err || !data || !reportB.data || !detA.data || !detB.data) return <p className="panel field-error" role="alert">{errorText(err)}</p>;
 
-  const geometry = mapGeometry(detB.data.pattern ? ({ ...reportB.data, pattern: detB.data.pattern } as unknown as Report) : reportB.data);
+  const geometry = mapGeometry(reportB.data.pattern.bed ? reportB.data : withOutline(reportB.data, detB.data.pattern));
   const autoX = autoExaggeration(data.positions.map((c) => c.r), spacing);
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = new Map(data.panels.map((p) => [p.id, `${p.significant ? 'moved ' : ''}${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })}`]));
@@ -70,12 +72,12 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
       <section className="panel flex flex-col gap-3" aria-labelledby="chg-h">
         <h2 id="chg-h" className="text-xl font-bold">Change map</h2>
         <div className="flex flex-wrap gap-4">
-          <span className="inline-flex items-center gap-1.5"><svg width="20" height="20" viewBox="-10 -10 20 20" aria-hidden="true"><MarkShape mark="out" x={0} y={0} r={6.5} stroke={2} /></svg>moved more than the uncertainty</span>
-          <span className="inline-flex items-center gap-1.5"><svg width="20" height="20" viewBox="-10 -10 20 20" aria-hidden="true"><MarkShape mark="in" x={0} y={0} r={6.5} stroke={2} /></svg>within the noise</span>
+          <span className="inline-flex items-center gap-1.5"><MarkIcon mark="out" />moved more than the uncertainty</span>
+          <span className="inline-flex items-center gap-1.5"><MarkIcon mark="in" />within the noise</span>
         </div>
         <BedMap widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY}
-          panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))} items={items} spacingMm={spacing} exaggeration={exaggeration} unit={unit}
-          label={`Change map of ${items.length} positions from before to after, front of the bed at the bottom; arrows × ${exaggeration}.`} />
+          panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))} items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit}
+          label={`Change map of ${items.length} positions from before to after, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}.`} />
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="pm-h">
         <h2 id="pm-h" className="text-xl font-bold">Panel moves</h2>

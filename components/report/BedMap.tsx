@@ -5,10 +5,10 @@
  * nominal place with an arrow for its displacement, multiplied by `exaggeration` so tenths of a mm show on a
  * metre-wide bed; the scale bar says what an arrow length means in real mm (or in).
  */
-import type { Mark } from '@/lib/report/palette';
+import { POSITION_MARKS, type Mark } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
-import { niceFactor } from '@/lib/pdf/map';
-import { autoExaggeration as autoFromDeviations } from '@/lib/report/map-scale';
+import { niceFactor } from '@/lib/report/map';
+import { arrowScaleWords } from '@/lib/report/words';
 import { MarkShape, markVar } from './Mark';
 
 export interface MapItem {
@@ -36,8 +36,10 @@ export interface BedMapProps {
   originY: number;
   panels: MapPanel[];
   items: MapItem[];
-  /** Nearest spacing between positions, mm (sets mark size). */
+  /** Nearest spacing between positions, mm (the fingers' target size). */
   spacingMm: number;
+  /** Radius of a mark, mm of bed (lib/report/map.ts markRadiusMm). */
+  markRadiusMm: number;
   exaggeration: number;
   unit: LengthUnit;
   selected?: string | null;
@@ -52,7 +54,7 @@ export function BedMap(p: BedMapProps) {
   const H = p.heightMm + 2 * margin + footer;
   const X = (x: number) => margin + (x - p.originX);
   const Y = (y: number) => margin + p.heightMm - (y - p.originY);
-  const r = Math.max(0.5, Math.min(p.spacingMm * 0.17, Math.max(p.widthMm, p.heightMm) / 60));
+  const r = p.markRadiusMm;
   const font = Math.max(p.widthMm, p.heightMm) / 55;
   const line = Math.max(0.3, r * 0.28);
   // Scale bar: a deviation of `barMm` drawn as barMm × exaggeration, about a sixth of the bed's width.
@@ -64,7 +66,7 @@ export function BedMap(p: BedMapProps) {
     <div className="overflow-x-auto">
     <svg viewBox={`0 0 ${W.toFixed(2)} ${H.toFixed(2)}`} role="img" aria-label={p.label} className="h-auto w-full min-w-[36rem] print:min-w-0" style={{ background: 'var(--map-ground)' }}>
       <defs>
-        {(['in', 'marginal', 'out', 'missing', 'unmatched'] as const).map((m) => (
+        {[...POSITION_MARKS, 'unmatched' as const].map((m) => (
           <marker key={m} id={`gp-arrow-${m}`} viewBox="0 0 10 10" refX="8" refY="5" markerWidth="4" markerHeight="4" orient="auto-start-reverse">
             <path d="M 0 0 L 10 5 L 0 10 z" fill={markVar(m)} />
           </marker>
@@ -90,7 +92,7 @@ export function BedMap(p: BedMapProps) {
             {hasArrow && (
               <line x1={cx} y1={cy} x2={cx + it.dx! * p.exaggeration} y2={cy - it.dy! * p.exaggeration} stroke={markVar(it.mark)} strokeWidth={it.emphasis ? line * 2.2 : line * 1.2} markerEnd={`url(#gp-arrow-${it.mark})`} />
             )}
-            <MarkShape mark={it.mark} x={cx} y={cy} r={it.emphasis ? r * 1.25 : r} stroke={line} />
+            <MarkShape mark={it.mark} x={cx} y={cy} r={it.emphasis ? r * 1.25 : r} />
             {/* a larger invisible target for fingers */}
             <circle cx={cx} cy={cy} r={Math.max(r * 2, p.spacingMm * 0.4)} fill="transparent" />
           </g>
@@ -100,7 +102,7 @@ export function BedMap(p: BedMapProps) {
       <g transform={`translate(${margin} ${fy + footer * 0.35})`}>
         <line x1={0} y1={0} x2={barLen} y2={0} stroke="var(--ink)" strokeWidth={line * 2} markerEnd="url(#gp-arrow-in)" />
         <line x1={0} y1={-font * 0.4} x2={0} y2={font * 0.4} stroke="var(--ink)" strokeWidth={line * 2} />
-        <text x={0} y={font * 1.5} fontSize={font} fill="var(--ink)">arrow = {formatLength(barMm, p.unit)} off (× {p.exaggeration.toLocaleString('en')})</text>
+        <text x={0} y={font * 1.5} fontSize={font} fill="var(--ink)">arrow = {formatLength(barMm, p.unit)} off · {arrowScaleWords(p.exaggeration)}</text>
       </g>
       <g transform={`translate(${W - margin - rulerMm} ${fy + footer * 0.35})`}>
         <rect x={0} y={-font * 0.25} width={rulerMm} height={font * 0.5} fill="var(--muted)" />
@@ -113,8 +115,3 @@ export function BedMap(p: BedMapProps) {
 
 /** Exaggerations offered beside the automatic choice (lib/report/map-scale.ts). */
 export const EXAGGERATIONS = [10, 20, 50, 100, 200, 500, 1000, 2000] as const;
-
-/** The automatic exaggeration (lib/report/map-scale.ts) from the deviations, mm, or from the largest one alone. */
-export function autoExaggeration(deviationsMm: number | readonly number[], spacingMm: number): number {
-  return autoFromDeviations(typeof deviationsMm === 'number' ? [deviationsMm] : deviationsMm, spacingMm);
-}

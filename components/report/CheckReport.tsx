@@ -12,24 +12,25 @@ import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
 import type { Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
-import { MARK_ORDER, type Mark } from '@/lib/report/palette';
+import { MARK_ORDER, POSITION_MARKS } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
-import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
+import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
+import { reportArrowScale } from '@/lib/report/map-scale';
+import { arrowScaleWords, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
 import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
-import { BedMap, autoExaggeration, type MapItem } from './BedMap';
+import { BedMap, type MapItem } from './BedMap';
 import { DeviationHistogram } from './DeviationHistogram';
 import { DistancesTable } from './DistancesTable';
 import { LatticeFigures } from './LatticeFigures';
 import { MarkChip } from './Mark';
 import { PanelsTable } from './PanelsTable';
 import { PhotoMarks, type PhotoMark } from './PhotoMarks';
-import { PositionsTable, positionRows, type VerdictFilter } from './PositionsTable';
+import { PositionsTable, positionRows } from './PositionsTable';
 import { ExaggerationSelect } from './ExaggerationSelect';
 import { MethodNote } from './MethodNote';
 import type { CheckDetail } from '@/lib/services/check-views';
-import { hiddenWords } from '@/lib/report/hidden';
-import { VERDICT_BOX, VERDICT_WORD } from '@/components/Verdict';
+import { FigureCards, VerdictBox } from './VerdictBox';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
 export type { CheckDetail };
@@ -48,40 +49,36 @@ export function CheckReport({ checkId }: { checkId: string }) {
   return <ReportView report={report.data} detail={detail.data} />;
 }
 
-export function ReportView({ report, detail }: { report: Report; detail: CheckDetail }) {
+export function ReportView({ report: stored, detail }: { report: Report; detail: CheckDetail }) {
   const [unit, setUnit] = useState<LengthUnit>(detail.units);
   const [selected, setSelected] = useState<string | null>(null);
   const [exag, setExag] = useState<number | 'auto'>('auto');
-  const [verdictFilter] = useState<VerdictFilter>('all');
   const id = detail.check.id;
-  const s = report.summary;
+  // a report stored before reports carried their bed's outline takes it from the check's pattern
+  const report = useMemo(() => (stored.pattern.bed ? stored : withOutline(stored, detail.pattern)), [stored, detail.pattern]);
 
-  const geometry = useMemo(() => mapGeometry(detail.pattern ? ({ ...report, pattern: detail.pattern } as unknown as Report) : report), [report, detail.pattern]);
+  const geometry = useMemo(() => mapGeometry(report), [report]);
   const spacing = useMemo(() => nearestSpacing(report.positions), [report]);
-  const autoX = useMemo(() => autoExaggeration(report.positions.flatMap((p) => (p.deviation ? [p.deviation.r] : [])), spacing), [report, spacing]);
+  const autoX = useMemo(() => reportArrowScale(report), [report]);
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
   const items: MapItem[] = useMemo(() => report.positions.map((p) => ({
-    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: p.verdict,
-    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen${p.hidden ? ` (${hiddenWords(p)})` : ''}`,
+    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: positionMark(p),
+    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${MARK_WORD[p.verdict]}` : `${p.label}: ${MARK_WORD[positionMark(p)].toLowerCase()}${outOfSightWords(p) ? ` (${outOfSightWords(p)})` : ''}`,
   })), [report, unit]);
   const rows = useMemo(() => positionRows(report), [report]);
-  const counts = useMemo(() => {
-    const c: Record<Mark, number> = { in: 0, marginal: 0, out: 0, missing: 0, unmatched: report.unmatched.length };
-    for (const p of report.positions) c[p.verdict]++;
-    return c;
-  }, [report]);
+  const counts = useMemo(() => reportCounts(report), [report]);
   const overlay = useMemo(() => (detail.detections ? photoOverlay(report, detail.detections) : null), [report, detail.detections]);
   const photoMarks: PhotoMark[] = useMemo(() => {
     if (!detail.detections || !overlay) return [];
     const out: PhotoMark[] = detail.detections.holes.map((h, i) => {
       const pos = overlay.detectionPosition[i]!;
       const p = pos >= 0 ? report.positions[pos]! : null;
-      return { key: `d${i}`, x: h.x, y: h.y, diameterPx: h.diameterPx, mark: overlay.detectionVerdict[i]!, title: p ? `${p.label} — ${p.verdict}${p.deviation ? `, ${formatLength(p.deviation.r, unit)} off` : ''}` : 'detected hole that matches no position' };
+      return { key: `d${i}`, x: h.x, y: h.y, diameterPx: h.diameterPx, mark: overlay.detectionVerdict[i]!, title: p ? `${p.label} — ${MARK_WORD[p.verdict]}${p.deviation ? `, ${formatLength(p.deviation.r, unit)} off` : ''}` : 'detected hole that matches no position' };
     });
     report.positions.forEach((p, i) => {
       const px = overlay.positionPx[i];
-      if (!p.measured && px && !p.hidden) out.push({ key: `m${i}`, x: px.x, y: px.y, mark: 'missing', title: `${p.label}: expected here, not seen` });
+      if (!p.measured && px && !p.hidden) out.push({ key: `m${i}`, x: px.x, y: px.y, mark: positionMark(p), title: `${p.label}: expected here, ${MARK_WORD.missing.toLowerCase()}` });
     });
     return out;
   }, [detail.detections, overlay, report, unit]);
@@ -89,25 +86,8 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
   const when = new Date(detail.check.finishedAt ?? detail.check.createdAt).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
   return (
     <article className="flex flex-col gap-6" data-testid="check-report">
-      <section className={`rounded-xl border-4 p-5 ${VERDICT_BOX[s.verdict]}`} aria-label="Verdict">
-        <p className="text-sm font-bold uppercase tracking-wide">{detail.check.bedName}{detail.check.title ? ` · ${detail.check.title}` : ''} · {when}</p>
-        <h2 className="mt-1 text-3xl font-bold">{VERDICT_WORD[s.verdict]}</h2>
-        <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{s.sentence}</p>
-        {s.shapeSentence && <p className="mt-1 leading-snug text-ink" data-testid="shape-sentence">{s.shapeSentence}</p>}
-      </section>
-
-      <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
-        {[
-          ['Measured', `${s.matched}`],
-          ['Out', `${s.out}`],
-          ['Marginal', `${s.marginal}`],
-          ['Not seen', `${s.missing}`],
-          ['RMS off', formatLength(s.rmsMm, unit)],
-          ['Largest', formatLength(s.maxMm, unit)],
-        ].map(([k, v]) => (
-          <div key={k} className="panel !p-3"><dt className="text-sm text-muted">{k}</dt><dd className="font-mono text-2xl font-bold">{v}</dd></div>
-        ))}
-      </dl>
+      <VerdictBox report={report} unit={unit} title={`${detail.check.bedName}${detail.check.title ? ` · ${detail.check.title}` : ''} · ${when}`} />
+      <FigureCards report={report} unit={unit} />
 
       {(report.warnings?.length ?? 0) > 0 && (
         <ul className="panel list-disc pl-8" aria-label="Notes">{report.warnings!.map((w) => <li key={w}>{w}</li>)}</ul>
@@ -139,21 +119,22 @@ export function ReportView({ report, detail }: { report: Report; detail: CheckDe
           <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} className="field no-print" />
         </div>
         <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
-          {MARK_ORDER.filter((m) => m !== 'unmatched').map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
+          {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
+          <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>
         </div>
         <BedMap
           widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY}
           panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))}
-          items={items} spacingMm={spacing} exaggeration={exaggeration} unit={unit}
+          items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit}
           selected={selected} onSelect={setSelected}
-          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; arrows show each position's deviation × ${exaggeration}.`}
+          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}, each showing a position's deviation.`}
         />
         {selected && <p className="font-bold" aria-live="polite">{items.find((i) => i.key === selected)?.title}</p>}
       </section>
 
       <section className="panel flex flex-col gap-3" aria-labelledby="pos-h">
         <h2 id="pos-h" className="text-xl font-bold">Every position</h2>
-        <PositionsTable rows={rows} unit={unit} selected={selected} onSelect={setSelected} initialVerdict={verdictFilter} />
+        <PositionsTable rows={rows} unit={unit} selected={selected} onSelect={setSelected} />
       </section>
 
       <section className="panel flex flex-col gap-3" aria-labelledby="pan-h">

@@ -21,7 +21,7 @@ export function PhotoMarks({ corners, marks, pxPerScreen, showSquare = true }: {
           <title>{m.title}</title>
           <circle cx={m.x} cy={m.y} r={Math.max(r * 1.5, (m.diameterPx ?? 0) / 2)} fill="none" stroke="#000" strokeOpacity={0.55} strokeWidth={3.5 * pxPerScreen} />
           <g style={{ ['--map-ground' as string]: '#000' }}>
-            <MarkShape mark={m.mark} x={m.x} y={m.y} r={r} stroke={2.5 * pxPerScreen} />
+            <MarkShape mark={m.mark} x={m.x} y={m.y} r={r} />
           </g>
         </g>
       ))}

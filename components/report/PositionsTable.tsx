@@ -17,8 +17,8 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import type { Report, Verdict } from '@/lib/geometry/contract';
-import { hiddenWords } from '@/lib/report/hidden';
-import { MARKS } from '@/lib/report/palette';
+import { MARKS, type Mark } from '@/lib/report/palette';
+import { MARK_WORD, outOfSightWords, positionMark } from '@/lib/report/words';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { MarkChip } from './Mark';
 
@@ -28,6 +28,8 @@ export interface PositionRow {
   family: string;
   panel: string;
   verdict: Verdict;
+  /** The position's mark: its verdict, or not in view (under the reference sheet or outside the photo). */
+  mark: Mark;
   r: number | null;
   dx: number | null;
   dy: number | null;
@@ -45,11 +47,12 @@ export interface PositionRow {
 
 export const VERDICT_FILTERS = {
   all: 'All verdicts',
-  problems: 'Out or marginal',
-  out: 'Out of tolerance',
-  marginal: 'Marginal',
-  in: 'In tolerance',
-  missing: 'Not seen',
+  problems: `${MARK_WORD.out} or ${MARK_WORD.marginal.toLowerCase()}`,
+  out: MARK_WORD.out,
+  marginal: MARK_WORD.marginal,
+  in: MARK_WORD.in,
+  missing: MARK_WORD.missing,
+  hidden: MARK_WORD.hidden,
 } as const;
 export type VerdictFilter = keyof typeof VERDICT_FILTERS;
 
@@ -71,6 +74,7 @@ export function positionRows(report: Report): PositionRow[] {
     family: p.family,
     panel: p.panel ?? '—',
     verdict: p.verdict,
+    mark: positionMark(p),
     r: p.deviation?.r ?? null,
     dx: p.deviation?.dx ?? null,
     dy: p.deviation?.dy ?? null,
@@ -78,7 +82,7 @@ export function positionRows(report: Report): PositionRow[] {
     tol: p.toleranceMm,
     spare: p.deviation ? p.toleranceMm - p.deviation.r : null,
     hidden: !!p.hidden,
-    notSeen: hiddenWords(p),
+    notSeen: outOfSightWords(p),
     formVerdict: p.form?.verdict ?? null,
     formR: p.form?.r ?? null,
   }));
@@ -96,12 +100,12 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
     helper.accessor('label', { header: 'Position', filterFn: (row, id, value: string) => row.getValue<string>(id).toLowerCase().includes(value.trim().toLowerCase()), sortFn: 'alphanumeric' }),
     helper.accessor('verdict', {
       header: 'Whole bed',
-      filterFn: (row, id, value: VerdictFilter) => {
-        const v = row.getValue<Verdict>(id);
-        return value === 'all' || (value === 'problems' ? v === 'out' || v === 'marginal' : v === value);
+      filterFn: (row, _id, value: VerdictFilter) => {
+        const m = row.original.mark;
+        return value === 'all' || (value === 'problems' ? m === 'out' || m === 'marginal' : m === value);
       },
       sortFn: (a, b, id) => VERDICT_RANK[a.getValue<Verdict>(id)] - VERDICT_RANK[b.getValue<Verdict>(id)],
-      cell: (c) => <MarkChip mark={c.getValue()} />,
+      cell: (c) => <MarkChip mark={c.row.original.mark} />,
     }),
     helper.accessor('formVerdict', {
       header: 'Hole to hole',
@@ -205,7 +209,7 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
       {shown.length > limit && (
         <button type="button" className="btn btn-quiet no-print self-start" onClick={() => setLimit(shown.length)}>Show all {shown.length} positions</button>
       )}
-      {rows.some((r) => r.hidden) && (
+      {rows.some((r) => r.mark === 'hidden') && (
         <p className="text-sm text-muted" data-testid="hidden-note">
           Not measured, neither in nor out, because only part of the hole could be seen or none of it:{' '}
           {[...new Set(rows.flatMap((r) => (r.notSeen ? [r.notSeen] : [])))].map((w) => `${rows.filter((r) => r.notSeen === w).length} ${w}`).join('; ')}. That is expected; move the sheet or what covers them and take another photo to check them.

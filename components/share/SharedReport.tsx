@@ -7,15 +7,19 @@
  */
 import '@/components/report/report.css';
 import { useMemo, useState } from 'react';
-import { BedMap, autoExaggeration, type MapItem } from '@/components/report/BedMap';
+import { BedMap, type MapItem } from '@/components/report/BedMap';
 import { DistancesTable } from '@/components/report/DistancesTable';
 import { LatticeFigures } from '@/components/report/LatticeFigures';
 import { PanelsTable } from '@/components/report/PanelsTable';
 import { PositionsTable, positionRows } from '@/components/report/PositionsTable';
 import { CommentList, type CommentItem } from '@/components/comments/Comments';
 import type { Report } from '@/lib/geometry/contract';
-import { mapGeometry, nearestSpacing } from '@/lib/pdf/map';
+import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
+import { reportArrowScale } from '@/lib/report/map-scale';
+import { POSITION_MARKS } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { arrowScaleWords, MARK_WORD, positionMark, reportCounts } from '@/lib/report/words';
+import { MarkChip } from '@/components/report/Mark';
 
 export interface SharedReportData {
   bedName: string;
@@ -26,34 +30,34 @@ export interface SharedReportData {
   comments: CommentItem[];
 }
 
-export function SharedReport({ data, token }: { data: SharedReportData; token: string }) {
-  const [unit, setUnit] = useState<LengthUnit>('mm');
+/** The shared report's body in `unit`, the unit of the page's headline (its switch reloads the page in the other). */
+export function SharedReport({ data, token, unit }: { data: SharedReportData; token: string; unit: LengthUnit }) {
   const [selected, setSelected] = useState<string | null>(null);
   const r = data.report;
-  const s = r.summary;
   const geometry = useMemo(() => mapGeometry(r), [r]);
   const spacing = useMemo(() => nearestSpacing(r.positions), [r]);
+  const exaggeration = useMemo(() => reportArrowScale(r), [r]);
+  const counts = useMemo(() => reportCounts(r), [r]);
   const items: MapItem[] = useMemo(() => r.positions.map((p) => ({
-    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: p.verdict,
-    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off, allowed ${formatLength(p.toleranceMm, unit)} — ${p.verdict}` : `${p.label}: not seen`,
+    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: positionMark(p),
+    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off, allowed ${formatLength(p.toleranceMm, unit)} — ${MARK_WORD[p.verdict]}` : `${p.label}: ${MARK_WORD[positionMark(p)].toLowerCase()}`,
   })), [r, unit]);
   const rows = useMemo(() => positionRows(r), [r]);
   return (
     <div className="flex flex-col gap-6" data-testid="shared-report-body">
-      <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-6">
-        {([['Measured', `${s.matched}`], ['Out', `${s.out}`], ['Marginal', `${s.marginal}`], ['Not seen', `${s.missing}`], ['RMS off', formatLength(s.rmsMm, unit)], ['Largest', formatLength(s.maxMm, unit)]] as const).map(([k, v]) => (
-          <div key={k} className="panel !p-3"><dt className="text-sm text-muted">{k}</dt><dd className="font-mono text-2xl font-bold">{v}</dd></div>
-        ))}
-      </dl>
       <div className="no-print flex flex-wrap gap-2">
         {(['mm', 'in'] as const).map((u) => (
-          <button key={u} type="button" className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-pressed={unit === u} onClick={() => setUnit(u)}>{u === 'mm' ? 'mm' : 'inch'}</button>
+          <a key={u} className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-current={unit === u ? 'true' : undefined} href={`?units=${u}`}>{u === 'mm' ? 'mm' : 'inch'}</a>
         ))}
         <a className="btn btn-quiet" href={`/api/shared/${token}/report.pdf?units=${unit}`} download>PDF</a>
       </div>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-map-h">
         <h2 id="shared-map-h" className="text-xl font-bold">Deviation map</h2>
-        <BedMap widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY} panels={geometry.panels} items={items} spacingMm={spacing} exaggeration={autoExaggeration(s.maxMm, spacing)} unit={unit} selected={selected} onSelect={setSelected} label="Map of the bed: each position's mark and how far it sits from where it should be" />
+        <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
+          {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
+          <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>
+        </div>
+        <BedMap widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY} panels={geometry.panels} items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit} selected={selected} onSelect={setSelected} label="Map of the bed: each position's mark and how far it sits from where it should be" />
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-pos-h">
         <h2 id="shared-pos-h" className="text-xl font-bold">Positions</h2>

@@ -40,7 +40,7 @@ export async function findLiveSharedCheck(db: Queryable, tokenHash: string, now 
     .select({
       linkId: shareLinks.id, workshopId: shareLinks.workshopId, checkId: shareLinks.checkId, expiresAt: shareLinks.expiresAt,
       status: checks.status, title: checks.title, finishedAt: checks.finishedAt, createdAt: checks.createdAt,
-      hasReport: hasReportSql, reportRev: checks.reportRev, bedName: beds.name,
+      hasReport: hasReportSql, reportRev: checks.reportRev, bedName: beds.name, bedId: checks.bedId, patternId: checks.patternId,
     })
     .from(shareLinks)
     .innerJoin(checks, and(eq(checks.id, shareLinks.checkId), eq(checks.workshopId, shareLinks.workshopId)))

@@ -17,6 +17,8 @@ import { LeaseLostError, type ClaimedJob } from '@/db/queries/jobs';
 import { getPattern } from '@/db/queries/patterns';
 import { getPhotoById, setPhotoSize } from '@/db/queries/photos';
 import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report, type PhotoQuality } from '@/lib/geometry/contract';
+import { patternToMm } from '@/lib/geometry/units';
+import { withOutline } from '@/lib/report/map';
 import { BlobNotFoundError, type Storage } from '@/lib/storage';
 import { CornersSchema, type Corners } from './intake';
 import { needsReview } from './review';
@@ -224,6 +226,8 @@ async function fitAndSave(
     result = await deps.analyze(points, pattern, options);
     // the report carries the photo's quality, so that its numbers are read with the photo's issues in view
     if (quality) result = { ...result, photo: { quality } };
+    // and the bed's outline and panels, so that every map of it (web, PDF, mail, shared page) draws the same bed
+    result = withOutline(result, patternToMm(pattern));
   } catch (e) {
     if (deps.isInputError(e) || (e as Error).name === 'GeometryInputError') throw new PermanentJobError(withHint((e as Error).message, cornersGiven), { cause: e });
     throw e;

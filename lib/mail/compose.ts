@@ -1,20 +1,32 @@
 /**
  * One call for the "send this report to a helper" use case: draws the deviation map of the report as PNG and
- * fills the report template with the report's own verdict and sentence.
+ * fills the report template with the report's own verdict word and mark, headline and figures, in the sender's
+ * unit (lib/report: the same words, marks and arrow scale as the report page, the PDF and the shared page).
  */
 import type { Report } from '@/lib/geometry/contract';
-import { renderDeviationMapPng } from './map-image';
+import { headline, shapeLine } from '@/lib/report/headline';
+import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { BED_VERDICT_MARK, figureCards, reportCounts } from '@/lib/report/words';
+import { renderDeviationMapPng, renderMarkPng } from './map-image';
 import { reportMail, type MailContent, type ReportMailInput } from './templates';
 
-export type ReportMailFromReportInput = Omit<ReportMailInput, 'verdict' | 'verdictSentence' | 'map'> & {
+export type ReportMailFromReportInput = Omit<ReportMailInput, 'verdict' | 'verdictSentence' | 'shapeSentence' | 'figures' | 'verdictMark' | 'map'> & {
   report: Report;
+  /** The unit lengths are written in (default mm). */
+  units?: LengthUnit;
   /** Width of the inline map, px (default 640). */
   mapWidthPx?: number;
 };
 
 /** The report mail for `report`, its deviation map inline as PNG. */
 export async function reportMailFromReport(input: ReportMailFromReportInput): Promise<MailContent> {
-  const { report, mapWidthPx, ...rest } = input;
-  const png = await renderDeviationMapPng(report, { widthPx: mapWidthPx ?? 640 });
-  return reportMail({ ...rest, verdict: report.summary.verdict, verdictSentence: report.summary.sentence, shapeSentence: report.summary.shapeSentence, map: { content: png, contentType: 'image/png' } });
+  const { report, mapWidthPx, units, ...rest } = input;
+  const unit = units ?? 'mm';
+  const s = report.summary;
+  const [png, mark] = await Promise.all([renderDeviationMapPng(report, { widthPx: mapWidthPx ?? 640 }), renderMarkPng(BED_VERDICT_MARK[s.verdict])]);
+  const figures = figureCards(reportCounts(report), formatLength(s.rmsMm, unit), formatLength(s.maxMm, unit)).map(([k, v]) => `${k} ${v}`).join(' · ');
+  return reportMail({
+    ...rest, verdict: s.verdict, verdictSentence: headline(report, unit), shapeSentence: shapeLine(report, unit), figures, verdictMark: mark,
+    map: { content: png, contentType: 'image/png' },
+  });
 }

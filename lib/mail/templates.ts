@@ -5,6 +5,8 @@
  */
 import { z } from 'zod';
 import { ROLES, type Role } from '@/db/schema';
+import { MARKS } from '@/lib/report/palette';
+import { BED_VERDICT_MARK, BED_VERDICT_WORD } from '@/lib/report/words';
 import { APP_NAME } from './config';
 import { escapeHtml, escapeMultiline, oneLine, safeHttpUrl } from './html';
 
@@ -62,6 +64,10 @@ export const ReportMailInputSchema = z.object({
   verdictSentence: z.string().min(1).max(1000),
   /** The overall size and squareness line (report.summary.shapeSentence), when the report has one. */
   shapeSentence: z.string().max(1000).nullish(),
+  /** The report's figures in one line, as its cards show them ("Measured 70 · Out 1 · …"). */
+  figures: z.string().max(1000).nullish(),
+  /** The verdict's mark as a small image (PNG), shown before the verdict word. */
+  verdictMark: z.custom<Uint8Array>((v) => v instanceof Uint8Array, 'the mark must be bytes (Buffer or Uint8Array)').nullish(),
   /** A short note from the sender. */
   note: z.string().max(2000).nullish(),
   /** The deviation map, shown inline (PNG preferred: many mail readers do not show SVG). */
@@ -76,17 +82,17 @@ export const ReportMailInputSchema = z.object({
 });
 export type ReportMailInput = z.input<typeof ReportMailInputSchema>;
 
-const VERDICT_WORDS = { pass: 'Passes', marginal: 'Marginal', fail: 'Fails' } as const;
-const VERDICT_COLOURS = { pass: '#2f6f5e', marginal: '#9a6a00', fail: '#a3322b' } as const;
 
 /** A report sent to a helper: who sends it, the verdict, their note, the link, the deviation map inline. */
 export function reportMail(input: ReportMailInput): MailContent {
   const i = ReportMailInputSchema.parse(input);
   const url = safeHttpUrl(i.linkUrl);
   const what = [i.bedName, i.checkTitle].filter((s): s is string => !!s && s.trim() !== '').join(' — ') || 'a bed check';
-  const subject = oneLine(`${i.senderName} shared a bed check: ${what} (${VERDICT_WORDS[i.verdict].toLowerCase()})`);
+  const word = BED_VERDICT_WORD[i.verdict];
+  const colour = MARKS[BED_VERDICT_MARK[i.verdict]].colour;
+  const subject = oneLine(`${i.senderName} shared a bed check: ${what} (${word.toLowerCase()})`);
   // The sentence usually opens with the verdict itself; name it only when it does not.
-  const verdictLine = /^(pass|passes|passed|marginal|fail|fails|failed)\b/i.test(i.verdictSentence.trim()) ? i.verdictSentence : `${VERDICT_WORDS[i.verdict]}. ${i.verdictSentence}`;
+  const verdictLine = /^(pass|passes|passed|marginal|fail|fails|failed)\b/i.test(i.verdictSentence.trim()) ? i.verdictSentence : `${word}. ${i.verdictSentence}`;
   const expires = i.linkExpiresAt ? `The link works until ${formatUtc(i.linkExpiresAt)}.` : '';
 
   const text = [
@@ -94,6 +100,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     '',
     `Verdict: ${verdictLine}`,
     ...(i.shapeSentence ? [i.shapeSentence] : []),
+    ...(i.figures ? [i.figures] : []),
     ...(i.note && i.note.trim() ? ['', `Note from ${i.senderName}:`, ...i.note.trim().split(/\r?\n/).map((l) => `  ${l}`)] : []),
     '',
     'Open the report (no account needed; read only):',
@@ -106,14 +113,18 @@ export function reportMail(input: ReportMailInput): MailContent {
   ].filter((l, k, all) => !(l === '' && all[k - 1] === '')).join('\n');
 
   const mapHtml = i.map
-    ? `<p style="margin:16px 0 4px;font-weight:bold">Deviation map</p><img src="data:${i.map.contentType};base64,${Buffer.from(i.map.content).toString('base64')}" alt="${escapeHtml(i.map.alt ?? 'Map of the bed: each position coloured by how far it is from where it should be')}" style="max-width:100%;height:auto;border:1px solid #d5dcd9">`
+    ? `<p style="margin:16px 0 4px;font-weight:bold">Deviation map</p><img src="data:${i.map.contentType};base64,${Buffer.from(i.map.content).toString('base64')}" alt="${escapeHtml(i.map.alt ?? 'Map of the bed: each position marked by its verdict, with an arrow for how far it is from where it should be')}" style="max-width:100%;height:auto;border:1px solid #d5dcd9">`
+    : '';
+  const markImg = i.verdictMark
+    ? `<img src="data:image/png;base64,${Buffer.from(i.verdictMark).toString('base64')}" alt="" width="16" height="16" style="vertical-align:-2px;margin-right:6px">`
     : '';
   const noteHtml = i.note && i.note.trim()
     ? `<p style="margin:16px 0 4px;font-weight:bold">Note from ${escapeHtml(i.senderName)}</p><blockquote style="margin:0;padding:8px 12px;border-left:3px solid #c9d3cf;background:#f6f8f7">${escapeMultiline(i.note.trim())}</blockquote>`
     : '';
   const bodyHtml = [
     `<p style="margin-top:0"><strong>${escapeHtml(i.senderName)}</strong> of the workshop <strong>${escapeHtml(i.workshopName)}</strong> shared a bed check with you: ${escapeHtml(what)}.</p>`,
-    `<p style="padding:10px 12px;border-left:4px solid ${VERDICT_COLOURS[i.verdict]};background:#f6f8f7"><strong style="color:${VERDICT_COLOURS[i.verdict]}">${VERDICT_WORDS[i.verdict]}.</strong> ${escapeHtml(i.verdictSentence)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
+    `<p style="padding:10px 12px;border-left:4px solid ${colour};background:#f6f8f7">${markImg}<strong style="color:${colour}">${escapeHtml(word)}.</strong> ${escapeHtml(i.verdictSentence)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
+    i.figures ? `<p style="font-size:14px">${escapeHtml(i.figures)}</p>` : '',
     noteHtml,
     button(url, 'Open the report'),
     expires ? `<p style="font-size:13px;color:#5b6663">${escapeHtml(expires)} No account is needed; the page is read only.</p>` : '<p style="font-size:13px;color:#5b6663">No account is needed; the page is read only.</p>',

@@ -1,6 +1,7 @@
 /**
  * The report of a check as a PDF (pdf-lib, standard Helvetica): verdict sentence, summary and lattice figures,
- * a deviation map drawn with vectors, the panel table with the moves that correct them, the table of positions
+ * a deviation map drawn with vectors and the report's own marks (lib/report/palette.ts), its arrow scale the one of
+ * lib/report/map-scale.ts, the panel table with the moves that correct them, the table of positions
  * out or marginal, and comments.
  *
  * Frames: the report is in the bed frame (mm, origin front-left, +X right, +Y away from the operator); the map
@@ -11,9 +12,13 @@ import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB }
 import { MM_PER_IN, type Report, type Verdict } from '@/lib/geometry/contract';
 import { distanceSentence } from '@/lib/report/distances';
 import { bandRadiusMm } from '@/lib/geometry/band';
-import { mapGeometry, nearestSpacing, niceFactor, VERDICT_RGB } from './map';
+import { headline, shapeLine } from '@/lib/report/headline';
+import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
+import { reportArrowScale } from '@/lib/report/map-scale';
+import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/report/palette';
+import { formatLength } from '@/lib/report/units';
+import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
-import { hiddenWords } from '@/lib/report/hidden';
 import { mmToPt, paperSizePt, type Paper } from './units';
 
 export interface ReportPdfComment {
@@ -38,14 +43,7 @@ export interface ReportPdfOptions {
   maxPositionRows?: number;
 }
 
-const COLOURS: Record<Verdict, RGB> = {
-  in: rgb(...VERDICT_RGB.in),
-  marginal: rgb(...VERDICT_RGB.marginal),
-  out: rgb(...VERDICT_RGB.out),
-  missing: rgb(...VERDICT_RGB.missing),
-};
-const BED_VERDICT_WORDS = { pass: 'Passes', marginal: 'Marginal', fail: 'Fails' } as const;
-const BED_VERDICT_COLOURS = { pass: COLOURS.in, marginal: COLOURS.marginal, fail: COLOURS.out } as const;
+const MAP_GROUND = rgb(0.97, 0.97, 0.95);
 const INK = rgb(0.1, 0.13, 0.12);
 const MUTED = rgb(0.38, 0.42, 0.41);
 const RULE = rgb(0.8, 0.83, 0.82);
@@ -137,7 +135,16 @@ function table(f: Flow, columns: Column[], rows: string[][], size = 8) {
   }
 }
 
-function drawMap(f: Flow, report: Report) {
+/** The mark at (x, y) pt with radius r pt, from its layers (SVG y-down path data; drawSvgPath turns it onto the page). */
+function drawMark(page: PDFPage, mark: Mark, x: number, y: number, r: number, ground: RGB) {
+  const colour = rgb(...hexToRgb01(MARKS[mark].colour));
+  const paint = (p: 'mark' | 'ground' | null) => (p === 'mark' ? colour : p === 'ground' ? ground : undefined);
+  for (const l of markLayers(mark, r)) {
+    page.drawSvgPath(l.d, { x, y, color: paint(l.fill), ...(l.stroke ? { borderColor: paint(l.stroke), borderWidth: l.strokeWidth } : {}) });
+  }
+}
+
+function drawMap(f: Flow, report: Report, exaggeration: number) {
   const g = mapGeometry(report);
   const boxW = f.textWidth;
   const boxH = Math.min(mmToPt(120), f.height * 0.42);
@@ -150,29 +157,19 @@ function drawMap(f: Flow, report: Report) {
   const px = (xMm: number) => x0 + (xMm - g.originX) * scale;
   const py = (yMm: number) => y0 + (yMm - g.originY) * scale;
   const page = f.page;
-  page.drawRectangle({ x: x0, y: y0, width: drawW, height: drawH, borderColor: INK, borderWidth: 0.6, color: rgb(0.97, 0.97, 0.95) });
+  page.drawRectangle({ x: x0, y: y0, width: drawW, height: drawH, borderColor: INK, borderWidth: 0.6, color: MAP_GROUND });
   for (const q of g.panels) {
     page.drawRectangle({ x: px(q.x), y: py(q.y), width: q.width * scale, height: q.height * scale, borderColor: MUTED, borderWidth: 0.4 });
     page.drawText(drawable(f.regular, q.id), { x: px(q.x) + 2, y: py(q.y + q.height) - 7, size: 6, font: f.regular, color: MUTED });
   }
-  const matched = report.positions.filter((q) => q.deviation);
-  const maxR = Math.max(0, ...matched.map((q) => q.deviation!.r));
-  const spacingPt = nearestSpacing(report.positions) * scale;
-  // Arrows are drawn exaggerated so the largest is about 0.8 of the spacing between neighbours.
-  const exaggeration = maxR > 0 ? niceFactor((0.8 * spacingPt) / (maxR * scale)) : 1;
-  const dot = Math.max(0.8, Math.min(3, spacingPt * 0.18));
-  const many = report.positions.length > 1500;
+  const spacing = nearestSpacing(report.positions);
+  const r = Math.max(0.8, markRadiusMm(g, spacing) * scale);
   for (const q of report.positions) {
     const cx = px(q.nominal.x);
     const cy = py(q.nominal.y);
-    const colour = COLOURS[q.verdict];
-    if (q.verdict === 'missing') {
-      page.drawCircle({ x: cx, y: cy, size: dot, borderColor: colour, borderWidth: 0.5 });
-      continue;
-    }
-    if (many) page.drawRectangle({ x: cx - dot, y: cy - dot, width: 2 * dot, height: 2 * dot, color: colour });
-    else page.drawCircle({ x: cx, y: cy, size: dot, color: colour });
-    if (q.deviation && q.deviation.r > 0) {
+    const mark = positionMark(q);
+    if (q.deviation && q.deviation.r * exaggeration * scale > r * 0.6) {
+      const colour = rgb(...hexToRgb01(MARKS[mark].colour));
       const ex = cx + q.deviation.dx * scale * exaggeration;
       const ey = cy + q.deviation.dy * scale * exaggeration;
       page.drawLine({ start: { x: cx, y: cy }, end: { x: ex, y: ey }, thickness: 0.6, color: colour });
@@ -189,19 +186,21 @@ function drawMap(f: Flow, report: Report) {
         }
       }
     }
+    drawMark(page, mark, cx, cy, r, MAP_GROUND);
   }
   page.drawText('operator side (front)', { x: x0, y: y0 - 9, size: 6.5, font: f.regular, color: MUTED });
   f.y = y0 - 12;
-  // Legend
+  // Legend: every mark a position can have, its name and count, then the arrow scale.
   f.y -= 10;
+  const counts = reportCounts(report);
   let lx = f.left;
-  for (const v of ['in', 'marginal', 'out', 'missing'] as const) {
-    if (v === 'missing') page.drawCircle({ x: lx + 3, y: f.y + 3, size: 2.5, borderColor: COLOURS[v], borderWidth: 0.6 });
-    else page.drawCircle({ x: lx + 3, y: f.y + 3, size: 2.5, color: COLOURS[v] });
-    page.drawText(v, { x: lx + 9, y: f.y, size: 7.5, font: f.regular, color: INK });
-    lx += 58;
+  for (const m of POSITION_MARKS) {
+    drawMark(page, m, lx + 3.5, f.y + 3, 3, rgb(1, 1, 1));
+    const label = `${MARK_WORD[m]} ${counts[m]}`;
+    page.drawText(label, { x: lx + 10, y: f.y, size: 7.5, font: f.regular, color: INK });
+    lx += 16 + f.regular.widthOfTextAtSize(label, 7.5);
   }
-  page.drawText(drawable(f.regular, `Arrows: deviation from nominal, drawn ${exaggeration}x larger than the map scale.`), { x: lx, y: f.y, size: 7.5, font: f.regular, color: INK });
+  page.drawText(drawable(f.regular, `${arrowScaleWords(exaggeration)} (deviation from nominal, drawn ${exaggeration} times the map scale)`), { x: lx, y: f.y, size: 7.5, font: f.regular, color: INK });
 }
 
 /** Renders a check's report as PDF bytes. */
@@ -232,13 +231,19 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
 
   // Verdict
   const s = report.summary;
+  const unit = inch ? 'in' : 'mm';
+  const shape = shapeLine(report, unit);
   f.y -= 10;
-  const sentenceLines = [...wrapText(regular, s.sentence, 10, f.textWidth - 20), ...(s.shapeSentence ? wrapText(regular, s.shapeSentence, 10, f.textWidth - 20) : [])];
+  const sentenceLines = [...wrapText(regular, headline(report, unit), 10, f.textWidth - 20), ...(shape ? wrapText(regular, shape, 10, f.textWidth - 20) : [])];
   const boxH = 22 + sentenceLines.length * 13;
-  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: f.textWidth, height: boxH, color: rgb(0.965, 0.973, 0.969) });
-  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: 4, height: boxH, color: BED_VERDICT_COLOURS[s.verdict] });
+  const verdictMark = BED_VERDICT_MARK[s.verdict];
+  const verdictColour = rgb(...hexToRgb01(MARKS[verdictMark].colour));
+  const boxGround = rgb(0.965, 0.973, 0.969);
+  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: f.textWidth, height: boxH, color: boxGround });
+  f.page.drawRectangle({ x: f.left, y: f.y - boxH, width: 4, height: boxH, color: verdictColour });
   f.y -= 16;
-  f.text(BED_VERDICT_WORDS[s.verdict], { x: f.left + 12, size: 12, font: bold, color: BED_VERDICT_COLOURS[s.verdict] });
+  drawMark(f.page, verdictMark, f.left + 17, f.y + 4, 5, boxGround);
+  f.text(BED_VERDICT_WORD[s.verdict], { x: f.left + 27, size: 12, font: bold, color: verdictColour });
   for (const line of sentenceLines) {
     f.y -= 13;
     f.text(line, { x: f.left + 12, size: 10 });
@@ -253,8 +258,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   const scaleLine = (name: string, v: number | null, sd: number | null) =>
     v === null ? `${name}: not measured` : `${name}: ${((v - 1) * 1000).toFixed(3)}${pm(sd, 3, 1000)} mm per metre (factor ${v.toFixed(6)})`;
   const figures = [
-    `Positions: ${s.matched} measured, ${s.missing} missing, ${s.out} out, ${s.marginal} marginal; ${report.unmatched.length} holes not on the pattern.`,
-    `Deviation: RMS ${len(s.rmsMm)}, largest ${len(s.maxMm)}.`,
+    `${figureCards(reportCounts(report), formatLength(s.rmsMm, unit), formatLength(s.maxMm, unit)).map(([k, v]) => `${k} ${v}`).join(' · ')} · ${MARK_WORD.unmatched} ${report.unmatched.length}.`,
     `Lattice rotation on the photo: ${lat.rotationDeg.toFixed(3)}°${pm(u.rotationDeg, 3)}.`,
     scaleLine('Scale along X', lat.scaleX, u.scaleX),
     scaleLine('Scale along Y', lat.scaleY, u.scaleY),
@@ -271,7 +275,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
 
   // Map
   f.heading('Deviation map');
-  drawMap(f, report);
+  drawMap(f, report, reportArrowScale(report));
 
   // Panels
   if (report.panels.length) {
@@ -332,26 +336,26 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
       flagged.slice(0, maxRows).map((q) => [
         q.label, q.family, q.panel ?? '',
         q.deviation ? signed(q.deviation.dx) : '', q.deviation ? signed(q.deviation.dy) : '',
-        q.deviation ? len(q.deviation.r).replace(/ (mm|in)$/, '') : '', len(q.toleranceMm).replace(/ (mm|in)$/, ''), q.verdict,
-        q.form ? len(q.form.r).replace(/ (mm|in)$/, '') : '', q.form?.verdict ?? '',
+        q.deviation ? len(q.deviation.r).replace(/ (mm|in)$/, '') : '', len(q.toleranceMm).replace(/ (mm|in)$/, ''), MARK_WORD[q.verdict],
+        q.form ? len(q.form.r).replace(/ (mm|in)$/, '') : '', q.form ? MARK_WORD[q.form.verdict] : '',
       ]),
     );
     if (flagged.length > maxRows) f.paragraph(`… and ${flagged.length - maxRows} more (see the report online).`, { color: MUTED });
   }
-  const missing = report.positions.filter((q) => q.verdict === 'missing' && !q.hidden);
-  const hidden = report.positions.filter((q) => q.verdict === 'missing' && q.hidden);
+  const missing = report.positions.filter((q) => positionMark(q) === 'missing');
+  const hidden = report.positions.filter((q) => positionMark(q) === 'hidden');
   if (missing.length) {
     f.y -= 6;
-    f.paragraph(`Not seen (${missing.length}): ${missing.slice(0, 120).map((q) => q.label).join(', ')}${missing.length > 120 ? ', …' : ''}`, { size: 8, color: MUTED });
+    f.paragraph(`${MARK_WORD.missing} (${missing.length}): ${missing.slice(0, 120).map((q) => q.label).join(', ')}${missing.length > 120 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
   // hidden positions grouped by why they were not seen (not measured: neither in nor out)
   const byReason = new Map<string, string[]>();
   for (const q of hidden) {
-    const w = hiddenWords(q)!;
+    const w = outOfSightWords(q)!;
     byReason.set(w, [...(byReason.get(w) ?? []), q.label]);
   }
   for (const [words, labels] of byReason) {
-    f.paragraph(`Not seen, ${words} (${labels.length}): ${labels.slice(0, 60).join(', ')}${labels.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
+    f.paragraph(`${MARK_WORD.hidden}, ${words} (${labels.length}): ${labels.slice(0, 60).join(', ')}${labels.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
 
   // Comments

@@ -1,7 +1,7 @@
 /**
  * Loading a finished check for the sharing, comment, fit and PDF use cases, and the report as a stranger may
- * see it. `publicReport` keeps only what the report page shows (verdict, positions, panels, seams, lattice,
- * summary) and drops everything that comes from the photo rather than the bed: the camera (focal length,
+ * see. `publicReport` keeps only what the report page shows (the bed's outline and panels, verdict, positions,
+ * panels' moves, seams, lattice, summary) and drops everything that comes from the photo rather than the bed: the camera (focal length,
  * possibly from EXIF, and the principal point, which gives the image size), the detector's diagnostics, the
  * unmatched detections (image pixels) and any field a later version adds.
  */
@@ -12,6 +12,7 @@ import { getPattern } from '@/db/queries/patterns';
 import { PatternSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
 import { patternToMm, type PatternMm } from '@/lib/geometry/units';
 import { AppError, notFound } from '@/lib/http/errors';
+import { withOutline } from '@/lib/report/map';
 
 export interface FinishedCheck {
   check: CheckRow;
@@ -26,8 +27,19 @@ export async function loadFinishedCheck(db: Db, workshopId: string, checkId: str
   if (!check.reportJson || (check.status !== 'done' && check.status !== 'needs-review')) {
     throw new AppError('not_ready', 409, `The check is ${check.status}; its report is ready once it is done.`);
   }
-  const bed = await getBed(db, workshopId, check.bedId);
-  return { check, report: ReportSchema.parse(JSON.parse(check.reportJson)), bedName: bed?.name ?? 'Bed' };
+  const [bed, report] = await Promise.all([getBed(db, workshopId, check.bedId), withStoredOutline(db, check, ReportSchema.parse(JSON.parse(check.reportJson)))]);
+  return { check, report, bedName: bed?.name ?? 'Bed' };
+}
+
+/**
+ * The report with its bed's outline and panels: reports carry them since they are written (lib/checks/run-analysis),
+ * an older one takes them from the pattern it was measured against, when that still exists.
+ */
+export async function withStoredOutline(db: Db, check: Pick<CheckRow, 'bedId' | 'patternId'>, report: Report): Promise<Report> {
+  if (report.pattern.bed) return report;
+  const row = await getPattern(db, check.bedId, check.patternId);
+  const parsed = row ? PatternSchema.safeParse(JSON.parse(row.json)) : null;
+  return parsed?.success ? withOutline(report, patternToMm(parsed.data)) : report;
 }
 
 /** The pattern (in mm) the check was measured against. */
@@ -42,10 +54,12 @@ export function publicReport(r: Report): Report {
   return {
     version: r.version,
     units: r.units,
-    pattern: { name: r.pattern.name },
+    // the bed's outline and panels (the bed, not the photo) for the maps
+    pattern: { name: r.pattern.name, ...(r.pattern.units ? { units: r.pattern.units } : {}), ...(r.pattern.bed ? { bed: { width: r.pattern.bed.width, height: r.pattern.bed.height } } : {}),
+      ...(r.pattern.panels ? { panels: r.pattern.panels.map((q) => ({ id: q.id, x: q.x, y: q.y, width: q.width, height: q.height })) } : {}) },
     positions: r.positions.map((p) => ({
       family: p.family, col: p.col, row: p.row, label: p.label, panel: p.panel, nominal: p.nominal, measured: p.measured,
-      deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}), ...(p.hiddenBy ? { hiddenBy: p.hiddenBy } : {}),
+      deviation: p.deviation, uncertaintyMm: p.uncertaintyMm, toleranceMm: p.toleranceMm, verdict: p.verdict, ...(p.hidden ? { hidden: true } : {}), ...(p.hiddenBy ? { hiddenBy: p.hiddenBy } : {}), ...(p.outOfView ? { outOfView: true } : {}),
       ...(p.form ? { form: { dx: p.form.dx, dy: p.form.dy, r: p.form.r, uncertaintyMm: p.form.uncertaintyMm, verdict: p.form.verdict } } : {}),
     })),
     unmatched: [],

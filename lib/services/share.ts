@@ -24,7 +24,7 @@ import { queueMail, reportMailFromReport } from '@/lib/mail';
 import { reportAt } from '@/lib/checks/report-cache';
 import { authorize, type Actor } from './actor';
 import { EmailSchema } from './auth';
-import { loadFinishedCheck, publicReport } from './share-report';
+import { loadFinishedCheck, publicReport, withStoredOutline } from './share-report';
 
 export const SHARE_DEFAULT_DAYS = 14;
 export const SHARE_MAX_DAYS = 90;
@@ -76,10 +76,13 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
   if (limit.count > SEND_LIMIT_PER_HOUR) throw new AppError('rate_limited', 429, `You have sent ${SEND_LIMIT_PER_HOUR} reports in the last hour; try again later.`);
   const workshop = await getWorkshop(db, actor.workshopId);
   const token = newShareToken();
-  const url = shareUrl(baseUrl, token);
+  // the mail and the page it links to write lengths in the sender's unit
+  const units = actor.user.units;
+  const url = `${shareUrl(baseUrl, token)}${units === 'in' ? '?units=in' : ''}`;
   const expiresAt = Date.now() + input.expiresInDays * DAY_MS;
   const mail = await reportMailFromReport({
     report: publicReport(report),
+    units,
     workshopName: workshop?.name ?? 'Workshop',
     senderName: actor.user.name,
     bedName,
@@ -150,7 +153,7 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   try {
     const full = await reportAt(row.checkId, row.reportRev, () => getCheckReportText(db, row.workshopId, row.checkId));
     if (!full) throw unknown();
-    report = sharedReportOf(full);
+    report = sharedReportOf(full.pattern.bed ? full : await withStoredOutline(db, row, full));
   } catch {
     throw unknown();
   }

@@ -1,23 +1,34 @@
 /**
  * The mail's deviation map image: sharp (libvips, an independent decoder) reads the PNG back; the SVG has one
- * marker per position and keeps the bed's +Y (away from the operator) at the top of the image.
+ * mark per position (the report's own) and keeps the bed's +Y (away from the operator) at the top of the image.
  */
 import sharp from 'sharp';
 import { describe, expect, it } from 'vitest';
 import { renderDeviationMapPng, renderDeviationMapSvg } from '@/lib/mail/map-image';
+import { reportArrowScale } from '@/lib/report/map-scale';
+import { MARKS, POSITION_MARKS } from '@/lib/report/palette';
+import { arrowScaleWords, MARK_WORD, positionMark } from '@/lib/report/words';
 import { buildReport } from '../pdf/report-fixture';
 
 describe('deviation map image', () => {
-  it('draws one marker per position, far side of the bed at the top', () => {
+  it("draws one mark per position, each the report's mark for it, far side of the bed at the top", () => {
     const report = buildReport();
     const svg = renderDeviationMapSvg(report, { widthPx: 800 });
-    const circles = [...svg.matchAll(/<circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => [Number(m[1]), Number(m[2])] as const);
-    expect(circles.length).toBe(report.positions.length + 4); // plus the four legend swatches
-    const markers = circles.slice(0, report.positions.length);
-    const dogYs = report.positions.map((p, k) => (p.family === 'dog' ? markers[k]![1] : null)).filter((y): y is number => y !== null);
-    const insertYs = report.positions.map((p, k) => (p.family === 'insert' ? markers[k]![1] : null)).filter((y): y is number => y !== null);
+    const marks = [...svg.matchAll(/<g transform="translate\(([\d.]+) ([\d.]+)\)" data-mark="([a-z]+)">/g)].map((m) => ({ x: Number(m[1]), y: Number(m[2]), mark: m[3] }));
+    expect(marks.length).toBe(report.positions.length + POSITION_MARKS.length); // plus one legend swatch per mark
+    const onMap = marks.slice(0, report.positions.length);
+    expect(onMap.map((m) => m.mark)).toEqual(report.positions.map(positionMark));
+    // the fixture has positions out and not seen: they are drawn as a crossed square and a ring, not as discs
+    expect(onMap.filter((m) => m.mark === 'out').length).toBe(report.positions.filter((p) => p.verdict === 'out').length);
+    expect(svg).toContain(`fill="${MARKS.out.colour}"`);
+    expect(svg).not.toContain('<circle');
+    const dogYs = report.positions.map((p, k) => (p.family === 'dog' ? onMap[k]!.y : null)).filter((y): y is number => y !== null);
+    const insertYs = report.positions.map((p, k) => (p.family === 'insert' ? onMap[k]!.y : null)).filter((y): y is number => y !== null);
     // The dog row has the largest bed Y, so the smallest image y (SVG y grows downward).
     expect(Math.max(...dogYs)).toBeLessThan(Math.min(...insertYs));
+    // the legend names each mark with its count and prints the report's one arrow scale
+    expect(svg).toContain(`>${MARK_WORD.missing} 2<`);
+    expect(svg).toContain(arrowScaleWords(reportArrowScale(report)));
   });
 
   it('escapes panel names in the SVG', () => {

@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { mailConfigFromEnv } from '@/lib/mail/config';
 import { escapeHtml } from '@/lib/mail/html';
 import { reportMailFromReport } from '@/lib/mail/compose';
+import { headline } from '@/lib/report/headline';
 import { invitationMail, passwordResetMail, reportMail } from '@/lib/mail/templates';
 import { buildReport } from '../pdf/report-fixture';
 
@@ -62,10 +63,21 @@ describe('mail templates', () => {
 });
 
 describe('report mail from a report', () => {
-  it('takes the verdict sentence from the report and inlines its map as PNG', async () => {
+  it("writes the report's headline and figures in the sender's unit and inlines its map as PNG", async () => {
     const report = buildReport();
     const m = await reportMailFromReport({ report, workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
-    expect(m.text).toContain(report.summary.sentence);
+    expect(m.text).toContain(`Verdict: ${headline(report, 'mm')}`);
+    expect(m.subject).toContain('(fail)');
+    const worst = report.positions.filter((p) => p.verdict === 'out').sort((a, b) => b.deviation!.r - a.deviation!.r)[0]!;
+    expect(m.text).toContain(`worst ${worst.label}, ${worst.deviation!.r.toFixed(2)} mm off`);
+    // the cards' counts: positions measured, and the two not found (neither under the sheet nor outside the photo)
+    expect(m.text).toContain(`Measured ${report.positions.filter((p) => p.deviation).length} · `);
+    expect(m.text).toContain('Not seen 2 · Hidden 0');
+    // 25.4 mm to the inch (exact by definition), four places for inches
+    const inch = await reportMailFromReport({ report, units: 'in', workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
+    expect(inch.text).toContain(`worst ${worst.label}, ${(worst.deviation!.r / 25.4).toFixed(4)} in off`);
+    expect(inch.text).toContain(`Largest ${(report.summary.maxMm / 25.4).toFixed(4)} in`);
+    expect(inch.text).not.toMatch(/\d mm\b/);
     // PNG signature 89 50 4E 47 0D 0A 1A 0A (ISO/IEC 15948 §5.2) is "iVBORw0KGgo" in base64.
     expect(m.html).toContain('src="data:image/png;base64,iVBORw0KGgo');
   });

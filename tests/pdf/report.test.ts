@@ -10,6 +10,9 @@ import { ReportSchema } from '@/lib/geometry/contract';
 import { presetById } from '@/lib/geometry/presets';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { renderReportPdf } from '@/lib/pdf/report';
+import { headline } from '@/lib/report/headline';
+import { hexToRgb01, MARKS } from '@/lib/report/palette';
+import { BED_VERDICT_WORD } from '@/lib/report/words';
 import { bounds, readPage, type PageContent } from './pdf-reader';
 import { buildReport } from './report-fixture';
 
@@ -19,8 +22,8 @@ async function allPages(bytes: Uint8Array): Promise<PageContent[]> {
 }
 const textOf = (pages: PageContent[]) => pages.flatMap((p) => p.texts.map((t) => t.text)).join(' ');
 
-const OUT_RGB: [number, number, number] = [0.68, 0.2, 0.17];
-const IN_RGB: [number, number, number] = [0.18, 0.44, 0.37];
+const OUT_RGB = hexToRgb01(MARKS.out.colour);
+const IN_RGB = hexToRgb01(MARKS.in.colour);
 const same = (a: [number, number, number] | null, b: [number, number, number]) => !!a && a.every((v, k) => Math.abs(v - b[k]!) < 1e-3);
 
 describe('report PDF', () => {
@@ -35,15 +38,18 @@ describe('report PDF', () => {
     expect(text).toContain('North Bench');
     expect(text).toContain('Main spoilboard');
     expect(text).toContain('2026-12-02 08:00 UTC');
-    expect(text).toContain(report.summary.verdict === 'fail' ? 'Fails' : 'Marginal');
-    // The verdict sentence (wrapped over lines) appears word for word.
-    const words = report.summary.sentence.split(' ');
+    expect(text).toContain(BED_VERDICT_WORD[report.summary.verdict]);
+    // The headline (wrapped over lines) appears word for word.
+    const words = headline(report, 'mm').split(' ');
     expect(words.every((w) => text.includes(w))).toBe(true);
     // Figures: scale 1.00021 is +0.210 mm per metre; squareness; RMS.
     expect(text).toContain('0.210 ± 0.040 mm per metre');
     expect(text).toContain('-0.120 ± 0.040 mm per metre');
     expect(text).toContain('0.0123');
-    expect(text).toContain(`RMS ${report.summary.rmsMm.toFixed(3)} mm`);
+    // the figures as the report's cards name them
+    expect(text).toContain(`RMS off ${report.summary.rmsMm.toFixed(2)} mm`);
+    expect(text).toContain(`Measured ${report.positions.filter((p) => p.deviation).length} · Out ${report.positions.filter((p) => p.verdict === 'out').length}`);
+    expect(text).toContain('Not seen 2 · Hidden 0');
     // Panel moves, with the contract's unicode minus drawn as '-'.
     expect(text).toContain('move X by -0.12 mm (-0.005 in)');
     // Every position out or marginal is listed by label.
@@ -54,19 +60,23 @@ describe('report PDF', () => {
     expect(text).toMatch(/page 1 of \d/);
   });
 
-  it('draws one marker per position on the lattice, operator side at the bottom', async () => {
+  it("draws one mark per position on the lattice, the report's own, operator side at the bottom", async () => {
     const report = buildReport();
     const [first] = await allPages(await renderReportPdf(report, { workshopName: 'W' }));
-    // Markers are small (a few pt); the verdict bar and map background are not.
-    const filled = first!.paths.filter((p) => p.fill && p.fillRgb && (({ minY, maxY }) => maxY - minY < 10)(bounds(p.subpaths.flat())));
+    // Marks are small (a few pt); the verdict bar and map background are not.
+    const filled = first!.paths.filter((p) => p.fill && p.fillRgb && (({ minY, maxY }) => maxY - minY < 20)(bounds(p.subpaths.flat())));
     const centre = (p: (typeof filled)[number]) => { const b = bounds(p.subpaths.flat()); return [(b.minX + b.maxX) / 2, (b.minY + b.maxY) / 2] as const; };
     const outMarkers = filled.filter((p) => same(p.fillRgb, OUT_RGB));
     const inMarkers = filled.filter((p) => same(p.fillRgb, IN_RGB));
     const expectIn = report.positions.filter((p) => p.verdict === 'in').length;
     const expectOut = report.positions.filter((p) => p.verdict === 'out').length;
-    // Plus one legend swatch per colour.
-    expect(outMarkers.length).toBe(expectOut + 1);
+    // Plus one legend swatch per mark, and the fail's mark beside the verdict word.
+    expect(report.summary.verdict).toBe('fail');
+    expect(outMarkers.length).toBe(expectOut + 2);
     expect(inMarkers.length).toBe(expectIn + 1);
+    // shapes, not colour alone: a position out is a square (four straight sides), one in a disc (curves)
+    for (const p of outMarkers) expect(p.subpaths[0]!.length).toBe(5);
+    for (const p of inMarkers) expect(p.subpaths[0]!.length).not.toBe(5);
     // The inserts sit on a 100 mm lattice: marker centres (legend excluded, it lies below the map) differ by
     // whole multiples of one page pitch along x.
     const legendY = Math.min(...inMarkers.map((p) => centre(p)[1]));
@@ -86,7 +96,9 @@ describe('report PDF', () => {
     const report = buildReport();
     const text = textOf(await allPages(await renderReportPdf(report, { workshopName: 'W', units: 'in' })));
     // 25.4 mm = 1 in exactly: the largest deviation in inches.
-    expect(text).toContain(`largest ${(report.summary.maxMm / 25.4).toFixed(4)} in`);
+    expect(text).toContain(`Largest ${(report.summary.maxMm / 25.4).toFixed(4)} in`);
+    const worst = report.positions.filter((p) => p.verdict === 'out').sort((a, b) => b.deviation!.r - a.deviation!.r)[0]!;
+    expect(text).toContain(`${(worst.deviation!.r / 25.4).toFixed(4)} in off`);
     expect(text).toContain('dX in');
   });
 

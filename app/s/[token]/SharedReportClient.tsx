@@ -9,6 +9,7 @@ import dynamic from 'next/dynamic';
 import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
 import type { SharedReportData } from '@/components/share/SharedReport';
+import type { LengthUnit } from '@/lib/report/units';
 
 const SharedReport = dynamic(() => import('@/components/share/SharedReport').then((m) => m.SharedReport), {
   ssr: false,
@@ -19,7 +20,7 @@ function Loading() {
   return <p className="text-muted" role="status">Loading the map and the tables…</p>;
 }
 
-export function SharedReportClient({ token }: { token: string }) {
+export function SharedReportClient({ token, unit }: { token: string; unit: LengthUnit }) {
   const q = useQuery({
     queryKey: ['shared-report', token],
     queryFn: () => api<SharedReportData>(`/api/shared/${encodeURIComponent(token)}`),
@@ -30,5 +31,5 @@ export function SharedReportClient({ token }: { token: string }) {
   if (q.isError) {
     return <p className="field-error" role="alert">The map and the tables could not be loaded: {errorText(q.error)} Reload the page to try again.</p>;
   }
-  return <SharedReport data={q.data} token={token} />;
+  return <SharedReport data={q.data} token={token} unit={unit} />;
 }

@@ -13,10 +13,13 @@ export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-ref
 /**
  * A shared report, read only, no account: /s/{token}. The same address with `Accept: application/json`
  * answers the JSON (next.config.mjs rewrites it to /api/shared/{token}). The page sends its frame and the
- * verdict; the browser then loads the map and tables from that JSON, which counts the view.
+ * verdict and figures; the browser then loads the map and tables from that JSON, which counts the view. Lengths
+ * are in the unit of `?units=` (mm or in, as the link was sent).
  */
-export default async function SharedPage({ params }: { params: Promise<{ token: string }> }) {
+export default async function SharedPage({ params, searchParams }: { params: Promise<{ token: string }>; searchParams: Promise<{ units?: string | string[] }> }) {
   const { token } = await params;
+  // the unit the link was sent in (?units=in), else mm; the page's unit switch follows the same parameter
+  const unit = (await searchParams).units === 'in' ? 'in' : 'mm';
   // unknown or tampered: the page answers 404; revoked or expired: this text, and 410 (set by proxy.ts)
   const view = await orNotFound(openSharedReport(await getDb(), token, { comments: false }).catch((e: unknown) => {
     if (e instanceof AppError && e.status === 410) return null;
@@ -30,8 +33,8 @@ export default async function SharedPage({ params }: { params: Promise<{ token: 
         <span className="text-sm text-muted">A bed check shared with you · read only</span>
       </header>
       <article className="flex flex-col gap-6" data-testid="shared-report">
-        <SharedVerdict bedName={view.bedName} checkTitle={view.checkTitle} checkedAt={view.checkedAt} summary={view.report.summary} />
-        <SharedReportClient token={token} />
+        <SharedVerdict bedName={view.bedName} checkTitle={view.checkTitle} checkedAt={view.checkedAt} report={view.report} unit={unit} />
+        <SharedReportClient token={token} unit={unit} />
         <noscript><p className="text-lg">The deviation map, the tables and the comments need JavaScript; the PDF has the map, the positions out of tolerance and the comments: <a className="underline" href={`/api/shared/${token}/report.pdf`}>download the PDF</a>.</p></noscript>
       </article>
       <p className="text-sm text-muted">

@@ -1,0 +1,102 @@
+/**
+ * The words every surface of a report shows (web report, shared page, PDF, mail, comparison): the bed's verdict
+ * in one word, the name of each mark, the figures' headings, and the counts behind them. One definition of each
+ * count, so a headline and a card never disagree:
+ * - measured: a hole was found at the position;
+ * - not seen: the position lies where the photo could show it, yet no hole was found there;
+ * - hidden: the position could not be seen, or only in part (under the reference sheet or at its edge, covered,
+ *   cut by the photo's edge, or outside the photo): not measured, neither in nor out;
+ * - unmatched: a hole was found that fits no position of the pattern.
+ */
+import type { Report, ReportPosition } from '@/lib/geometry/contract';
+import { hiddenWords } from './hidden';
+
+export type BedVerdict = Report['summary']['verdict'];
+
+/** The bed's verdict in one word. */
+export const BED_VERDICT_WORD: Record<BedVerdict, string> = { pass: 'Pass', marginal: 'Marginal', fail: 'Fail' };
+
+/** What a mark stands for: a position's verdict, a position out of view, or a detection that fits no position. */
+export type Mark = 'in' | 'marginal' | 'out' | 'missing' | 'hidden' | 'unmatched';
+
+/** The name of each mark (legends, tables, the PDF and the mail alike). */
+export const MARK_WORD: Record<Mark, string> = {
+  in: 'In',
+  marginal: 'Marginal',
+  out: 'Out',
+  missing: 'Not seen',
+  hidden: 'Hidden',
+  unmatched: 'Unmatched',
+};
+
+/** What each mark means, in a machinist's words. */
+export const MARK_MEANING: Record<Mark, string> = {
+  in: 'within the fit tolerance, with room to spare',
+  marginal: 'too close to the tolerance to call either way',
+  out: 'beyond the fit tolerance: what goes in may bind',
+  missing: 'expected in the photo but no hole was found there',
+  hidden: 'under the reference sheet, covered, cut by the edge of the photo or outside it: not measured, neither in nor out',
+  unmatched: 'a detected hole that fits no position of the pattern',
+};
+
+/** The mark a bed verdict is drawn with: a pass as the mark of a position in, a fail as the mark of one out. */
+export const BED_VERDICT_MARK: Record<BedVerdict, Mark> = { pass: 'in', marginal: 'marginal', fail: 'out' };
+
+/** True when a position was not found because it could not be seen, or only in part (hidden or outside the photo). */
+export const outOfSight = (p: Pick<ReportPosition, 'verdict' | 'hidden' | 'outOfView'>): boolean => p.verdict === 'missing' && (!!p.hidden || !!p.outOfView);
+
+/** The mark of a position: its verdict, or `hidden` when it could not be seen. */
+export function positionMark(p: Pick<ReportPosition, 'verdict' | 'hidden' | 'outOfView'>): Mark {
+  return outOfSight(p) ? 'hidden' : p.verdict;
+}
+
+/** Why a hidden position could not be seen, in words (lib/report/hidden.ts, or outside the photo); null otherwise. */
+export function outOfSightWords(p: Pick<ReportPosition, 'verdict' | 'hidden' | 'hiddenBy' | 'outOfView'>): string | null {
+  if (!outOfSight(p)) return null;
+  return hiddenWords(p) ?? 'outside the photo';
+}
+
+export interface ReportCounts {
+  /** Positions of the pattern. */
+  positions: number;
+  /** Positions the photo could show (all but those out of sight). */
+  inView: number;
+  measured: number;
+  in: number;
+  marginal: number;
+  out: number;
+  /** Expected in the photo, not found. */
+  missing: number;
+  /** Hidden: under the reference sheet, covered, cut by the photo's edge or outside the photo. */
+  hidden: number;
+  unmatched: number;
+}
+
+/** The counts of a report, each by the definition in this module's header. */
+export function reportCounts(report: Pick<Report, 'positions' | 'unmatched'>): ReportCounts {
+  const c: ReportCounts = { positions: report.positions.length, inView: 0, measured: 0, in: 0, marginal: 0, out: 0, missing: 0, hidden: 0, unmatched: report.unmatched.length };
+  for (const p of report.positions) {
+    const m = positionMark(p);
+    if (m === 'unmatched') continue;
+    c[m] += 1;
+    if (p.deviation) c.measured += 1;
+  }
+  c.inView = c.positions - c.hidden;
+  return c;
+}
+
+/** The figures a report opens with, heading and value, in this order on every surface. */
+export function figureCards(c: ReportCounts, rms: string, largest: string): [string, string][] {
+  return [
+    ['Measured', String(c.measured)],
+    [MARK_WORD.out, String(c.out)],
+    [MARK_WORD.marginal, String(c.marginal)],
+    [MARK_WORD.missing, String(c.missing)],
+    [MARK_WORD.hidden, String(c.hidden)],
+    ['RMS off', rms],
+    ['Largest', largest],
+  ];
+}
+
+/** The arrow exaggeration as every legend prints it. */
+export const arrowScaleWords = (factor: number): string => `arrows × ${factor.toLocaleString('en')}`;
