@@ -15,7 +15,6 @@ export const CHECK_STATUSES = ['queued', 'running', 'needs-review', 'done', 'fai
 export type CheckStatus = (typeof CHECK_STATUSES)[number];
 
 export const JOB_STATUSES = ['queued', 'running', 'done', 'failed'] as const;
-export type JobStatus = (typeof JOB_STATUSES)[number];
 
 const createdAt = () => integer('created_at').notNull().default(sql`(unixepoch('subsec') * 1000)`);
 

@@ -1,5 +1,4 @@
 /** The audit trail: who did what to which record. Details are JSON; never put a secret in them. */
-import { and, desc, eq } from 'drizzle-orm';
 import { auditEvents } from '@/db/schema';
 import { newId, type Queryable } from './types';
 
@@ -24,9 +23,4 @@ export async function recordAudit(db: Queryable, e: AuditInput): Promise<void> {
     detailJson: e.detail ? JSON.stringify(e.detail) : null,
     ip: e.ip ?? null,
   });
-}
-
-export async function listAudit(db: Queryable, workshopId: string, opts: { action?: string; limit?: number } = {}) {
-  const where = opts.action ? and(eq(auditEvents.workshopId, workshopId), eq(auditEvents.action, opts.action)) : eq(auditEvents.workshopId, workshopId);
-  return db.select().from(auditEvents).where(where).orderBy(desc(auditEvents.createdAt)).limit(opts.limit ?? 100);
 }

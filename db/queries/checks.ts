@@ -298,12 +298,3 @@ export async function requestRefit(db: Db, input: RefitInput, now = Date.now()):
     return { check: row, job };
   }), { db });
 }
-
-/** The check's positions as stored rows (for tables and comparisons). */
-export async function listCheckPositions(db: Queryable, checkId: string) {
-  return db.select().from(checkPositions).where(eq(checkPositions.checkId, checkId));
-}
-
-export async function listPanelResults(db: Queryable, checkId: string) {
-  return db.select().from(panelResults).where(eq(panelResults.checkId, checkId));
-}

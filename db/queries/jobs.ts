@@ -166,12 +166,6 @@ export async function jobsForCheck(db: DbExecutor, checkId: string): Promise<Job
   return db.select().from(jobs).where(eq(jobs.checkId, checkId)).orderBy(asc(jobs.createdAt));
 }
 
-/** Counts of jobs by status (for health pages and benchmarks). */
-export async function queueCounts(db: DbExecutor): Promise<Record<string, number>> {
-  const rows = await db.select({ status: jobs.status, n: sql<number>`count(*)` }).from(jobs).groupBy(jobs.status);
-  return Object.fromEntries(rows.map((r) => [r.status, Number(r.n)]));
-}
-
 // ---------------------------------------------------------------------------------------------------------
 // Claim / lease
 

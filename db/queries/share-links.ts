@@ -18,16 +18,6 @@ export async function insertShareLink(
   return row;
 }
 
-/** The live link with this token hash at `now`, or undefined (unknown, revoked or expired). */
-export async function findLiveShareLink(db: Queryable, tokenHash: string, now = Date.now()): Promise<ShareLinkRow | undefined> {
-  const [row] = await db
-    .select()
-    .from(shareLinks)
-    .where(and(eq(shareLinks.tokenHash, tokenHash), isNull(shareLinks.revokedAt), gt(shareLinks.expiresAt, now)))
-    .limit(1);
-  return row;
-}
-
 /**
  * The live link with this token hash at `now` joined to its check and bed (the same workshop as the link's,
  * enforced in the join), with only the columns a shared report shows: one indexed read per opening (the
@@ -83,14 +73,4 @@ export async function revokeShareLink(db: Queryable, workshopId: string, id: str
 /** Counts one view: one atomic UPDATE by primary key, nothing read back (a shared page calls it per opening). */
 export async function recordShareLinkView(db: Queryable, id: string, now = Date.now()): Promise<void> {
   await db.update(shareLinks).set({ viewCount: sql`${shareLinks.viewCount} + 1`, lastViewedAt: now }).where(eq(shareLinks.id, id));
-}
-
-/** Counts one view (atomic increment) and returns the new count. */
-export async function countShareLinkView(db: Queryable, id: string, now = Date.now()): Promise<number> {
-  const [row] = await db
-    .update(shareLinks)
-    .set({ viewCount: sql`${shareLinks.viewCount} + 1`, lastViewedAt: now })
-    .where(eq(shareLinks.id, id))
-    .returning({ viewCount: shareLinks.viewCount });
-  return row?.viewCount ?? 0;
 }

@@ -15,10 +15,6 @@ export type ErrorFields = Record<string, string>;
 /** The error body every API answer uses. */
 export type ErrorBody = { error: { code: string; message: string; fields?: ErrorFields } };
 
-export const ErrorBodySchema = z.object({
-  error: z.object({ code: z.string(), message: z.string(), fields: z.record(z.string(), z.string()).optional() }),
-});
-
 export class AppError extends Error {
   constructor(
     /** Stable machine-readable code, snake_case (`not_found`, `forbidden`, `invalid_input`, …). */
