@@ -180,6 +180,8 @@ async function main(): Promise<void> {
     process.stdout.write(`${JSON.stringify({ bench: 'vision', part: 'quality', quality: qualityPart() }, null, 1)}\n`);
     return;
   }
+  // `--part pipelines [--quick]`: each scene through each camera pipeline (vision-pipelines.ts)
+  if (part === 'pipelines') return (await import('./vision-pipelines')).runPipelines(process.argv.slice(2));
   const cache = path.join(os.tmpdir(), 'gridproof-bench-vision-v1');
   mkdirSync(cache, { recursive: true });
   const results: Record<string, unknown>[] = [];

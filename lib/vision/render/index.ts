@@ -11,7 +11,7 @@ export interface Truth {
   camera: { focalPx: number; cx: number; cy: number; k1: number; k2: number; R: number[]; C: [number, number, number] };
   mmPerPx: number;
   /** The reference square: outer size, its corners in order 0..3 (mark corner first) in bed mm and image px. */
-  target: { sizeMm: number; centreMm: [number, number]; rotationDeg: number; cornersBed: [number, number][]; cornersPx: [number, number][] };
+  target: { sizeMm: number; centreMm: [number, number]; rotationDeg: number; cornersBed: [number, number][]; cornersPx: [number, number][]; sheetMm?: [number, number] };
   holes: TruthHole[];
   errors: { scaleX: number; scaleY: number; squarenessDeg: number; panels: { id: string; dx: number; dy: number; rotationDeg: number }[]; misplaced: { family: string; col: number; row: number; dx: number; dy: number }[] };
 }
@@ -25,7 +25,7 @@ function truthOf(scene: ReturnType<typeof buildScene>, pattern: Pattern, opts: S
     image: { width: opts.width, height: opts.height, focalPx: cam.focalPx },
     camera: { focalPx: cam.focalPx, cx: cam.cx, cy: cam.cy, k1: cam.k1, k2: cam.k2, R: cam.R, C: cam.C },
     mmPerPx: scene.mmPerPx,
-    target: { sizeMm: scene.target.sizeMm, centreMm: scene.target.centreMm, rotationDeg: (scene.target.rotationRad * 180) / Math.PI, cornersBed: scene.target.cornersBed, cornersPx: scene.target.cornersPx },
+    target: { sizeMm: scene.target.sizeMm, centreMm: scene.target.centreMm, rotationDeg: (scene.target.rotationRad * 180) / Math.PI, cornersBed: scene.target.cornersBed, cornersPx: scene.target.cornersPx, sheetMm: scene.target.sheetMm },
     holes: scene.holes,
     errors: scene.errors,
   };

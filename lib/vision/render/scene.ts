@@ -131,7 +131,8 @@ export interface Scene {
   pattern: Pattern;
   camera: Camera;
   holes: TruthHole[];
-  target: { sizeMm: number; centreMm: [number, number]; rotationRad: number; cornersBed: [number, number][]; cornersPx: [number, number][] };
+  /** The square (`sizeMm`, its centre and turn on the bed, corners) and the sheet it is printed on (`sheetMm`, centred on it). */
+  target: { sizeMm: number; centreMm: [number, number]; rotationRad: number; cornersBed: [number, number][]; cornersPx: [number, number][]; sheetMm: [number, number] };
   errors: {
     scaleX: number;
     scaleY: number;
@@ -489,7 +490,7 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
     pattern,
     camera: cam,
     holes,
-    target: { sizeMm: S, centreMm: [tcx, tcy], rotationRad: rot, cornersBed, cornersPx },
+    target: { sizeMm: S, centreMm: [tcx, tcy], rotationRad: rot, cornersBed, cornersPx, sheetMm: [2 * paperHalfW, 2 * paperHalfH] },
     errors: { scaleX, scaleY, squarenessDeg, panels: panels.map((p) => ({ id: p.id, dx: p.dx, dy: p.dy, rotationDeg: p.rotationDeg })), misplaced },
     mmPerPx,
     shade,
