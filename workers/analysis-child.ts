@@ -6,7 +6,7 @@
  * either, or crashes, the parent kills it and starts another, and only that job fails.
  *
  * opencv-wasm and the analysis code load once, when the process starts ('ready' says how long it took).
- * It leaves when the parent goes (the IPC channel closes).
+ * It leaves when the parent goes (the IPC channel closes) or stops it (SIGTERM); it ignores SIGINT.
  */
 import { analysisDeps, warmAnalysis } from '@/lib/checks/pipeline';
 import type { ChildMessage, ParentMessage, TestHog } from './analysis-protocol';
@@ -65,6 +65,9 @@ async function handle(m: ParentMessage): Promise<void> {
 
 process.on('message', (m: ParentMessage) => { void handle(m); });
 process.on('disconnect', () => process.exit(0));
+// Ctrl-C in a terminal reaches the whole process group: the worker decides when this process ends (it lets the
+// job in hand finish, then stops it), so the interrupt is not this process's to act on
+process.on('SIGINT', () => undefined);
 
 const t0 = performance.now();
 warmAnalysis().then(
