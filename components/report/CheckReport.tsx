@@ -31,6 +31,8 @@ import { ExaggerationSelect } from './ExaggerationSelect';
 import { MethodNote } from './MethodNote';
 import type { CheckDetail } from '@/lib/services/check-views';
 import { FigureCards, VerdictBox } from './VerdictBox';
+import { PhotoNote } from './PhotoNote';
+import { photoNote } from '@/lib/report/photo-note';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
 export type { CheckDetail };
@@ -87,6 +89,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
   return (
     <article className="flex flex-col gap-6" data-testid="check-report">
       <VerdictBox report={report} unit={unit} title={`${detail.check.bedName}${detail.check.title ? ` · ${detail.check.title}` : ''} · ${when}`} />
+      <PhotoNote note={photoNote(report.photo?.quality)} />
       <FigureCards report={report} unit={unit} />
 
       {(report.warnings?.length ?? 0) > 0 && (

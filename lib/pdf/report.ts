@@ -19,6 +19,7 @@ import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/
 import { formatLength } from '@/lib/report/units';
 import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
+import { photoNote } from '@/lib/report/photo-note';
 import { mmToPt, paperSizePt, type Paper } from './units';
 
 export interface ReportPdfComment {
@@ -41,6 +42,8 @@ export interface ReportPdfOptions {
   comments?: ReportPdfComment[];
   /** Most rows in the table of positions out or marginal (default 400); the rest are counted. */
   maxPositionRows?: number;
+  /** The photo's problems in words, for a report that no longer carries its photo (a shared one); else from report.photo. */
+  photoNote?: string | null;
 }
 
 const MAP_GROUND = rgb(0.97, 0.97, 0.95);
@@ -234,8 +237,11 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   const unit = inch ? 'in' : 'mm';
   const shape = shapeLine(report, unit);
   f.y -= 10;
+  const note = opts.photoNote !== undefined ? opts.photoNote : photoNote(report.photo?.quality);
   const sentenceLines = [...wrapText(regular, headline(report, unit), 10, f.textWidth - 20), ...(shape ? wrapText(regular, shape, 10, f.textWidth - 20) : [])];
-  const boxH = 22 + sentenceLines.length * 13;
+  // the photo's problems, if any, in bold inside the verdict box: its figures carry them
+  const noteLines = note ? wrapText(bold, note, 10, f.textWidth - 20) : [];
+  const boxH = 22 + (sentenceLines.length + noteLines.length) * 13 + (noteLines.length ? 4 : 0);
   const verdictMark = BED_VERDICT_MARK[s.verdict];
   const verdictColour = rgb(...hexToRgb01(MARKS[verdictMark].colour));
   const boxGround = rgb(0.965, 0.973, 0.969);
@@ -247,6 +253,11 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   for (const line of sentenceLines) {
     f.y -= 13;
     f.text(line, { x: f.left + 12, size: 10 });
+  }
+  if (noteLines.length) f.y -= 4;
+  for (const line of noteLines) {
+    f.y -= 13;
+    f.text(line, { x: f.left + 12, size: 10, font: bold });
   }
   f.y -= 10;
 

@@ -17,6 +17,7 @@ import { listComments, type CommentView } from '@/db/queries/comments';
 import { hitRateLimit } from '@/db/queries/rate-limits';
 import * as q from '@/db/queries/share-links';
 import { getWorkshop } from '@/db/queries/workshops';
+import { photoNote } from '@/lib/report/photo-note';
 import type { Report } from '@/lib/geometry/contract';
 import { decimalIn } from '@/lib/http/decimal';
 import { AppError, notFound } from '@/lib/http/errors';
@@ -128,6 +129,8 @@ export interface SharedReportView {
   checkedAt: number | null;
   expiresAt: number;
   report: Report;
+  /** The photo's problems in words, when it had any (lib/report/photo-note.ts): names only, no figure of the photo. */
+  photoNote: string | null;
   comments: SharedComment[];
 }
 
@@ -150,10 +153,12 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   }
   if (!row.hasReport || (row.status !== 'done' && row.status !== 'needs-review')) throw unknown();
   let report: Report;
+  let note: string | null;
   try {
     const full = await reportAt(row.checkId, row.reportRev, () => getCheckReportText(db, row.workshopId, row.checkId));
     if (!full) throw unknown();
     report = sharedReportOf(full.pattern.bed ? full : await withStoredOutline(db, row, full));
+    note = photoNote(full.photo?.quality);
   } catch {
     throw unknown();
   }
@@ -162,7 +167,7 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
     opts.countView ? q.recordShareLinkView(db, row.linkId, now) : undefined,
   ]);
   return {
-    bedName: row.bedName ?? 'Bed', checkTitle: row.title, checkedAt: row.finishedAt ?? row.createdAt, expiresAt: row.expiresAt, report,
+    bedName: row.bedName ?? 'Bed', checkTitle: row.title, checkedAt: row.finishedAt ?? row.createdAt, expiresAt: row.expiresAt, report, photoNote: note,
     comments: comments.map((c) => ({ id: c.id, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt, authorName: c.authorName })),
   };
 }

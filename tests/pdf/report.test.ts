@@ -151,4 +151,21 @@ describe('report PDF from the measurement core', () => {
     expect(text).toContain(`after the fit ${d.fittedMm!.toFixed(2)} mm`);
     expect(text).toContain(`${Math.abs(d.residualSigmas!).toFixed(1)} times its uncertainty`);
   });
+  it('says in the verdict box that the figures carry the photo\'s problems, and nothing when it had none', async () => {
+    const base = buildReport();
+    const quality = {
+      issues: [{ code: 'overexposed' as const, message: 'Over-exposed: the white is burnt out.', advice: 'Switch off the flash.' }],
+      predicted: { positionMm: 0.04, scalePpm: 150 },
+      measured: { widthPx: 4000, heightPx: 3000, edgeSpreadPx: 2, defocusSigmaPx: 0.7, motion: null, targetSidePx: 600, holeDiameterPx: 20, tiltDeg: 4, clipped: null, whiteLevel: 255, holesSampled: 30 },
+      timeMs: 120,
+    };
+    const text = textOf(await allPages(await renderReportPdf({ ...base, photo: { quality } }, { workshopName: 'North Bench' })));
+    expect(text).toContain('over-exposure');
+    expect(text).toContain('These figures carry it;');
+    const clean = textOf(await allPages(await renderReportPdf({ ...base, photo: { quality: { ...quality, issues: [] } } }, { workshopName: 'North Bench' })));
+    expect(clean).not.toContain('These figures carry');
+    // a shared report has no photo; the note is passed in words
+    const shared = textOf(await allPages(await renderReportPdf(base, { workshopName: 'Shared report', photoNote: 'Measured from a photo with a problem: camera shake. These figures carry it; take a better photo.' })));
+    expect(shared).toContain('camera shake');
+  });
 });

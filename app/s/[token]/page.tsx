@@ -33,7 +33,7 @@ export default async function SharedPage({ params, searchParams }: { params: Pro
         <span className="text-sm text-muted">A bed check shared with you · read only</span>
       </header>
       <article className="flex flex-col gap-6" data-testid="shared-report">
-        <SharedVerdict bedName={view.bedName} checkTitle={view.checkTitle} checkedAt={view.checkedAt} report={view.report} unit={unit} />
+        <SharedVerdict bedName={view.bedName} checkTitle={view.checkTitle} checkedAt={view.checkedAt} report={view.report} unit={unit} photoNote={view.photoNote} />
         <SharedReportClient token={token} unit={unit} />
         <noscript><p className="text-lg">The deviation map, the tables and the comments need JavaScript; the PDF has the map, the positions out of tolerance and the comments: <a className="underline" href={`/api/shared/${token}/report.pdf`}>download the PDF</a>.</p></noscript>
       </article>
