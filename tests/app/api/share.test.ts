@@ -1,7 +1,8 @@
 /**
  * Share links through the real route handlers on a real migrated SQLite file: made by owners and machinists
  * only, the token ≥ 128 bits and stored only as its SHA-256, expired / revoked / tampered tokens refused, the
- * shared JSON carrying the report and comments but nothing of the photo or the rest of the workshop.
+ * shared JSON carrying the report and comments but nothing of the photo or the rest of the workshop; the
+ * page's status for a dead link set by proxy.ts (410 Gone, RFC 9110 §15.5.11).
  */
 import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
@@ -17,6 +18,8 @@ import type { Report } from '@/lib/geometry/contract';
 import type { Actor } from '@/lib/services/actor';
 import { addComment } from '@/lib/services/comments';
 import { openSharedReport } from '@/lib/services/share';
+import { NextRequest } from 'next/server';
+import { proxy } from '@/proxy';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { coreReport, finishedCheck, requeue, SECRET_PHOTO_NAME } from '@/tests/services/share-fixtures';
 import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
@@ -158,6 +161,20 @@ describe('share links', () => {
     expect((await openShared(token)).status).toBe(410);
     const pdf = await sharedPdf(new Request(`http://gridproof.test/api/shared/${token}/report.pdf`), { params: Promise.resolve({ token }) });
     expect(pdf.status).toBe(410);
+  });
+
+  it("sets 410 on the page's answer (proxy.ts) for a revoked or expired token, and passes a live or unknown one on", async () => {
+    const status = async (tk: string) => (await proxy(new NextRequest(`http://gridproof.test/s/${tk}`))).status;
+    expect(await status(token)).toBe(410); // revoked above
+    const r = await makeLink(owner, { expiresInDays: 1 });
+    const { id, url } = (r.json as { link: { id: string; url: string } }).link;
+    expect(await status(tokenOf(url))).toBe(200);
+    await t.db.update(shareLinks).set({ expiresAt: Date.now() - 1 }).where(eq(shareLinks.id, id));
+    expect(await status(tokenOf(url))).toBe(410);
+    // a token no link has, a malformed one, a broken escape: on to the page, which answers 404
+    expect(await status('A'.repeat(43))).toBe(200);
+    expect(await status('short')).toBe(200);
+    expect(await status('%E0%A4%A')).toBe(200);
   });
 
   it('serves the shared report as PDF while the link lives', async () => {
