@@ -3,7 +3,7 @@
  *
  *   npm run -s synth -- --pattern P.json --seed N --out DIR [--width 1600 --height 1200 --tilt 5 --turn 3
  *     --material mdf|plywood --focal35 27 --k1 -0.03 --k2 0.01 --blur 0.7 --noise 2 --jpeg 90 --exposure 1
- *     --gradient 0.15 --vignetting 0.2 --dust 400 --screws 6 --target-mm 150 --target-edge --scale-ppm 400
+ *     --gradient 0.15 --vignetting 0.2 --dust 400 --screws 6 --target-mm 150 --target-edge --target-plain --scale-ppm 400
  *     --squareness 0.03 --panel-offset 0.3 --misplaced 3 --misplaced-mm 0.8 --supersample 4
  *     --camera linear|phone|encoded --contrast 0.5 --sharpen-px 1.5 --sharpen-amount 0.8]
  *
@@ -37,6 +37,7 @@ Renders a bed photo with exactly known truth: writes DIR/photo.jpg and DIR/truth
   --pattern FILE   the bed's nominal pattern (bed mm)
   --out DIR        where photo.jpg and truth.json go
   --material mdf|plywood      --camera linear|phone|encoded      --target-edge (square at the bed's edge)
+  --target-plain   a plain filled square (older printed targets, outer edges only) instead of the framed target
   numbers (defaults in lib/vision/render/scene.ts): ${Object.keys(NUMBERS).map((k) => `--${k}`).join(' ')}
   -h, --help       this text
 
@@ -54,6 +55,7 @@ async function main(): Promise<void> {
     material: { type: 'string' },
     camera: { type: 'string' },
     'target-edge': { type: 'boolean' },
+    'target-plain': { type: 'boolean' },
     ...Object.fromEntries(Object.keys(NUMBERS).map((k) => [k, { type: 'string' as const }])),
   });
   const opts: SceneOptions = { ...DEFAULT_SCENE };
@@ -67,6 +69,7 @@ async function main(): Promise<void> {
     opts.camera = camera;
   }
   if (args['target-edge']) opts.targetPlacement = 'edge';
+  if (args['target-plain']) opts.targetStyle = 'plain';
   for (const [flag, field] of Object.entries(NUMBERS)) {
     const v = numberOption(cli, flag, (args as Record<string, string | boolean | undefined>)[flag] as string | undefined);
     if (v !== undefined) (opts as unknown as Record<string, number>)[field] = v;

@@ -80,7 +80,9 @@ export interface DetectMeta {
     /** Edge bias measured on the frame stroke, px (positive: black reads wider than printed), and its spread. */
     edgeBiasPx?: number;
     edgeBiasSdPx?: number;
-    /** 1σ of each corner per image axis, px, from the fitted edges' residuals (not yet passed to the fit). */
+    /** 1σ of the edge bias used, px: measured on the stroke, or assumed for outer edges only (edgefit.ts). */
+    edgeBiasSigmaPx?: number;
+    /** 1σ of each corner per image axis, px (RMS of the eight), from the fitted edges' residuals; in the points too. */
     cornerSigmaPx?: number;
   };
   /** Factor of the reduced image for the candidate passes. */
@@ -121,6 +123,8 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   opts.onStage?.('finding square');
   let corners: Corners;
   let square: DetectMeta['square'];
+  // the detected corners' precision (none for corners given by hand)
+  let precision: Pick<Points['reference'], 'cornerSigmaPx' | 'cornerCovPx2'> = {};
   if (opts.corners) {
     corners = opts.corners;
     square = { source: 'given' };
@@ -136,7 +140,9 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
     square = {
       source: 'detected', kind: sq.kind, markFound: sq.markFound, edgeRmsPx: r3(sq.edgeRmsPx), reference: sq.reference, cornerSigmaPx: r3(sq.cornerSigmaPx),
       ...(sq.edgeBiasPx !== undefined ? { edgeBiasPx: r3(sq.edgeBiasPx), edgeBiasSdPx: r3(sq.edgeBiasSdPx ?? 0) } : {}),
+      ...(sq.edgeBiasSigmaPx !== undefined ? { edgeBiasSigmaPx: r3(sq.edgeBiasSigmaPx) } : {}),
     };
+    precision = { cornerSigmaPx: Math.max(1e-4, sq.cornerSigmaPx), ...(sq.cornerCovPx2 ? { cornerCovPx2: sq.cornerCovPx2 } : {}) };
   }
   const S = opts.referenceMm;
   let H: Mat3;
@@ -186,9 +192,9 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   }
   const points: Points = {
     image: { width: w, height: h, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) },
-    // The corner 1σ stays in the meta only: with lens distortion it reads 2–3× low against the renderer's truth, and
-    // the fit would trust it; until it is calibrated the analysis keeps its cautious default.
-    reference: { sizeMm: S, corners: corners.map((c) => [c[0], c[1]]) as Points['reference']['corners'] },
+    // the corners' covariance from the joint edge fit (calibrated against the renderer's truth: npm run bench:vision
+    // -- --part calibration)
+    reference: { sizeMm: S, corners: corners.map((c) => [c[0], c[1]]) as Points['reference']['corners'], ...precision },
     holes: dets.map((d) => ({ x: d.x, y: d.y, diameterPx: d.diameterPx, confidence: d.confidence })),
     ...(sheet ? { sheet: sheet.cornersPx.map((c) => [c[0], c[1]]) as NonNullable<Points['sheet']> } : {}),
     ...(hidden.length ? { hidden: hidden.map((q) => ({ x: q.x, y: q.y, diameterPx: q.diameterPx, by: q.by })) } : {}),

@@ -1,7 +1,8 @@
 /**
  * Finding the reference square: candidate quadrilaterals from a dark-region threshold at reduced resolution
  * (opencv-wasm contours + polygon approximation), the one that is a square seen in perspective, then sub-pixel
- * corners at full resolution by fitting a line to the edge points of each side and intersecting neighbours.
+ * edge points at full resolution along each side (and along the frame stroke's inner edge), and the corners, their
+ * covariance and the camera's edge bias from one joint fit of all of them (edgefit.ts).
  *
  * Frames: image px (origin top-left, +y down; pixel centres at integers). Corners are returned in order 0..3 of
  * the target frame (see target.ts): counter-clockwise seen from above, which is a negative shoelace area in
@@ -10,6 +11,7 @@
  */
 import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4 } from '@/lib/geometry/homography';
+import { DEFAULT_BIAS_PRIOR, fitSquareEdges, type SquareEdgeFit } from './edgefit';
 import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION } from './target';
 
 export type Corners = [[number, number], [number, number], [number, number], [number, number]];
@@ -26,11 +28,18 @@ export interface SquareFound {
    * camera's edge bias) or the outer edges only (a plain square, or a frame whose inner edge was not found).
    */
   reference: 'centreline' | 'outer-edge';
-  /** Edge bias measured on the stroke (see Centreline), px; absent for outer edges only. */
+  /**
+   * Edge bias measured on the stroke (edgefit.ts), px (positive: the black reads wider than printed): the mean over
+   * the four sides and their spread; absent for outer edges only.
+   */
   edgeBiasPx?: number;
   edgeBiasSdPx?: number;
-  /** 1σ of each corner per image axis, px, from the fitted edges' residuals. */
+  /** 1σ of the bias used, px: of the measured mean, or of the assumed one for outer edges only. */
+  edgeBiasSigmaPx?: number;
+  /** 1σ of each corner per image axis (RMS over the eight coordinates), px, from the fitted edges' residuals. */
   cornerSigmaPx: number;
+  /** Covariance of the corners (x0, y0, x1, y1, … in the order of `corners`), px², row-major 8 × 8. */
+  cornerCovPx2?: number[];
 }
 
 interface Quad {
@@ -434,100 +443,23 @@ function cornerSigmaOf(curves: SideCurve[], q: Corners): number {
   return Math.sqrt(v / 4);
 }
 
-/** What the frame's two edges tell: the stroke's centreline corners, the edge bias and the corners' precision. */
-export interface Centreline {
-  /** Outer corners implied by the centreline (bias-free), image px, in the quad's order. */
-  corners: Corners;
-  /**
-   * How far a dark/light edge's measured position lies on the light side of the true one, px (positive: the
-   * black stroke reads wider than printed); mean over eight points, two per side, and their standard deviation.
-   */
-  edgeBiasPx: number;
-  edgeBiasSdPx: number;
-  /** 1σ of each outer corner per image axis, px, from the edge points' scatter about the fitted curves. */
-  cornerSigmaPx: number;
-}
-
-/**
- * The frame stroke's centreline from its outer and inner edge points (per side, in the same order). A tone
- * curve, blur or sharpening moves both edges of a stroke by the same amount towards the light side, so their mean
- * stays put. Per side, both edges are fitted as quadratic curves in the outer side's frame and the centreline is
- * their mean. The mean of the two image curves is not exactly the image of the stroke's centreline under
- * perspective (second order in the stroke's width); that difference is taken from the centreline quad's own
- * homography and removed. `strokeFraction` is the stroke's width as a fraction of the outer size: the centreline
- * square spans [f/2, 1 − f/2] of the target frame.
- */
-export function strokeCentreline(outer: { curves: SideCurve[]; frames: SideFrame[] }, innerPoints: [number, number][][], strokeFraction: number, guess: Corners): Centreline | null {
-  const f = strokeFraction;
-  const unit: [number, number][] = [[f / 2, f / 2], [1 - f / 2, f / 2], [1 - f / 2, 1 - f / 2], [f / 2, 1 - f / 2]];
-  const sides: { o: SideCurve; i: SideCurve; m: SideCurve; base: [number, number, number] }[] = [];
-  for (let s = 0; s < 4; s++) {
-    const o = outer.curves[s]!;
-    const i = fitCurve(innerPoints[s]!, outer.frames[s]!, o.scale);
-    if (!i) return null;
-    const base: [number, number, number] = [0, 1, 2].map((k) => (o.c[k]! + i.c[k]!) / 2) as [number, number, number];
-    sides.push({ o, i, m: { f: o.f, scale: o.scale, c: [...base], cov: o.cov.map((x, k) => (x + i.cov[k]!) / 4), rms: Math.hypot(o.rms, i.rms) / 2 }, base });
-  }
-  let q = curveQuad(sides.map((x) => x.m), guess);
-  if (!q) return null;
-  let biases: number[] = [];
-  for (let iter = 0; iter < 3; iter++) {
-    let H: ReturnType<typeof homographyFrom4>;
-    try {
-      H = homographyFrom4(unit, q);
-    } catch {
-      return null;
-    }
-    biases = [];
-    for (let s = 0; s < 4; s++) {
-      const A = unit[s]!;
-      const B = unit[(s + 1) % 4]!;
-      // inward normal of side s in the unit frame
-      let nu: [number, number] = [-(B[1] - A[1]), B[0] - A[0]];
-      const k = Math.hypot(nu[0], nu[1]);
-      nu = [nu[0] / k, nu[1] / k];
-      if ((0.5 - (A[0] + B[0]) / 2) * nu[0] + (0.5 - (A[1] + B[1]) / 2) * nu[1] < 0) nu = [-nu[0], -nu[1]];
-      const S = sides[s]!;
-      const N = S.m.f.o;
-      const proj = (p: [number, number]) => (p[0] - S.m.f.a[0]) * N[0] + (p[1] - S.m.f.a[1]) * N[1];
-      const us: number[] = [];
-      const ds: number[] = [];
-      for (const v of [0.2, 0.8]) {
-        const cu: [number, number] = [A[0] + (B[0] - A[0]) * v, A[1] + (B[1] - A[1]) * v];
-        const qc = applyH(H, cu[0], cu[1]);
-        const qo = applyH(H, cu[0] - (nu[0] * f) / 2, cu[1] - (nu[1] * f) / 2);
-        const qi = applyH(H, cu[0] + (nu[0] * f) / 2, cu[1] + (nu[1] * f) / 2);
-        const tau = tauOf(S.m, qc);
-        us.push(tau / S.m.scale);
-        // perspective: the true centreline lies this far (along the normal) from the mean of the true edges
-        ds.push(proj(qc) - (proj(qo) + proj(qi)) / 2);
-        const eo = curveAt(S.o, tau).p;
-        const ei = curveAt(S.i, tau).p;
-        biases.push((Math.abs(proj(eo) - proj(ei)) - Math.abs(proj(qo) - proj(qi))) / 2);
-      }
-      const slope = (ds[1]! - ds[0]!) / (us[1]! - us[0]!);
-      S.m.c = [S.base[0] + ds[0]! - slope * us[0]!, S.base[1] + slope, S.base[2]];
-    }
-    const nq = curveQuad(sides.map((x) => x.m), q);
-    if (!nq) return null;
-    q = nq;
-  }
-  const H = homographyFrom4(unit, q);
-  const corners = ([[0, 0], [1, 0], [1, 1], [0, 1]] as const).map(([x, y]) => applyH(H, x, y)) as Corners;
-  // the outer corners lie 1/(1 − f) times as far from the square's centre as the centreline's
-  const cornerSigmaPx = cornerSigmaOf(sides.map((x) => x.m), q) / (1 - f);
-  const mean = biases.reduce((a, b) => a + b, 0) / biases.length;
-  const sd = Math.sqrt(biases.reduce((a, b) => a + (b - mean) ** 2, 0) / Math.max(1, biases.length - 1));
-  return { corners, edgeBiasPx: mean, edgeBiasSdPx: sd, cornerSigmaPx };
-}
-
 /** Orders corners so that the shoelace area is negative and corner 0 is `first`. */
 function orderCorners(c: [number, number][], first: (c: [number, number][]) => number): Corners {
-  let p = [...c];
-  if (shoelace(p) > 0) p = [p[0]!, p[3]!, p[2]!, p[1]!];
-  const k = first(p);
-  return [p[k % 4]!, p[(k + 1) % 4]!, p[(k + 2) % 4]!, p[(k + 3) % 4]!] as Corners;
+  return orderIndex(c, first).map((i) => c[i]!) as Corners;
 }
+
+/** The order of `orderCorners` as indices into c. */
+function orderIndex(c: readonly [number, number][], first: (c: [number, number][]) => number): number[] {
+  let idx = [0, 1, 2, 3];
+  if (shoelace(c) > 0) idx = [0, 3, 2, 1];
+  const k = first(idx.map((i) => c[i]!));
+  return [0, 1, 2, 3].map((j) => idx[(k + j) % 4]!);
+}
+
+const sd = (v: readonly number[]) => {
+  const m = v.reduce((a, b) => a + b, 0) / v.length;
+  return Math.sqrt(v.reduce((a, b) => a + (b - m) ** 2, 0) / Math.max(1, v.length - 1));
+};
 
 /** Mean grey over a small square of the target frame (fractions of the size), through the corner homography. */
 function meanInTarget(grey: Float32Array, w: number, h: number, c: Corners, cx: number, cy: number, half: number): number {
@@ -603,37 +535,31 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
     const ref = refineCorners(grey, w, h, start, reach);
     if (!ref) continue;
     let c = ref.corners;
-    let line: Centreline | null = null;
-    if (cand.kind === 'target') {
-      // the frame's inner edge, from where the outer corners put it, then the stroke's centreline
+    // every edge point against one model of the square (edgefit.ts): a frame's outer and inner edges together
+    // (corners free of the camera's edge bias, which is measured), or a plain square's outer edges with the
+    // bias unknown (its 1σ in the corners' covariance)
+    let fit: SquareEdgeFit | null = null;
+    // a frame is light inside its stroke; a filled square can pass the contour test when the threshold hollows it
+    let kind = cand.kind;
+    if (kind === 'target' && meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1) - meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) < 25) kind = 'square';
+    if (kind === 'target') {
+      // the frame's inner edge, from where the outer corners put it
       const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], c);
       const f = FRAME_FRACTION;
       const guess = ([[f, f], [1 - f, f], [1 - f, 1 - f], [f, 1 - f]] as const).map(([x, y]) => applyH(U, x, y)) as Corners;
       const inner = refineCorners(grey, w, h, guess, reach, false);
-      if (inner) line = strokeCentreline(ref, inner.points, f, guess);
-      if (line) {
-        // Check of the model: the outer edges' own corners, moved in by the measured bias, must land on the
-        // centreline's; what they miss by beyond the fits' scatter (a lens bend the curves do not follow, a
-        // bias that is not the same along a side) is added to the corners' stated precision.
-        const ctr = line.corners.reduce((a, p) => [a[0] + p[0] / 4, a[1] + p[1] / 4], [0, 0]);
-        let d2 = 0;
-        for (let i = 0; i < 4; i++) {
-          const p = ref.corners[i]!;
-          const L = Math.hypot(p[0] - ctr[0], p[1] - ctr[1]);
-          const k = (line.edgeBiasPx * Math.SQRT2) / L;
-          d2 += (p[0] - k * (p[0] - ctr[0]) - line.corners[i]![0]) ** 2 + (p[1] - k * (p[1] - ctr[1]) - line.corners[i]![1]) ** 2;
-        }
-        const outerSigma = cornerSigmaOf(ref.curves, ref.corners);
-        const modelVar = Math.max(0, d2 / 8 - outerSigma ** 2 - line.cornerSigmaPx ** 2);
-        line = { ...line, cornerSigmaPx: Math.sqrt(line.cornerSigmaPx ** 2 + modelVar) };
-        c = line.corners;
-      }
+      if (inner) fit = fitSquareEdges({ outer: ref.points, inner: inner.points, frameFraction: f }, c, { width: w, height: h });
     }
-    const measured = line
-      ? { reference: 'centreline' as const, edgeBiasPx: line.edgeBiasPx, edgeBiasSdPx: line.edgeBiasSdPx, cornerSigmaPx: line.cornerSigmaPx }
-      : { reference: 'outer-edge' as const, cornerSigmaPx: cornerSigmaOf(ref.curves, c) };
+    const framed = !!fit;
+    fit ??= fitSquareEdges({ outer: ref.points }, c, { width: w, height: h });
+    if (fit) c = fit.corners;
+    const measured = fit
+      ? framed
+        ? { reference: 'centreline' as const, edgeBiasPx: fit.biasMeanPx, edgeBiasSdPx: sd(fit.biasPx), edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 }
+        : { reference: 'outer-edge' as const, edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 }
+      : { reference: 'outer-edge' as const, cornerSigmaPx: Math.hypot(cornerSigmaOf(ref.curves, c), DEFAULT_BIAS_PRIOR.sigmaPx) };
     // contrast check: dark inside the edge, lighter outside
-    const inside = cand.kind === 'target' ? meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) : meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
+    const inside = kind === 'target' ? meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) : meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
     const outsideVals = [
       meanInTarget(grey, w, h, c, -0.04, 0.5, 0.01),
       meanInTarget(grey, w, h, c, 1.04, 0.5, 0.01),
@@ -642,8 +568,8 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
     ];
     if (Math.min(...outsideVals) - inside < 25) continue;
     let markFound = false;
-    let corners: Corners;
-    if (cand.kind === 'target') {
+    let order: number[];
+    if (kind === 'target') {
       const white = meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
       const m = MARK_CENTRE_FRACTION;
       const spots = [[m, m], [1 - m, m], [1 - m, 1 - m], [m, 1 - m]].map(([x, y]) => meanInTarget(grey, w, h, c, x!, y!, MARK_FRACTION * 0.3));
@@ -651,9 +577,12 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
       const others = spots.filter((_, i) => i !== k);
       markFound = spots[k]! < (white + inside) / 2 && Math.min(...others) > (white + inside) / 2;
       // the mark is at target-frame (m, m) of corner 0: in the unit frame of `c`, corner k is at spot k
-      corners = markFound ? orderCorners(c, () => k) : orderCorners(c, (p) => bottomLeft(p));
-    } else corners = orderCorners(c, (p) => bottomLeft(p));
-    return { corners, kind: cand.kind, markFound, edgeRmsPx: ref.rms, ...measured };
+      order = markFound ? orderIndex(c, () => k) : orderIndex(c, (p) => bottomLeft(p));
+    } else order = orderIndex(c, (p) => bottomLeft(p));
+    const corners = order.map((i) => c[i]!) as Corners;
+    const cov = measured.cornerCovPx2;
+    const permuted = cov ? { cornerCovPx2: Array.from({ length: 64 }, (_, k) => { const r = k >> 3, q = k & 7; return cov[(2 * order[r >> 1]! + (r & 1)) * 8 + 2 * order[q >> 1]! + (q & 1)]!; }) } : {};
+    return { corners, kind, markFound, edgeRmsPx: ref.rms, ...measured, ...permuted };
   }
   return null;
 }

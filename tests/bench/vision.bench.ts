@@ -182,6 +182,13 @@ async function main(): Promise<void> {
   }
   // `--part pipelines [--quick]`: each scene through each camera pipeline (vision-pipelines.ts)
   if (part === 'pipelines') return (await import('./vision-pipelines')).runPipelines(process.argv.slice(2));
+  // --part calibration: the stated uncertainty against the renderer's truth (vision-calibration.ts) [--scenes N --plain M]
+  const arg = (k: string) => { const i = process.argv.indexOf(k); return i >= 0 ? process.argv[i + 1] : undefined; };
+  if (part === 'calibration') {
+    const { calibrationPart } = await import('./vision-calibration');
+    process.stdout.write(`${JSON.stringify(await calibrationPart(Number(arg('--scenes') ?? 12), Number(arg('--plain') ?? 4)), null, 1)}\n`);
+    return;
+  }
   const cache = path.join(os.tmpdir(), 'gridproof-bench-vision-v1');
   mkdirSync(cache, { recursive: true });
   const results: Record<string, unknown>[] = [];

@@ -49,6 +49,8 @@ export interface SceneOptions {
   /** Screws per square metre (countersunk heads, off the lattice). */
   screwsPerM2: number;
   targetMm: number;
+  /** Printed target: Gridproof's framed target (target.ts) or an older plain filled square with outer edges only. */
+  targetStyle: 'frame' | 'plain';
   /** Target placement: random inside the bed, or next to an edge of the photo. */
   targetPlacement: 'random' | 'edge';
   /** Injected errors. */
@@ -91,6 +93,7 @@ export const DEFAULT_SCENE: SceneOptions = {
   dustPerM2: 400,
   screwsPerM2: 6,
   targetMm: 150,
+  targetStyle: 'frame',
   targetPlacement: 'random',
   scalePpm: 400,
   squarenessDeg: 0.03,
@@ -404,7 +407,8 @@ export function buildScene(pattern: Pattern, opts: SceneOptions): Scene {
     }
     const tp = underPaper(X, Y);
     if (tp) {
-      if (targetInkAt(tp[0], tp[1], S)) set(out, 0.035, 0.035, 0.04);
+      const ink = opts.targetStyle === 'plain' ? tp[0] >= 0 && tp[1] >= 0 && tp[0] <= S && tp[1] <= S : targetInkAt(tp[0], tp[1], S);
+      if (ink) set(out, 0.035, 0.035, 0.04);
       else {
         const p = 0.82 + 0.02 * valueNoise(X / 3, Y / 3, salt + 9);
         set(out, p, p, p * 0.98);
