@@ -48,16 +48,34 @@ async function scenePhotos(seed: number, style: 'frame' | 'plain'): Promise<{ jp
   return out;
 }
 
-/** Scale error of the reference alone: its corners onto the bed through the true camera, sides against the print. */
-function referenceScaleError(corners: readonly (readonly [number, number])[], truth: Truth): { x: number; y: number } {
+/**
+ * The reference alone: its corners onto the bed through the true camera, then scale X and Y (each pair of opposite
+ * sides against the printed size) and squareness (the angle at the corners minus 90°, mean of the four, rad);
+ * `cov` (the detector's corner covariance, px²) propagated to them through a numerical Jacobian.
+ */
+function referenceTerms(corners: readonly (readonly [number, number])[], truth: Truth, cov?: readonly number[]): { x: number; y: number; q: number; sigma?: { x: number; y: number; q: number } } {
   const cam: Camera = { ...truth.camera, C: [...truth.camera.C] };
-  const bed = corners.map((c) => { const o = [0, 0]; pixelToBed(cam, c[0], c[1], o); return o as [number, number]; });
   // in the truth's corner order (corner 0 by the mark): nearest detected corner to each true one
-  const ord = truth.target.cornersPx.map((t) => bed[corners.reduce((bi, c, i) => (Math.hypot(c[0] - t[0], c[1] - t[1]) < Math.hypot(corners[bi]![0] - t[0], corners[bi]![1] - t[1]) ? i : bi), 0)]!);
-  const len = (a: [number, number], b: [number, number]) => Math.hypot(a[0] - b[0], a[1] - b[1]);
+  const idx = truth.target.cornersPx.map((t) => corners.reduce((bi, c, i) => (Math.hypot(c[0] - t[0], c[1] - t[1]) < Math.hypot(corners[bi]![0] - t[0], corners[bi]![1] - t[1]) ? i : bi), 0));
   const S = truth.target.sizeMm;
-  // the target's +x runs from corner 0 to 1 and +y from 0 to 3; the bed axes differ from it by the sheet's small turn
-  return { x: (len(ord[0]!, ord[1]!) + len(ord[3]!, ord[2]!)) / (2 * S) - 1, y: (len(ord[0]!, ord[3]!) + len(ord[1]!, ord[2]!)) / (2 * S) - 1 };
+  const terms = (flat: readonly number[]) => {
+    const bed = idx.map((i) => { const o = [0, 0]; pixelToBed(cam, flat[2 * i]!, flat[2 * i + 1]!, o); return o as [number, number]; });
+    const len = (a: [number, number], b: [number, number]) => Math.hypot(a[0] - b[0], a[1] - b[1]);
+    let q = 0;
+    for (let k = 0; k < 4; k++) {
+      const a = bed[(k + 3) % 4]!, b = bed[k]!, c = bed[(k + 1) % 4]!;
+      const u = [a[0] - b[0], a[1] - b[1]], v = [c[0] - b[0], c[1] - b[1]];
+      q += Math.acos((u[0]! * v[0]! + u[1]! * v[1]!) / (Math.hypot(u[0]!, u[1]!) * Math.hypot(v[0]!, v[1]!))) - Math.PI / 2;
+    }
+    // the target's +x runs from corner 0 to 1 and +y from 0 to 3; the bed axes differ from it by the sheet's small turn
+    return [(len(bed[0]!, bed[1]!) + len(bed[3]!, bed[2]!)) / (2 * S) - 1, (len(bed[0]!, bed[3]!) + len(bed[1]!, bed[2]!)) / (2 * S) - 1, (q / 4) * (idx[1] === (idx[0]! + 1) % 4 ? 1 : -1)];
+  };
+  const flat = corners.flatMap((c) => [c[0], c[1]]);
+  const t0 = terms(flat);
+  if (!cov) return { x: t0[0]!, y: t0[1]!, q: t0[2]! };
+  const J = [0, 1, 2, 3, 4, 5, 6, 7].map((k) => { const f = [...flat]; f[k]! += 1e-3; const t = terms(f); return t.map((v, a) => (v - t0[a]!) / 1e-3); });
+  const v = [0, 1, 2].map((a) => { let s = 0; for (let k = 0; k < 8; k++) for (let l = 0; l < 8; l++) s += J[k]![a]! * cov[k * 8 + l]! * J[l]![a]!; return Math.sqrt(Math.max(0, s)); });
+  return { x: t0[0]!, y: t0[1]!, q: t0[2]!, sigma: { x: v[0]!, y: v[1]!, q: v[2]! } };
 }
 
 /** Sum of squared error/σ over the measured positions, after the one rigid motion between report and truth. */
@@ -87,6 +105,8 @@ const med = (a: number[]) => { const s = [...a].sort((x, y) => x - y); return s.
 /** One style's calibration over `scenes` seeded scenes × every pipeline. */
 async function calibrate(style: 'frame' | 'plain', scenes: number) {
   const z = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
+  // the reference alone: its error on the bed (true camera) over its corners' stated covariance propagated there
+  const zr = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
   let pz2 = 0, pn = 0;
   const per = Object.fromEntries(CAMERA_PIPELINES.map((c) => [c, { stated: [] as number[], err: [] as number[], reference: [] as number[], rest: [] as number[], biasPx: [] as number[] }]));
   const spread = { x: [] as number[], y: [] as number[], sq: [] as number[] };
@@ -114,7 +134,8 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
       z.scaleX.push(ex / u.scaleX); z.scaleY.push(ey / u.scaleY); z.squareness.push(eq / u.squarenessDeg);
       const p = positionZ(res.report, truth);
       pz2 += p.sumZ2; pn += p.n;
-      const ref = referenceScaleError(res.points.reference.corners, truth);
+      const ref = referenceTerms(res.points.reference.corners, truth, res.points.reference.cornerCovPx2);
+      if (ref.sigma) { zr.scaleX.push(ref.x / ref.sigma.x); zr.scaleY.push(ref.y / ref.sigma.y); zr.squareness.push(ref.q / ref.sigma.q); }
       const P = per[cam]!;
       P.stated.push(u.scaleX * 1e6, u.scaleY * 1e6);
       P.err.push(ex * 1e6, ey * 1e6);
@@ -129,6 +150,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
   return {
     style, scenes, photos: z.scaleX.length, failures,
     rmsErrorOverSigma: { scaleX: rms(z.scaleX), scaleY: rms(z.scaleY), squareness: rms(z.squareness), positions: pn ? +Math.sqrt(pz2 / pn).toFixed(3) : null },
+    referenceAloneRmsErrorOverSigma: { scaleX: rms(zr.scaleX), scaleY: rms(zr.scaleY), squareness: rms(zr.squareness) },
     perPipeline: Object.fromEntries(CAMERA_PIPELINES.map((c) => {
       const P = per[c]!;
       return [c, {
