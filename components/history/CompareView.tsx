@@ -18,6 +18,7 @@ import { BAND_K, bandRadiusMm } from '@/lib/geometry/band';
 import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { autoExaggeration } from '@/lib/report/map-scale';
+import { comparisonHeadline } from '@/lib/report/headline';
 import { arrowScaleWords } from '@/lib/report/words';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
@@ -62,7 +63,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
       <section className="panel flex flex-col gap-2">
         <p><strong>Before:</strong> <Link className="underline" href={`/checks/${a}/report`}>{label(detA.data)}</Link></p>
         <p><strong>After:</strong> <Link className="underline" href={`/checks/${b}/report`}>{label(detB.data)}</Link></p>
-        <p className="text-xl font-bold" data-testid="compare-sentence">{data.summary.sentence}</p>
+        <p className="text-xl font-bold" data-testid="compare-sentence">{comparisonHeadline(data, unit)}</p>
         <p className="text-sm text-muted">A change is marked real when it is larger than the two measurements’ combined uncertainty at 95 % ({BAND_K.toFixed(2)} σ for a move in the plane). {data.summary.compared} positions compared; RMS change {formatLength(data.summary.rmsChangeMm, unit)}.{data.onlyInA.length + data.onlyInB.length > 0 ? ` Seen in one check only: ${data.onlyInA.length} before, ${data.onlyInB.length} after.` : ''}</p>
       </section>
       <div className="no-print flex flex-wrap items-end gap-3">

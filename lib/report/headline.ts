@@ -7,6 +7,7 @@
  * those of lib/report/words.ts: "not seen" counts positions the photo could show, so the headline and the
  * cards agree.
  */
+import type { Comparison } from '@/lib/geometry/compare';
 import type { Report } from '@/lib/geometry/contract';
 import { bandRadiusMm } from '@/lib/geometry/band';
 import { panelCornerShift } from '@/lib/geometry/verdict';
@@ -82,4 +83,15 @@ export function shapeLine(report: Report, unit: LengthUnit): string | null {
   if (c.verdict === 'in') return `Overall size and squareness: within tolerance, they move no position by more than ${fig} (${allowed}).`;
   if (c.verdict === 'out') return `Overall size and squareness: out, they move positions by up to ${fig} (${allowed}); a fixture spanning the whole bed will not drop in.`;
   return `Overall size and squareness: this reference cannot judge them to the tolerance (up to ${fig} against ${allowed}); ${SETTLE}.`;
+}
+
+/** The comparison's sentence (lib/geometry/compare.ts writes it in mm) in `unit`, from its figures. */
+export function comparisonHeadline(cmp: Pick<Comparison, 'positions' | 'panels' | 'summary'>, unit: LengthUnit): string {
+  const n = cmp.positions.length;
+  const largest = `largest ${formatLength(cmp.summary.maxChangeMm, unit)}`;
+  const moved = cmp.panels.filter((p) => p.significant).map((p) => p.id);
+  const sig = cmp.positions.filter((c) => c.significant).length;
+  return sig === 0 && moved.length === 0
+    ? `No change beyond the measurements' uncertainty over ${n} positions (${largest}).`
+    : `${sig} of ${n} positions moved beyond the measurements' uncertainty (${largest})${moved.length ? `; panels ${moved.join(', ')} moved` : ''}.`;
 }

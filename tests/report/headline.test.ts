@@ -9,7 +9,8 @@ import { analyzePoints } from '@/lib/geometry/analyze';
 import { presetById } from '@/lib/geometry/presets';
 import { makeScene, type SceneSpec } from '@/lib/geometry/synthetic';
 import { patternToMm } from '@/lib/geometry/units';
-import { headline, panelsToReseat, shapeLine } from '@/lib/report/headline';
+import { compareReports } from '@/lib/geometry/compare';
+import { comparisonHeadline, headline, panelsToReseat, shapeLine } from '@/lib/report/headline';
 import { withOutline } from '@/lib/report/map';
 import { reportCounts } from '@/lib/report/words';
 
@@ -72,5 +73,17 @@ describe('the headline', () => {
     expect(c.missing + c.hidden).toBe(report.summary.missing);
     expect(c.hidden).toBe(report.positions.filter((p) => p.hidden || p.outOfView).length);
     expect(c.hidden).toBeGreaterThan(0);
+  });
+
+  it("writes the comparison's sentence as the core does in mm, and in inches for an inch reader", () => {
+    const before = analyzePoints(makeScene({ pattern, seed: 1, centreNoisePx: 0.05 }).points, pattern);
+    const same = analyzePoints(makeScene({ pattern, seed: 2, centreNoisePx: 0.05 }).points, pattern);
+    const moved = analyzePoints(makeScene({ pattern, seed: 5, panelShiftMm: 0.3, extraDeviation: new Map([[7, [0.9, 0.2]]]) }).points, pattern);
+    for (const after of [same, moved]) {
+      const cmp = compareReports(before, after);
+      expect(comparisonHeadline(cmp, 'mm')).toBe(cmp.summary.sentence);
+      expect(comparisonHeadline(cmp, 'in')).toContain(`largest ${(cmp.summary.maxChangeMm / 25.4).toFixed(4)} in`);
+    }
+    expect(compareReports(before, moved).summary.significant).toBeGreaterThan(0);
   });
 });

@@ -1,5 +1,5 @@
 /**
- * The marks module: one shape per mark, hues the report's style sheet repeats exactly, and the light and dark
+ * The marks module: one shape per mark, hues the app's style sheet repeats exactly, and the light and dark
  * filled marks apart in grey (relative luminance of sRGB colours as WCAG 2.1 defines it); shape tells the dark ones apart.
  */
 import { readFileSync } from 'node:fs';
@@ -18,8 +18,8 @@ describe('the marks', () => {
     for (const m of marks) expect(MARKS[m].label).toBe(MARK_WORD[m]);
   });
 
-  it('are the colours the report style sheet uses, on light and dark grounds', () => {
-    const css = readFileSync(new URL('../../components/report/report.css', import.meta.url), 'utf8');
+  it("are the colours the app's style sheet gives the marks, on light and dark grounds", () => {
+    const css = readFileSync(new URL('../../app/globals.css', import.meta.url), 'utf8');
     for (const m of marks) expect(css).toContain(`--mark-${m}: light-dark(${MARKS[m].colour}, ${MARKS[m].colourDark});`);
   });
 
