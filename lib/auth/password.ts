@@ -5,16 +5,15 @@
  */
 import bcrypt from 'bcryptjs';
 import { z } from 'zod';
-import { isCommonPassword, PASSWORD_MIN_LENGTH, PASSWORD_PROBLEM_MESSAGES } from '@/lib/security/password-policy';
+import { PASSWORD_PROBLEM_MESSAGES, passwordProblem } from '@/lib/security/password-policy';
 
 export const BCRYPT_COST = 11;
 
-export const PasswordSchema = z
-  .string()
-  .min(PASSWORD_MIN_LENGTH, PASSWORD_PROBLEM_MESSAGES['too-short'])
-  .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'Use at most 72 bytes (bcrypt reads no more).')
-  // the common-password check of lib/security/password-policy.ts (shipped list, runs, swaps)
-  .refine((p) => !isCommonPassword(p), PASSWORD_PROBLEM_MESSAGES.common);
+/** A new password: the rules of lib/security/password-policy.ts (length in characters, bcrypt's 72 bytes, common passwords). */
+export const PasswordSchema = z.string().superRefine((p, ctx) => {
+  const problem = passwordProblem(p);
+  if (problem) ctx.addIssue({ code: 'custom', message: PASSWORD_PROBLEM_MESSAGES[problem] });
+});
 
 // A hash of a random string, made once per process; compared against when no user matches.
 let dummyHash: Promise<string> | undefined;

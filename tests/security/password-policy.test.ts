@@ -20,6 +20,9 @@ describe('password policy', () => {
     expect(passwordProblem('ééééééééé')).toBe('too-short'); // 9 characters, 18 bytes
     expect(passwordProblem('é'.repeat(37))).toBe('too-long'); // 74 bytes > 72
     expect(passwordProblem('é'.repeat(36))).toBe('common'); // 72 bytes, but one character repeated
+    // the sign-up schema applies the same rule: five characters that JavaScript stores as ten code units are too short
+    expect(PasswordSchema.safeParse('🔩🪚🔧🪛🧰').success).toBe(false);
+    expect(PasswordSchema.safeParse('é'.repeat(37)).error?.issues[0]?.message).toMatch(/at most 72 bytes/);
   });
 
   it('refuses the most common passwords and their usual disguises', () => {
