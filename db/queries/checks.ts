@@ -12,6 +12,7 @@ import type { CheckStatus } from '@/db/schema';
 import { PhotoQualitySchema, type PhotoQuality, type Points, type Report } from '@/lib/geometry/contract';
 import { enqueueJob, finishJobInTx, JOB_KINDS, LeaseLostError, withBusyRetry, type Job } from './jobs';
 import type { Db } from '@/db/client';
+import { parseStoredJson } from '@/lib/stored-json';
 import { newId, type Queryable } from './types';
 
 export type CheckRow = typeof checks.$inferSelect;
@@ -133,18 +134,8 @@ export interface CheckStatusView {
   quality?: PhotoQuality;
 }
 
-function parseQuality(json: string | null): PhotoQuality | undefined {
-  if (!json) return undefined;
-  try {
-    const parsed = PhotoQualitySchema.safeParse(JSON.parse(json));
-    return parsed.success ? parsed.data : undefined;
-  } catch {
-    return undefined;
-  }
-}
-
 export function checkStatusView(row: CheckRow): CheckStatusView {
-  const quality = parseQuality(row.qualityJson);
+  const quality = parseStoredJson(row.qualityJson, PhotoQualitySchema) ?? undefined;
   return {
     id: row.id,
     bedId: row.bedId,

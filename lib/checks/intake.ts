@@ -15,6 +15,7 @@ import { z } from 'zod';
 import type { Db } from '@/db/client';
 import { getPattern } from '@/db/queries/patterns';
 import { MeasuredDistancesSchema, PatternSchema, type MeasuredDistance } from '@/lib/geometry/contract';
+import { parseStoredJson } from '@/lib/stored-json';
 import { buildLattice } from '@/lib/geometry/lattice';
 import { patternToMm } from '@/lib/geometry/units';
 import { getBed } from '@/db/queries/beds';
@@ -141,10 +142,9 @@ export async function bedPatternForUpload(db: Db, workshopId: string, bedId: str
 
 /** Refuses distances whose labels the bed's pattern does not have (before the photo is measured, not after). */
 async function checkDistanceLabels(db: Db, bedId: string, patternId: string, distances: readonly MeasuredDistance[]): Promise<void> {
-  const row = await getPattern(db, bedId, patternId);
-  const parsed = row ? PatternSchema.safeParse(JSON.parse(row.json)) : null;
-  if (!parsed?.success) return; // the analysis reports a broken pattern itself
-  const labels = new Set(buildLattice(patternToMm(parsed.data)).positions.map((q) => q.label.toLowerCase()));
+  const pattern = parseStoredJson((await getPattern(db, bedId, patternId))?.json, PatternSchema);
+  if (!pattern) return; // the analysis reports a broken pattern itself
+  const labels = new Set(buildLattice(patternToMm(pattern)).positions.map((q) => q.label.toLowerCase()));
   const norm = (l: string) => l.trim().replace(/\s+/g, ' ').toLowerCase();
   for (const d of distances) {
     for (const label of [d.from, d.to]) {

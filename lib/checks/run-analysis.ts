@@ -17,6 +17,7 @@ import { LeaseLostError, type ClaimedJob } from '@/db/queries/jobs';
 import { getPattern } from '@/db/queries/patterns';
 import { getPhotoById, setPhotoSize } from '@/db/queries/photos';
 import { MeasuredDistancesSchema, PatternSchema, PointsSchema, type MeasuredDistance, type Pattern, type Points, type Report, type PhotoQuality } from '@/lib/geometry/contract';
+import { parseStoredJson } from '@/lib/stored-json';
 import { patternToMm } from '@/lib/geometry/units';
 import { withOutline } from '@/lib/report/map';
 import { BlobNotFoundError, type Storage } from '@/lib/storage';
@@ -186,9 +187,8 @@ export async function runCheckAnalysis(ctx: JobContext, deps: AnalysisDeps): Pro
 
 /** The check's stored distances (parsed at upload; a row that no longer parses is fitted without them). */
 function fitOptionsOf(check: { distancesJson: string | null }): FitOptions {
-  if (!check.distancesJson) return {};
-  const parsed = MeasuredDistancesSchema.safeParse(JSON.parse(check.distancesJson));
-  return parsed.success && parsed.data.length ? { distances: parsed.data } : {};
+  const distances = parseStoredJson(check.distancesJson, MeasuredDistancesSchema);
+  return distances?.length ? { distances } : {};
 }
 
 function withHint(message: string, cornersGiven: boolean): string {

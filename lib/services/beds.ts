@@ -9,6 +9,7 @@ import { recordAudit } from '@/db/queries/audit';
 import * as q from '@/db/queries/beds';
 import { insertPatternRevision, listPatternRevisions } from '@/db/queries/patterns';
 import { PatternSchema, type Pattern } from '@/lib/geometry/contract';
+import { parseStoredJson } from '@/lib/stored-json';
 import { invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from './actor';
 import { buildPreset, PresetRefSchema, type PresetRef } from './presets';
@@ -81,11 +82,7 @@ export function summarisePattern(p: Pattern): PatternSummary {
   return { name: p.name, units: p.units, bed: p.bed, positions: families.reduce((n, f) => n + f.positions, 0), panels: p.panels?.length ?? 0, families };
 }
 
-function parseStored(json: string | null): Pattern | null {
-  if (!json) return null;
-  const r = PatternSchema.safeParse(JSON.parse(json));
-  return r.success ? r.data : null;
-}
+const parseStored = (json: string | null): Pattern | null => parseStoredJson(json, PatternSchema);
 
 export type BedDto = {
   id: string;

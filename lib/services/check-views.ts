@@ -19,6 +19,7 @@ import { getCheck } from '@/db/queries/checks';
 import { getPhoto, setPhotoPreviewError, type PhotoRow } from '@/db/queries/photos';
 import { getUserById } from '@/db/queries/users';
 import { patternToMm, type PatternMm } from '@/lib/geometry';
+import { parseStoredJson } from '@/lib/stored-json';
 import { PatternSchema, PointsSchema, ReportSchema, type Points, type Report } from '@/lib/geometry/contract';
 import { AppError, notFound } from '@/lib/http/errors';
 import { exportFileName, positionsCsv } from '@/lib/report/csv';
@@ -55,16 +56,6 @@ export interface CheckDetail {
   units: LengthUnit;
 }
 
-function parseJson<T>(text: string | null, schema: { safeParse(v: unknown): { success: true; data: T } | { success: false } }): T | null {
-  if (!text) return null;
-  try {
-    const r = schema.safeParse(JSON.parse(text));
-    return r.success ? r.data : null;
-  } catch {
-    return null;
-  }
-}
-
 /** `GET /api/checks/{id}/detail`; the display copy is made here when missing, so `photo.available` is known. */
 export async function getCheckDetail(db: Db, storage: Storage, actor: Actor, id: string): Promise<CheckDetail> {
   authorize(actor, 'workshop:read');
@@ -76,8 +67,8 @@ export async function getCheckDetail(db: Db, storage: Storage, actor: Actor, id:
     row.photoId ? getPhoto(db, actor.workshopId, row.photoId) : Promise.resolve(undefined),
     row.editedBy ? getUserById(db, row.editedBy) : Promise.resolve(undefined),
   ]);
-  const pattern = parseJson(patternRow?.json ?? null, PatternSchema);
-  const detections = parseJson(row.detectionsJson, PointsSchema);
+  const pattern = parseStoredJson(patternRow?.json, PatternSchema);
+  const detections = parseStoredJson(row.detectionsJson, PointsSchema);
   let edits: unknown = null;
   try { edits = row.editsJson ? JSON.parse(row.editsJson) : null; } catch { edits = null; }
   const photoState = await previewState(db, storage, photo);

@@ -10,6 +10,7 @@ import { getBed } from '@/db/queries/beds';
 import { getCheck, type CheckRow } from '@/db/queries/checks';
 import { getPattern } from '@/db/queries/patterns';
 import { PatternSchema, ReportSchema, type Report } from '@/lib/geometry/contract';
+import { parseStoredJson } from '@/lib/stored-json';
 import { patternToMm, type PatternMm } from '@/lib/geometry/units';
 import { AppError, notFound } from '@/lib/http/errors';
 import { withOutline } from '@/lib/report/map';
@@ -37,9 +38,8 @@ export async function loadFinishedCheck(db: Db, workshopId: string, checkId: str
  */
 export async function withStoredOutline(db: Db, check: Pick<CheckRow, 'bedId' | 'patternId'>, report: Report): Promise<Report> {
   if (report.pattern.bed) return report;
-  const row = await getPattern(db, check.bedId, check.patternId);
-  const parsed = row ? PatternSchema.safeParse(JSON.parse(row.json)) : null;
-  return parsed?.success ? withOutline(report, patternToMm(parsed.data)) : report;
+  const pattern = parseStoredJson((await getPattern(db, check.bedId, check.patternId))?.json, PatternSchema);
+  return pattern ? withOutline(report, patternToMm(pattern)) : report;
 }
 
 /** The pattern (in mm) the check was measured against. */
