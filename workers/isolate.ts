@@ -109,7 +109,7 @@ class AnalysisProcess {
         resolve();
       };
       this.child.on('message', onMessage);
-      this.child.once('exit', () => { clearTimeout(timer); reject(this.limitError()); });
+      this.child.once('exit', (code, signal) => { clearTimeout(timer); reject(this.limitError(code, signal)); });
     });
     this.ready.catch(() => undefined);
     this.child.on('message', (m: ChildMessage) => this.onMessage(m));
