@@ -350,6 +350,8 @@ export const PhotoQualitySchema = z.object({
     clipped: z.object({ targetWhite: finite, targetEdge: finite, targetBlack: finite, holesSurround: finite }).nullable(),
     /** Level of the target's white paper, 0–255 as encoded. */
     whiteLevel: finite.nullable(),
+    /** The target's white over its black in linear light (a print gives 16–30; less with the white clipped: over-exposed); absent in older verdicts. */
+    targetContrast: finite.nullable().optional(),
     holesSampled: z.number().int(),
   }),
   timeMs: finite,

@@ -44,13 +44,16 @@ export const ASSUMED_FOCAL_35MM = 27;
  * Limits beyond which the photo is called out. Each is where the method measurably degrades, not a score:
  * - blur: a defocus σ above 1.5 px (sharp phone photos measure 0.6–1.2 px including the pixel itself);
  * - motion: a straight smear longer than 6 px;
- * - over-exposure: the white clipped right at the black edge (at one line spread from it) on half the edge samples,
- *   which moves the target's edges (a clipped blur is lopsided), or a quarter of the bed around the holes clipped;
- * - under-exposure: the white paper below 60 of 255;
+ * - over-exposure: the target's white clipped on half its samples while it reads less than 16 times its black in
+ *   linear light: a print's toner or ink reflects 3–6 % of what the paper does (optical density 1.2–1.5, common
+ *   practice, from memory), a ratio of 16–30, so a clipped white with less contrast would have been brighter (a
+ *   photo exposed g times too long divides the ratio by g); or a quarter of the bed around the holes clipped;
+ * - under-exposure: the white paper below 120 of 255, more than 2 stops under a white near clipping (linear 0.19),
+ *   where the sensor's noise starts to set the edges' precision;
  * - target under 200 px a side, holes under 10 px across, a tilt over 20° (the far side then shrinks by a
  *   third against the near side on a phone lens), the target or the bed beyond the frame.
  */
-export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, edgeClipShare: 0.5, holesClipShare: 0.25, whiteLevel: 60, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
+export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, whiteClipShare: 0.5, printContrast: 16, holesClipShare: 0.25, whiteLevel: 120, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
 
 const TO_LINEAR = new Float64Array(1025).map((_, i) => {
   const c = i / 1024;
@@ -574,7 +577,7 @@ function issue(code: PhotoIssueCode, message: string): PhotoQuality['issues'][nu
 export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const t0 = performance.now();
   const { width: w, height: h } = q;
-  const measured: PhotoQuality['measured'] = { widthPx: w, heightPx: h, edgeSpreadPx: null, defocusSigmaPx: null, motion: null, targetSidePx: null, holeDiameterPx: null, tiltDeg: null, clipped: null, whiteLevel: null, holesSampled: 0 };
+  const measured: PhotoQuality['measured'] = { widthPx: w, heightPx: h, targetContrast: null, edgeSpreadPx: null, defocusSigmaPx: null, motion: null, targetSidePx: null, holeDiameterPx: null, tiltDeg: null, clipped: null, whiteLevel: null, holesSampled: 0 };
   const issues: PhotoQuality['issues'] = [];
   const done = (predicted: PhotoQuality['predicted']): PhotoQuality => ({ issues, predicted, measured, timeMs: round(performance.now() - t0, 10) });
   if (!q.corners) {
@@ -629,6 +632,8 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
       holesSurround: round(holes.length ? median(holes.map((x) => x.surroundClipped)) : 0),
     };
     const hiLin = median(good.map((e) => e.hiLin));
+    const loLin = median(good.map((e) => e.loLin));
+    measured.targetContrast = loLin > 0 ? round(hiLin / loLin, 10) : null;
     measured.whiteLevel = round(255 * (hiLin <= 0.0031308 ? 12.92 * hiLin : 1.055 * hiLin ** (1 / 2.4) - 0.055), 10);
   }
 
@@ -636,9 +641,10 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const m = measured;
   if (m.defocusSigmaPx !== null && m.defocusSigmaPx > LIMITS.defocusSigmaPx) issues.push(issue('blurred', `The target's edges are spread over ${m.edgeSpreadPx!.toFixed(1)} px (out of focus by σ ${m.defocusSigmaPx.toFixed(1)} px; a sharp photo stays under ${LIMITS.defocusSigmaPx} px).`));
   if (m.motion && m.motion.lengthPx > LIMITS.motionPx) issues.push(issue('motion-blur', `The photo is smeared by ${m.motion.lengthPx.toFixed(0)} px along ${m.motion.directionDeg.toFixed(0)}° from the photo's horizontal: the camera moved while it was taken.`));
-  if (m.clipped && (m.clipped.targetEdge > LIMITS.edgeClipShare || m.clipped.holesSurround > LIMITS.holesClipShare)) {
+  const burnt = !!m.clipped && m.clipped.targetWhite >= LIMITS.whiteClipShare && m.targetContrast !== null && m.targetContrast !== undefined && m.targetContrast < LIMITS.printContrast;
+  if (m.clipped && (burnt || m.clipped.holesSurround > LIMITS.holesClipShare)) {
     const parts = [];
-    if (m.clipped.targetEdge > LIMITS.edgeClipShare) parts.push(`the target's white is burnt out right up to its black edge on ${Math.round(100 * m.clipped.targetEdge)} % of the edge (${Math.round(100 * m.clipped.targetWhite)} % of the white clipped), which moves the edges`);
+    if (burnt) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and reads only ${m.targetContrast!.toFixed(0)} times its black, where a print gives ${LIMITS.printContrast} or more`);
     if (m.clipped.holesSurround > LIMITS.holesClipShare) parts.push(`${Math.round(100 * m.clipped.holesSurround)} % of the bed around the holes is burnt out`);
     issues.push(issue('overexposed', `Over-exposed: ${parts.join('; ')}.`));
   }

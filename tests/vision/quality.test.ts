@@ -64,6 +64,21 @@ describe('photo-quality stage', () => {
     expect(q.issues[0]!.advice).toMatch(/flash/);
   }, 30_000);
 
+  it('does not call a phone photo over-exposed when its sharpened white merely reaches clipping', async () => {
+    // the phone pipeline (render.ts: contrast curve, unsharp mask) clips the paper next to the edge by overshoot;
+    // the print's contrast stays that of toner on paper, 16–30 (optical density 1.2–1.5, from memory)
+    const q = await quality(SMALL_BED, { seed: 706, camera: 'phone', tiltDeg: 5 });
+    expect(codes(q)).toEqual([]);
+    expect(q.measured.targetContrast!).toBeGreaterThan(16);
+  }, 30_000);
+
+  it('calls a photo taken in too little light under-exposed', async () => {
+    // the renderer's exposure 0.15: the paper's linear light at 15 %, over 2.5 stops under (log2 1/0.15 = 2.7)
+    const q = await quality(SMALL_BED, { seed: 733, exposure: 0.15, noise: 3 });
+    expect(codes(q)).toEqual(['underexposed']);
+    expect(q.issues[0]!.advice).toMatch(/light/);
+  }, 30_000);
+
   it('calls holes too small in a 12 MP-framed bed downscaled to 1600 × 1200', async () => {
     // the large bed (1.3 m) rendered at 1800 × 1350 and resized as a messenger would: inserts of 8 mm end up near 8 px
     const q = await quality(LARGE_BED, { seed: 331, width: 1800, height: 1350, supersample: 2 }, { downscale: { width: 1600, height: 1200 } });
