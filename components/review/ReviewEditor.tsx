@@ -16,6 +16,7 @@ import { MarkChip } from '@/components/report/Mark';
 import { PhotoMarks, type PhotoMark } from '@/components/report/PhotoMarks';
 import type { Points, Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
+import { MARK_WORD } from '@/lib/report/words';
 import { ZoomStage, type StageApi } from './ZoomStage';
 
 type Corner = [number, number];
@@ -130,11 +131,11 @@ function Editor({ checkId, points, report, canReview, photo, edited }: { checkId
     const pos = overlay && i >= 0 ? overlay.detectionPosition[i]! : -1;
     const p = pos >= 0 && report ? report.positions[pos]! : null;
     const mark = h.added ? 'unmatched' : overlay && i >= 0 ? overlay.detectionVerdict[i]! : 'in';
-    return { key: h.id, x: h.x, y: h.y, diameterPx: h.diameterPx, mark, title: h.added ? 'added by you' : p ? `${p.label} — ${p.verdict}` : 'matches no position' };
+    return { key: h.id, x: h.x, y: h.y, diameterPx: h.diameterPx, mark, title: h.added ? 'added by you' : p ? `${p.label} — ${MARK_WORD[p.verdict]}` : 'matches no position' };
   });
   if (overlay && report) report.positions.forEach((p, i) => {
     const px = overlay.positionPx[i];
-    if (!p.measured && !p.hidden && px) marks.push({ key: `m${i}`, x: px.x, y: px.y, mark: 'missing', title: `${p.label}: expected here, not seen` });
+    if (!p.measured && !p.hidden && px) marks.push({ key: `m${i}`, x: px.x, y: px.y, mark: 'missing', title: `${p.label}: expected here, ${MARK_WORD.missing.toLowerCase()}` });
   });
   const removed = draft.holes.filter((h) => h.removed);
   const added = draft.holes.filter((h) => h.added);
