@@ -8,52 +8,24 @@
  * (the renderer's edge supersampling; 2 keeps rendering the photos quick, it does not touch the timed path)
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
-import { loadavg, tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { setTimeout as delay } from 'node:timers/promises';
-import { eq } from 'drizzle-orm';
-import { migrateDb, openDb } from '@/db/client';
-import { beds, checks, memberships, patterns, users, workshops } from '@/db/schema';
-import { getCheckById } from '@/db/queries/checks';
+import { rmSync } from 'node:fs';
+import { loadavg } from 'node:os';
+import { checks } from '@/db/schema';
 import { jobsForCheck } from '@/db/queries/jobs';
 import { intakePhoto } from '@/lib/checks/intake';
-import type { Pattern } from '@/lib/geometry/contract';
-import { LocalStorage } from '@/lib/storage';
 import { synthesize } from '@/lib/vision/render';
+import { BENCH_DOG_BED as pattern, benchShop, benchWorkerEnv, ROOT, waitForCheck } from './worker-setup';
 
 const [photosN = 5, burstN = 4, width = 4000, height = 3000, supersample = 2] = process.argv.slice(2).map(Number);
-const root = fileURLToPath(new URL('../..', import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), 'gridproof-bench-check-'));
-const url = `file:${join(dir, 'bench.db')}`;
-const storageDir = join(dir, 'storage');
-const db = await openDb(url);
-await migrateDb(db);
-const storage = new LocalStorage(storageDir);
-
-// invented demo bed: 20 mm dog holes on a 96 mm grid in two panels
-const pattern: Pattern = {
-  version: 1, name: 'bench dog bed', units: 'mm', bed: { width: 960, height: 672 },
-  families: [{ id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 48, y: 48 }, pitch: { x: 96, y: 96 }, count: { x: 10, y: 7 }, fit: { toleranceMm: 0.5 } }],
-  panels: [{ id: 'L', x: 0, y: 0, width: 480, height: 672 }, { id: 'R', x: 480, y: 0, width: 480, height: 672 }],
-};
-const workshopId = crypto.randomUUID(), userId = crypto.randomUUID(), bedId = crypto.randomUUID(), patternId = crypto.randomUUID();
-await db.insert(workshops).values({ id: workshopId, name: 'bench' });
-await db.insert(users).values({ id: userId, email: 'bench@example.test', name: 'bench', passwordHash: 'x' });
-await db.insert(memberships).values({ workshopId, userId, role: 'machinist' });
-await db.insert(beds).values({ id: bedId, workshopId, name: 'bench bed' });
-await db.insert(patterns).values({ id: patternId, bedId, revision: 1, json: JSON.stringify(pattern) });
-await db.update(beds).set({ currentPatternId: patternId }).where(eq(beds.id, bedId));
+const bench = await benchShop('check');
+const { db, storage, dir } = bench;
+const { workshopId, userId, bedId } = bench.shop;
 
 const rendered = [];
 for (let i = 0; i < Math.max(photosN, burstN); i++) rendered.push(await synthesize(pattern, { seed: 100 + i, width, height, supersample }));
 
 function startWorker(id: string): Promise<ChildProcess> {
-  const p = spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], {
-    cwd: root, stdio: ['ignore', 'pipe', 'inherit'],
-    env: { ...process.env, DATABASE_URL: url, STORAGE_DIR: storageDir, WORKER_ID: id, WORKER_POLL_MS: '20', NODE_ENV: 'production', MAIL_DELIVERY: '0' },
-  });
+  const p = spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'inherit'], env: benchWorkerEnv(bench, id) });
   return new Promise((resolve, reject) => {
     p.once('exit', (code) => reject(new Error(`worker ${id} exited (${code}) before it was ready`)));
     p.stdout!.setEncoding('utf8').on('data', function ready(d: string) {
@@ -62,14 +34,6 @@ function startWorker(id: string): Promise<ChildProcess> {
   });
 }
 const stop = (p: ChildProcess) => new Promise((r) => { p.on('exit', r); p.kill('SIGTERM'); });
-
-async function waitDone(id: string) {
-  for (;;) {
-    const c = await getCheckById(db, id);
-    if (c && ['done', 'needs-review', 'failed'].includes(c.status)) return c;
-    await delay(10);
-  }
-}
 
 const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); return s[Math.floor(s.length / 2)]!; };
 
@@ -81,7 +45,7 @@ const statuses: string[] = [];
 for (let i = 0; i < photosN; i++) {
   const t0 = performance.now();
   const { check } = await intakePhoto(db, storage, { workshopId, bedId, userId, source: rendered[i]!.jpeg, referenceMm: rendered[i]!.truth.target.sizeMm });
-  const end = await waitDone(check.id);
+  const end = await waitForCheck(db, check.id);
   idle.push(performance.now() - t0);
   statuses.push(end.status);
 }
@@ -94,7 +58,7 @@ for (let i = 0; i < burstN; i++) {
   ids.push((await intakePhoto(db, storage, { workshopId, bedId, userId, source: rendered[i]!.jpeg, referenceMm: rendered[i]!.truth.target.sizeMm - 1 })).check.id);
 }
 const burstStatuses = [];
-for (const id of ids) burstStatuses.push((await waitDone(id)).status);
+for (const id of ids) burstStatuses.push((await waitForCheck(db, id)).status);
 const burstMs = performance.now() - t0;
 const burstJobs = await Promise.all(ids.map((id) => jobsForCheck(db, id)));
 await Promise.all([stop(w1), stop(w2)]);

@@ -8,34 +8,16 @@
  * Run: npx tsx tests/bench/worker.bench.ts [photos=3] [width=4000] [height=3000] [supersample=2]
  */
 import { spawn } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
-import { loadavg, tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { migrateDb, openDb } from '@/db/client';
-import { getCheckById } from '@/db/queries/checks';
+import { rmSync } from 'node:fs';
+import { loadavg } from 'node:os';
+import { setTimeout as delay } from 'node:timers/promises';
 import { intakePhoto } from '@/lib/checks/intake';
-import type { Pattern } from '@/lib/geometry/contract';
-import { LocalStorage } from '@/lib/storage';
 import { synthesize } from '@/lib/vision/render';
-import { makeShop } from '@/tests/checks/fixtures';
+import { BENCH_DOG_BED as pattern, benchShop, benchWorkerEnv, ROOT, waitForCheck } from './worker-setup';
 
 const [photosN = 3, width = 4000, height = 3000, supersample = 2] = process.argv.slice(2).map(Number);
-const root = fileURLToPath(new URL('../..', import.meta.url));
-const dir = mkdtempSync(join(tmpdir(), 'gridproof-bench-worker-'));
-const url = `file:${join(dir, 'bench.db')}`;
-const storageDir = join(dir, 'storage');
-const db = await openDb(url);
-await migrateDb(db);
-const storage = new LocalStorage(storageDir);
-
-// invented demo bed: 20 mm dog holes on a 96 mm grid in two panels
-const pattern: Pattern = {
-  version: 1, name: 'bench dog bed', units: 'mm', bed: { width: 960, height: 672 },
-  families: [{ id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 48, y: 48 }, pitch: { x: 96, y: 96 }, count: { x: 10, y: 7 }, fit: { toleranceMm: 0.5 } }],
-  panels: [{ id: 'L', x: 0, y: 0, width: 480, height: 672 }, { id: 'R', x: 480, y: 0, width: 480, height: 672 }],
-};
-const shop = await makeShop(db, 'bench', pattern);
+const bench = await benchShop('worker');
+const { db, storage, dir, shop } = bench;
 const rendered = [];
 for (let i = 0; i < photosN; i++) rendered.push(await synthesize(pattern, { seed: 200 + i, width, height, supersample }));
 
@@ -43,8 +25,7 @@ interface Line { event: string; checkId?: string; jobId?: string; step?: string;
 const lines: Line[] = [];
 const memoryMb = Number(process.env.WORKER_JOB_MEMORY_MB || 1536);
 const worker = spawn(process.execPath, ['--import', 'tsx', 'workers/worker.ts'], {
-  cwd: root, stdio: ['ignore', 'pipe', 'inherit'],
-  env: { ...process.env, DATABASE_URL: url, STORAGE_DIR: storageDir, WORKER_ID: 'bench-memory', WORKER_POLL_MS: '20', NODE_ENV: 'production', MAIL_DELIVERY: '0', WORKER_JOB_MEMORY_MB: String(memoryMb) },
+  cwd: ROOT, stdio: ['ignore', 'pipe', 'inherit'], env: benchWorkerEnv(bench, 'bench-memory', { WORKER_JOB_MEMORY_MB: String(memoryMb) }),
 });
 let buf = '';
 worker.stdout!.setEncoding('utf8').on('data', (d: string) => {
@@ -54,18 +35,13 @@ worker.stdout!.setEncoding('utf8').on('data', (d: string) => {
     buf = buf.slice(i + 1);
   }
 });
-const until = async (pred: () => boolean) => { while (!pred()) await new Promise((r) => setTimeout(r, 20)); };
+const until = async (pred: () => boolean) => { while (!pred()) await delay(20); };
 await until(() => lines.some((l) => l.event === 'worker.ready'));
 
 const jobs = [];
 for (const r of rendered) {
   const { check, job } = await intakePhoto(db, storage, { workshopId: shop.workshopId, bedId: shop.bedId, userId: shop.userId, source: r.jpeg, referenceMm: r.truth.target.sizeMm });
-  let end;
-  for (;;) {
-    end = await getCheckById(db, check.id);
-    if (end && ['done', 'needs-review', 'failed'].includes(end.status)) break;
-    await new Promise((res) => setTimeout(res, 20));
-  }
+  const end = await waitForCheck(db, check.id, 20);
   const steps = lines.filter((l) => l.event === 'job.analysis' && l.jobId === job?.id);
   const last = steps[steps.length - 1];
   jobs.push({
