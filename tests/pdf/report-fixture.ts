@@ -84,7 +84,7 @@ export function buildReport(opts: { cols?: number; rows?: number; seed?: number 
       out: out.length,
       marginal: marginal.length,
       verdict,
-      sentence: `${verdict === 'fail' ? 'Fails' : 'Marginal'}: ${out.length} of ${measured.length} measured positions are out of tolerance (worst ${out[0]?.label ?? '-'}), ${marginal.length} are too close to call, and P2 sits off and should be reseated.`,
+      sentence: `${verdict === 'fail' ? 'Fail' : 'Marginal'}: ${out.length} of ${measured.length} measured positions are out of tolerance (worst ${out[0]?.label ?? '-'}), ${marginal.length} are too close to call, and P2 sits off and should be reseated.`,
     },
   });
 }

@@ -43,7 +43,7 @@ export function handReport(pattern: Pattern, dev: Record<string, [number, number
     diagnostics: { diameterRatio: 1, residualSigmaPx: 0.2, centreSigmaPx: 0.2, inFit: rs.length, squareSidePx: 450, cornerSigmaPx: 0.1, squareResidualPx: 0.05, hidden: 0 },
     summary: {
       matched: rs.length, missing: positions.length - rs.length, rmsMm: Math.sqrt(rs.reduce((a, b) => a + b * b, 0) / Math.max(1, rs.length)), maxMm: Math.max(0, ...rs),
-      out, marginal: 0, verdict: out ? 'fail' : 'pass', sentence: out ? `Fails: ${out} positions out of tolerance.` : 'Passes: every position is within its tolerance.',
+      out, marginal: 0, verdict: out ? 'fail' : 'pass', sentence: out ? `Fail: ${out} positions out of tolerance.` : 'Pass: every position is within its tolerance.',
     },
   };
 }
