@@ -50,7 +50,7 @@ async function scenePhotos(seed: number, style: 'frame' | 'plain'): Promise<{ jp
 
 /**
  * The reference alone: its corners onto the bed through the true camera, then scale X and Y (each pair of opposite
- * sides against the printed size) and squareness (the angle at the corners minus 90°, mean of the four, rad);
+ * sides against the printed size) and squareness (the angles at corners 0 and 2 less those at 1 and 3, over 4, rad);
  * `cov` (the detector's corner covariance, px²) propagated to them through a numerical Jacobian.
  */
 function referenceTerms(corners: readonly (readonly [number, number])[], truth: Truth, cov?: readonly number[]): { x: number; y: number; q: number; sigma?: { x: number; y: number; q: number } } {
@@ -65,10 +65,11 @@ function referenceTerms(corners: readonly (readonly [number, number])[], truth: 
     for (let k = 0; k < 4; k++) {
       const a = bed[(k + 3) % 4]!, b = bed[k]!, c = bed[(k + 1) % 4]!;
       const u = [a[0] - b[0], a[1] - b[1]], v = [c[0] - b[0], c[1] - b[1]];
-      q += Math.acos((u[0]! * v[0]! + u[1]! * v[1]!) / (Math.hypot(u[0]!, u[1]!) * Math.hypot(v[0]!, v[1]!))) - Math.PI / 2;
+      // the four angles sum to 2π: the shear is what corners 0 and 2 gain over 1 and 3
+      q += (k % 2 ? -1 : 1) * Math.acos((u[0]! * v[0]! + u[1]! * v[1]!) / (Math.hypot(u[0]!, u[1]!) * Math.hypot(v[0]!, v[1]!)));
     }
     // the target's +x runs from corner 0 to 1 and +y from 0 to 3; the bed axes differ from it by the sheet's small turn
-    return [(len(bed[0]!, bed[1]!) + len(bed[3]!, bed[2]!)) / (2 * S) - 1, (len(bed[0]!, bed[3]!) + len(bed[1]!, bed[2]!)) / (2 * S) - 1, (q / 4) * (idx[1] === (idx[0]! + 1) % 4 ? 1 : -1)];
+    return [(len(bed[0]!, bed[1]!) + len(bed[3]!, bed[2]!)) / (2 * S) - 1, (len(bed[0]!, bed[3]!) + len(bed[1]!, bed[2]!)) / (2 * S) - 1, q / 4];
   };
   const flat = corners.flatMap((c) => [c[0], c[1]]);
   const t0 = terms(flat);
@@ -99,7 +100,7 @@ function positionZ(report: Report, truth: Truth): { sumZ2: number; n: number } {
   return { sumZ2: z2, n: 2 * n };
 }
 
-const rms = (a: number[]) => (a.length ? +Math.sqrt(a.reduce((s, v) => s + v * v, 0) / a.length).toFixed(3) : null);
+const rms = (a: number[]) => { const f = a.filter(Number.isFinite); return f.length ? +Math.sqrt(f.reduce((s, v) => s + v * v, 0) / f.length).toFixed(3) : null; };
 const med = (a: number[]) => { const s = [...a].sort((x, y) => x - y); return s.length ? s[Math.floor(s.length / 2)]! : NaN; };
 
 /** One style's calibration over `scenes` seeded scenes × every pipeline. */
