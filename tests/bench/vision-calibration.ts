@@ -109,7 +109,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
   // the reference alone: its error on the bed (true camera) over its corners' stated covariance propagated there
   const zr = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
   let pz2 = 0, pn = 0;
-  const per = Object.fromEntries(CAMERA_PIPELINES.map((c) => [c, { stated: [] as number[], err: [] as number[], reference: [] as number[], rest: [] as number[], biasPx: [] as number[] }]));
+  const per = Object.fromEntries(CAMERA_PIPELINES.map((c) => [c, { stated: [] as number[], err: [] as number[], reference: [] as number[], rest: [] as number[], biasPx: [] as number[], statedCorners: [] as number[], statedFit: [] as number[] }]));
   const spread = { x: [] as number[], y: [] as number[], sq: [] as number[] };
   const failures: string[] = [];
   const ms: number[] = [];
@@ -144,6 +144,8 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
       P.reference.push(-ref.x * 1e6, -ref.y * 1e6);
       P.rest.push((ex + ref.x) * 1e6, (ey + ref.y) * 1e6);
       if (res.meta.square.edgeBiasPx !== undefined) P.biasPx.push(res.meta.square.edgeBiasPx);
+      const parts = (res.report.diagnostics as { scaleSigmaParts?: { corners: number; fit: number } } | undefined)?.scaleSigmaParts;
+      if (parts) { P.statedCorners.push(parts.corners * 1e6); P.statedFit.push(parts.fit * 1e6); }
       sx.push(ex * 1e6); sy.push(ey * 1e6); sq.push(eq);
     }
     if (sx.length > 1) { spread.x.push(Math.max(...sx) - Math.min(...sx)); spread.y.push(Math.max(...sy) - Math.min(...sy)); spread.sq.push(Math.max(...sq) - Math.min(...sq)); }
@@ -157,7 +159,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
       return [c, {
         stated1SigmaScalePpm: { median: Math.round(med(P.stated)), max: Math.round(Math.max(...P.stated)) },
         scaleErrorPpm: { rms: rms(P.err), maxAbs: Math.round(Math.max(...P.err.map(Math.abs))) },
-        fromReferencePpm: { rms: rms(P.reference) }, fromFitPpm: { rms: rms(P.rest) },
+        fromReferencePpm: { rms: rms(P.reference), stated1SigmaRms: rms(P.statedCorners) }, fromFitPpm: { rms: rms(P.rest), stated1SigmaRms: rms(P.statedFit) },
         ...(P.biasPx.length ? { edgeBiasPx: { median: +med(P.biasPx).toFixed(3), min: +Math.min(...P.biasPx).toFixed(3), max: +Math.max(...P.biasPx).toFixed(3) } } : {}),
       }];
     })),
