@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
+import { PhotoExamples } from '@/components/guide/PhotoExamples';
 import { WhichReference } from '@/components/guide/WhichReference';
 import { PublicFrame } from '@/components/share/PublicFrame';
 
@@ -74,6 +75,7 @@ export default function PhotoGuidePage() {
             </li>
           ))}
         </ol>
+        <PhotoExamples />
         <WhichReference />
         <p><Link className="btn" href="/target">Print the reference target</Link></p>
       </article>
