@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { detectFromImage } from '@/lib/vision';
+import { analyzeImage, detectFromImage } from '@/lib/vision';
 import { CAMERA_PIPELINES, synthesizeCameras } from '@/lib/vision/render';
 import { SMALL_BED } from './scenes';
 
@@ -46,4 +46,18 @@ describe('reference square precision on rendered photos', () => {
       });
     }
   }, 60_000);
+
+  it('states a scale 1σ of at most 150 ppm with the 150 mm target at about 0.4 mm/px, and the scale lies within 3σ of the truth in every pipeline', async () => {
+    const { jpegs, truth } = await synthesizeCameras(SMALL_BED, { width: 1800, height: 1350, supersample: 3, seed: 43, tiltDeg: 6, k1: -0.04, k2: 0.01, blurPx: 0.8 });
+    expect(truth.mmPerPx).toBeLessThan(0.45);
+    for (const cam of CAMERA_PIPELINES) {
+      const { report } = await analyzeImage(jpegs[cam], SMALL_BED, { referenceMm: truth.target.sizeMm });
+      const L = report.lattice;
+      expect(L.observed).toBe(true);
+      for (const [got, want, sigma] of [[L.scaleX!, 1 + truth.errors.scaleX, L.uncertainty.scaleX!], [L.scaleY!, 1 + truth.errors.scaleY, L.uncertainty.scaleY!]] as const) {
+        expect(sigma).toBeLessThan(150e-6);
+        expect(Math.abs(got - want)).toBeLessThan(3 * sigma);
+      }
+    }
+  }, 90_000);
 });
