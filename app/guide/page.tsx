@@ -23,7 +23,7 @@ const STEPS: { title: string; body: string[] }[] = [
   {
     title: 'Lay the target flat, near the middle',
     body: [
-      'Print the reference target at 100 %, measure its square with a rule and enter what you measured. Lay it flat on the bed, away from the edges, where it covers as few holes as it must (holes under it are expected to be unseen). Tape the corners if the sheet curls.',
+      'Print the reference target at 100 %, measure its square with a rule and enter what you measured. Lay it flat on the bed, away from the edges, where it covers as few holes as it must: holes under it, or whose rim its edge crosses, are reported as not seen, never in or out. Keep clamps and offcuts off the holes for the same reason. Tape the corners if the sheet curls.',
     ],
   },
   {

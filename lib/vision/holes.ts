@@ -17,6 +17,12 @@ import { sampleGrey } from './square';
 
 export type CentreMethod = 'centroid' | 'edge';
 
+/**
+ * Largest shift of a dark/light edge by the camera's processing, px per side (blur in linear light, tone curves and
+ * unsharp masks move the half-way crossing by about −0.5 to +0.55 px in the rendered pipelines).
+ */
+export const EDGE_BIAS_PX = 0.6;
+
 export interface FamilySize {
   id: string;
   diameterMm: number;
@@ -308,17 +314,19 @@ export async function findHoles(
   const contours = new cv.MatVector() as { size(): number; get(i: number): CvMat; delete(): void };
   const hier = new cv.Mat() as CvMat;
   const cands: { x: number; y: number; fam: FamilySize }[] = [];
-  // candidates bucketed on the bed plane (cells of half the largest diameter) so that "is one near?" looks at 3 × 3 cells
+  // candidates bucketed on the bed plane (cells of half the largest diameter) so that "is one near?" looks at 3 × 3 cells;
+  // only a candidate of the same family counts: an insert's flange ring taken for a larger family must not hide the
+  // bore at its centre (refinement then keeps the one that is a hole)
   const cell = 0.5 * maxD;
-  const grid = new Map<number, { x: number; y: number }[]>();
+  const grid = new Map<number, { x: number; y: number; fam: string }[]>();
   const key = (i: number, j: number) => i * 1_000_003 + j;
-  const near = (x: number, y: number, dist: number) => {
+  const near = (x: number, y: number, dist: number, fam: string) => {
     const i0 = Math.floor(x / cell);
     const j0 = Math.floor(y / cell);
     for (let i = i0 - 1; i <= i0 + 1; i++)
       for (let j = j0 - 1; j <= j0 + 1; j++) {
         const b = grid.get(key(i, j));
-        if (b && b.some((q) => Math.hypot(q.x - x, q.y - y) < dist)) return true;
+        if (b && b.some((q) => q.fam === fam && Math.hypot(q.x - x, q.y - y) < dist)) return true;
       }
     return false;
   };
@@ -358,12 +366,12 @@ export async function findHoles(
               best = f;
             }
           }
-          if (best && bestErr < 0.5 && !near(b[0], b[1], 0.5 * best.diameterMm)) {
+          if (best && bestErr < 0.5 && !near(b[0], b[1], 0.5 * best.diameterMm, best.id)) {
             cands.push({ x: b[0], y: b[1], fam: best });
             const k = key(Math.floor(b[0] / cell), Math.floor(b[1] / cell));
             const bucket = grid.get(k);
-            if (bucket) bucket.push({ x: b[0], y: b[1] });
-            else grid.set(k, [{ x: b[0], y: b[1] }]);
+            if (bucket) bucket.push({ x: b[0], y: b[1], fam: best.id });
+            else grid.set(k, [{ x: b[0], y: b[1], fam: best.id }]);
           }
         } finally {
           c.delete();
@@ -400,10 +408,13 @@ export async function findHoles(
         fam = f;
       }
     }
-    if (!fam || err > tol) continue;
-    const p = applyH(H, r.cx, r.cy);
     const s = homographyScale(H, r.cx, r.cy);
-    const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (tol * 1.5)) * r.coverage;
+    // the camera's tone curve and sharpening move a dark/light edge by up to EDGE_BIAS_PX on each side: a size
+    // tolerance of that many px beside the relative one, which matters for holes a few px across
+    const allow = fam ? tol + (2 * EDGE_BIAS_PX) / (s * fam.diameterMm) : 0;
+    if (!fam || err > allow) continue;
+    const p = applyH(H, r.cx, r.cy);
+    const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (allow * 1.5)) * r.coverage;
     out.push({ x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast, rimGapDeg: r.rimGapDeg });
   }
   // one detection per hole: keep the most confident of any that overlap

@@ -161,7 +161,13 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   const m = 0.02 * S;
   const exclude: [number, number][] = [[-m, -m], [S + m, -m], [S + m, S + m], [-m, S + m]];
   const partial: PartialHole[] = [];
-  const found = await findHoles(grey, w, h, small, factor, H, familySizes(pattern), { method: opts.method ?? 'centroid', onPartial: (p) => partial.push(p), ...(square.source === 'detected' ? { exclude } : {}) });
+  // The candidate pass runs on the reduced image only while the smallest hole keeps 4.5 px across there; a bed with
+  // small holes for the photo's scale (M6 on a full sheet) is searched at a finer reduction, down to the full image.
+  const families = familySizes(pattern);
+  const holePx = Math.min(...families.map((f) => f.diameterMm)) * homographyScale(H, S / 2, S / 2);
+  const holeFactor = Math.max(1, Math.min(factor, Math.floor(holePx / 4.5)));
+  const holeSmall = holeFactor === factor ? small : reduce(grey, w, h, holeFactor);
+  const found = await findHoles(grey, w, h, holeSmall, holeFactor, H, families, { method: opts.method ?? 'centroid', onPartial: (p) => partial.push(p), ...(square.source === 'detected' ? { exclude } : {}) });
   // Holes seen in part are not measured: their rim, with a blur margin, meets the sheet or the photo's border, or is
   // cut over a long arc by something lying over it.
   // (only around a square found in the photo: corners marked by hand may lie on anything)

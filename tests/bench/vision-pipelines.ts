@@ -59,6 +59,9 @@ const QUICK = [0, 2, 4];
 
 interface PipelineResult {
   ms: number;
+  /** CPU time of the run (this process, all threads), ms: less sensitive than wall time to other load on the machine. */
+  cpuMs: number;
+  timingsMs: Record<string, number>;
   scaleErrPpm: [number, number];
   scaleSigmaPpm: [number, number];
   squarenessErrDeg: number;
@@ -91,7 +94,7 @@ function sheetGapMm(truth: Truth, x: number, y: number, rMm: number): number {
   return Math.hypot(ex, ey) - rMm;
 }
 
-function measure(report: Report, truth: Truth, points: Parameters<typeof scoreDetections>[0], ms: number): PipelineResult {
+function measure(report: Report, truth: Truth, points: Parameters<typeof scoreDetections>[0], ms: number, cpuMs: number, timingsMs: Record<string, number>): PipelineResult {
   const l = report.lattice;
   const u = l.uncertainty;
   const s = scoreDetections(points, truth);
@@ -131,7 +134,7 @@ function measure(report: Report, truth: Truth, points: Parameters<typeof scoreDe
   for (const p of report.positions) if (p.hiddenBy) hiddenReported[p.hiddenBy] = (hiddenReported[p.hiddenBy] ?? 0) + 1;
   const ppm = (x: number | null | undefined) => (x === null || x === undefined ? NaN : Math.round(x * 1e6 * 10) / 10);
   return {
-    ms: Math.round(ms),
+    ms: Math.round(ms), cpuMs: Math.round(cpuMs), timingsMs,
     scalePpm: [ppm(l.scaleX! - 1), ppm(l.scaleY! - 1)],
     scaleErrPpm: [ppm(l.scaleX! - 1 - truth.errors.scaleX), ppm(l.scaleY! - 1 - truth.errors.scaleY)],
     scaleSigmaPpm: [ppm(u.scaleX), ppm(u.scaleY)],
@@ -164,21 +167,28 @@ export async function runPipelines(args: readonly string[]): Promise<void> {
   const scenes: Record<string, unknown>[] = [];
   const per: Record<CameraPipeline, PipelineResult[]> = { linear: [], phone: [], encoded: [] };
   const times: number[] = [];
+  const cpuTimes: number[] = [];
   for (const sc of chosen) {
     const { dir, truth, renderMs } = await render(sc, cache);
     const res = {} as Record<CameraPipeline, PipelineResult>;
     for (const cam of CAMERA_PIPELINES) {
       const bytes = readFileSync(path.join(dir, `${cam}.jpg`));
       let t = performance.now();
+      let c = process.cpuUsage();
       let out = await analyzeImage(bytes, sc.pattern, { referenceMm: truth.target.sizeMm });
       let ms = performance.now() - t;
+      let cu = process.cpuUsage(c);
       if (!quick) {
         t = performance.now();
+        c = process.cpuUsage();
         out = await analyzeImage(bytes, sc.pattern, { referenceMm: truth.target.sizeMm });
         ms = performance.now() - t;
+        cu = process.cpuUsage(c);
       }
+      const cpuMs = (cu.user + cu.system) / 1000;
       times.push(ms);
-      res[cam] = measure(out.report, truth, out.points, ms);
+      cpuTimes.push(cpuMs);
+      res[cam] = measure(out.report, truth, out.points, ms, cpuMs, out.meta.timingsMs);
       per[cam].push(res[cam]);
     }
     const vals = CAMERA_PIPELINES.map((c) => res[c]);
@@ -207,6 +217,7 @@ export async function runPipelines(args: readonly string[]): Promise<void> {
     }];
   }));
   times.sort((a, b) => a - b);
+  cpuTimes.sort((a, b) => a - b);
   const spreads = scenes.map((s) => s.spread as { scalePpm: number; squarenessDeg: number });
   const medianMs = Math.round(times[Math.floor(times.length / 2)]!);
   const worstSpread = Math.max(...spreads.map((s) => s.scalePpm));
@@ -216,7 +227,7 @@ export async function runPipelines(args: readonly string[]): Promise<void> {
     bench: 'vision', part: 'pipelines', quick, image: `${W} × ${H}`, cores: os.cpus().length, loadAverage: os.loadavg().map((x) => +x.toFixed(2)),
     summary: {
       perPipeline: summary,
-      worstScaleSpreadPpm: worstSpread, worstSquarenessSpreadDeg: worstSqSpread, medianPhotoToReportMs: medianMs,
+      worstScaleSpreadPpm: worstSpread, worstSquarenessSpreadDeg: worstSqSpread, medianPhotoToReportMs: medianMs, medianPhotoToReportCpuMs: Math.round(cpuTimes[Math.floor(cpuTimes.length / 2)]!),
       targets: {
         scaleErrAtMost300Ppm: all.every((p) => p.worstScaleErrPpm <= 300),
         scaleSpreadAtMost150Ppm: worstSpread <= 150,
