@@ -33,6 +33,7 @@ import type { CheckDetail } from '@/lib/services/check-views';
 import { FigureCards, VerdictBox } from './VerdictBox';
 import { PhotoNote } from './PhotoNote';
 import { photoNote } from '@/lib/report/photo-note';
+import { fitFamilies } from '@/lib/report/method-note';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
 export type { CheckDetail };
@@ -69,6 +70,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
     title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${MARK_WORD[p.verdict]}` : `${p.label}: ${MARK_WORD[positionMark(p)].toLowerCase()}${outOfSightWords(p) ? ` (${outOfSightWords(p)})` : ''}`,
   })), [report, unit]);
   const rows = useMemo(() => positionRows(report), [report]);
+  const methodFamilies = useMemo(() => fitFamilies(detail.pattern), [detail.pattern]);
   const counts = useMemo(() => reportCounts(report), [report]);
   const overlay = useMemo(() => (detail.detections ? photoOverlay(report, detail.detections) : null), [report, detail.detections]);
   const photoMarks: PhotoMark[] = useMemo(() => {
@@ -169,7 +171,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
           <p>The photo is not available for this check.{detail.photo.reason ? ` ${detail.photo.reason}` : ''}</p>
         )}
       </section>
-      <MethodNote pattern={detail.pattern} unit={unit} />
+      <MethodNote families={methodFamilies} unit={unit} />
       <div className="no-print">
         {/* comments on the check or one position; deleting is on the share-and-discuss page */}
         <CommentsPanel checkId={id} meId="" isOwner={false} positionLabels={report.positions.map((p) => p.label)} onSelectPosition={setSelected} />

@@ -1,8 +1,8 @@
 'use client';
 /**
  * The report as a stranger with a share link sees it, below the verdict (SharedVerdict, drawn by the server):
- * figures, the deviation map, the positions and panels, the lattice figures and the comments — built from the
- * report helper's own pieces — and nothing of the photo or the rest of the workshop (the server sends none of
+ * figures, the deviation map, the positions and panels, the lattice figures, the method note and the comments —
+ * built from the report helper's own pieces — and nothing of the photo or the rest of the workshop (the server sends none of
  * it: lib/services/share-report.ts).
  */
 import '@/components/report/report.css';
@@ -20,6 +20,8 @@ import { POSITION_MARKS } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { arrowScaleWords, MARK_WORD, positionMark, reportCounts } from '@/lib/report/words';
 import { MarkChip } from '@/components/report/Mark';
+import { MethodNote } from '@/components/report/MethodNote';
+import type { FitFamily } from '@/lib/report/method-note';
 
 export interface SharedReportData {
   bedName: string;
@@ -27,6 +29,8 @@ export interface SharedReportData {
   checkedAt: number | null;
   expiresAt: number;
   report: Report;
+  /** The pattern's families for the method note; null when the pattern is gone. */
+  fits: FitFamily[] | null;
   comments: CommentItem[];
 }
 
@@ -72,6 +76,7 @@ export function SharedReport({ data, token, unit }: { data: SharedReportData; to
         <LatticeFigures report={r} unit={unit} bedWidthMm={null} bedHeightMm={null} />
         <DistancesTable report={r} unit={unit} />
       </section>
+      <MethodNote families={data.fits} unit={unit} />
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-comments-h">
         <h2 id="shared-comments-h" className="text-xl font-bold">Comments</h2>
         <CommentList comments={data.comments} onSelectPosition={setSelected} />

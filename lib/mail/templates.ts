@@ -68,6 +68,8 @@ export const ReportMailInputSchema = z.object({
   figures: z.string().max(1000).nullish(),
   /** The verdict's mark as a small image (PNG), shown before the verdict word. */
   verdictMark: z.custom<Uint8Array>((v) => v instanceof Uint8Array, 'the mark must be bytes (Buffer or Uint8Array)').nullish(),
+  /** The report's method note (lib/report/method-note.ts): its heading and its lines, shown small at the end. */
+  methodNote: z.object({ heading: z.string().min(1).max(200), lines: z.array(z.string().max(2000)).max(20) }).nullish(),
   /** A short note from the sender. */
   note: z.string().max(2000).nullish(),
   /** The deviation map, shown inline (PNG preferred: many mail readers do not show SVG). */
@@ -108,6 +110,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     ...(expires ? [expires] : []),
     '',
     i.map ? 'The deviation map is attached as an image.' : '',
+    ...(i.methodNote ? ['', `${i.methodNote.heading}:`, ...i.methodNote.lines.map((l) => `  ${l}`), ''] : []),
     '-- ',
     `${APP_NAME} checks CNC fixture beds from one photo. You get this message because ${i.senderName} entered your address; nothing else was shared with you.`,
   ].filter((l, k, all) => !(l === '' && all[k - 1] === '')).join('\n');
@@ -129,6 +132,9 @@ export function reportMail(input: ReportMailInput): MailContent {
     button(url, 'Open the report'),
     expires ? `<p style="font-size:13px;color:#5b6663">${escapeHtml(expires)} No account is needed; the page is read only.</p>` : '<p style="font-size:13px;color:#5b6663">No account is needed; the page is read only.</p>',
     mapHtml,
+    i.methodNote
+      ? `<p style="margin:16px 0 4px;font-size:13px;font-weight:bold">${escapeHtml(i.methodNote.heading)}</p>${i.methodNote.lines.map((l) => `<p style="margin:0 0 4px;font-size:12px;color:#5b6663">${escapeHtml(l)}</p>`).join('')}`
+      : '',
   ].join('\n');
   const html = layout({
     title: subject,

@@ -2,7 +2,7 @@
  * The report of a check as a PDF (pdf-lib, standard Helvetica): verdict sentence, summary and lattice figures,
  * a deviation map drawn with vectors and the report's own marks (lib/report/palette.ts), its arrow scale the one of
  * lib/report/map-scale.ts, the panel table with the moves that correct them, the table of positions
- * out or marginal, and comments.
+ * out or marginal, the method note (lib/report/method-note.ts, as on every surface) and comments.
  *
  * Frames: the report is in the bed frame (mm, origin front-left, +X right, +Y away from the operator); the map
  * keeps that orientation on the page (PDF points, origin bottom-left, +y up), so the operator's side is at the
@@ -20,6 +20,7 @@ import { formatLength } from '@/lib/report/units';
 import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
 import { photoNote } from '@/lib/report/photo-note';
+import { methodNote, methodNoteLines, type FitFamily } from '@/lib/report/method-note';
 import { mmToPt, paperSizePt, type Paper } from './units';
 
 export interface ReportPdfComment {
@@ -44,6 +45,11 @@ export interface ReportPdfOptions {
   maxPositionRows?: number;
   /** The photo's problems in words, for a report that no longer carries its photo (a shared one); else from report.photo. */
   photoNote?: string | null;
+  /**
+   * The pattern's families for the method note (lib/report/method-note.ts); null when the pattern is gone. Absent:
+   * the note says only how the fit tables were checked and how the bands are drawn.
+   */
+  fits?: FitFamily[] | null;
 }
 
 const MAP_GROUND = rgb(0.97, 0.97, 0.95);
@@ -368,6 +374,11 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   for (const [words, labels] of byReason) {
     f.paragraph(`${MARK_WORD.hidden}, ${words} (${labels.length}): ${labels.slice(0, 60).join(', ')}${labels.length > 60 ? ', …' : ''}`, { size: 8, color: MUTED });
   }
+
+  // How the tolerances were set, as on every surface
+  const method = methodNote(opts.fits ?? null, unit);
+  f.heading(method.heading);
+  for (const line of opts.fits === undefined ? [method.note] : methodNoteLines(method)) f.paragraph(line, { size: 8.5 });
 
   // Comments
   if (opts.comments?.length) {

@@ -14,6 +14,7 @@ import { parseStoredJson } from '@/lib/stored-json';
 import { patternToMm, type PatternMm } from '@/lib/geometry/units';
 import { AppError, notFound } from '@/lib/http/errors';
 import { withOutline } from '@/lib/report/map';
+import { fitFamilies, type FitFamily } from '@/lib/report/method-note';
 
 export interface FinishedCheck {
   check: CheckRow;
@@ -40,6 +41,12 @@ export async function withStoredOutline(db: Db, check: Pick<CheckRow, 'bedId' | 
   if (report.pattern.bed) return report;
   const pattern = parseStoredJson((await getPattern(db, check.bedId, check.patternId))?.json, PatternSchema);
   return pattern ? withOutline(report, patternToMm(pattern)) : report;
+}
+
+/** The families of the pattern the check was measured against, for the method note (lib/report/method-note.ts); null when the pattern is gone. */
+export async function loadFitFamilies(db: Db, check: Pick<CheckRow, 'bedId' | 'patternId'>): Promise<FitFamily[] | null> {
+  const pattern = parseStoredJson((await getPattern(db, check.bedId, check.patternId))?.json, PatternSchema);
+  return fitFamilies(pattern ? patternToMm(pattern) : null);
 }
 
 /** The pattern (in mm) the check was measured against. */

@@ -2,8 +2,8 @@
  * Share links: a read-only link to one check's report for someone without an account. The token is 32 random
  * bytes (256 bits) in base64url; only its SHA-256 is stored, so the link is shown once, when made. A link
  * expires (1–90 days) and can be revoked; each opening counts a view. Through a link one sees the report
- * (without the photo's data: see publicReport), the bed's name, the check's title and time, and the check's
- * comments — nothing else of the workshop.
+ * (without the photo's data: see publicReport), the bed's name, the check's title and time, the fits of its
+ * pattern's families (for the method note) and the check's comments — nothing else of the workshop.
  *
  * "Send to a helper": the link and the report mail (verdict, the sender's note, the deviation map) are
  * written in one transaction, so the mail exists exactly when the link does.
@@ -25,7 +25,8 @@ import { queueMail, reportMailFromReport } from '@/lib/mail';
 import { reportAt } from '@/lib/checks/report-cache';
 import { authorize, type Actor } from './actor';
 import { EmailSchema } from './auth';
-import { loadFinishedCheck, publicReport, withStoredOutline } from './share-report';
+import type { FitFamily } from '@/lib/report/method-note';
+import { loadFinishedCheck, loadFitFamilies, publicReport, withStoredOutline } from './share-report';
 
 export const SHARE_DEFAULT_DAYS = 14;
 export const SHARE_MAX_DAYS = 90;
@@ -75,7 +76,7 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
   authorize(actor, 'share:manage');
   const limit = await hitRateLimit(db, `share-send:${actor.user.id}`, 3600e3);
   if (limit.count > SEND_LIMIT_PER_HOUR) throw new AppError('rate_limited', 429, `You have sent ${SEND_LIMIT_PER_HOUR} reports in the last hour; try again later.`);
-  const workshop = await getWorkshop(db, actor.workshopId);
+  const [workshop, fits] = await Promise.all([getWorkshop(db, actor.workshopId), loadFitFamilies(db, check)]);
   const token = newShareToken();
   // the mail and the page it links to write lengths in the sender's unit
   const units = actor.user.units;
@@ -84,6 +85,7 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
   const mail = await reportMailFromReport({
     report: publicReport(report),
     units,
+    fits,
     workshopName: workshop?.name ?? 'Workshop',
     senderName: actor.user.name,
     bedName,
@@ -131,6 +133,8 @@ export interface SharedReportView {
   report: Report;
   /** The photo's problems in words, when it had any (lib/report/photo-note.ts): names only, no figure of the photo. */
   photoNote: string | null;
+  /** The pattern's families for the method note (names, fits, hole diameters: the bed's, not the photo's); null when the pattern is gone. */
+  fits: FitFamily[] | null;
   comments: SharedComment[];
 }
 
@@ -162,12 +166,13 @@ export async function openSharedReport(db: Db, token: string, opts: { countView?
   } catch {
     throw unknown();
   }
-  const [comments] = await Promise.all([
+  const [comments, fits] = await Promise.all([
     opts.comments === false ? [] : listComments(db, row.workshopId, row.checkId),
+    loadFitFamilies(db, row),
     opts.countView ? q.recordShareLinkView(db, row.linkId, now) : undefined,
   ]);
   return {
-    bedName: row.bedName ?? 'Bed', checkTitle: row.title, checkedAt: row.finishedAt ?? row.createdAt, expiresAt: row.expiresAt, report, photoNote: note,
+    bedName: row.bedName ?? 'Bed', checkTitle: row.title, checkedAt: row.finishedAt ?? row.createdAt, expiresAt: row.expiresAt, report, photoNote: note, fits,
     comments: comments.map((c) => ({ id: c.id, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt, authorName: c.authorName })),
   };
 }

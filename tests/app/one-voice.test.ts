@@ -3,7 +3,7 @@
  * the PDF (its page content read back from the bytes, tests/pdf/pdf-reader.ts), the report mail (its HTML and
  * text as queued, and its inline map image decoded by sharp) and the share link (what the shared page renders
  * from the link's JSON). All four show the same verdict word and mark, the same headline, the same counts, the
- * same mark at each position and the same arrow scale. The counts are checked against the positions themselves
+ * same mark at each position, the same arrow scale and the same method note (how the tolerances were set). The counts are checked against the positions themselves
  * (a position not seen is one the photo could show; hidden ones are under the sheet, covered or cut).
  */
 import { createElement, type ReactElement } from 'react';
@@ -11,7 +11,7 @@ import { renderToStaticMarkup } from 'react-dom/server';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import sharp from 'sharp';
 import { desc, eq } from 'drizzle-orm';
-import { PDFDocument } from 'pdf-lib';
+import { PDFDocument, StandardFonts } from 'pdf-lib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { GET as detailGet } from '@/app/api/checks/[id]/detail/route';
 import { GET as reportGet } from '@/app/api/checks/[id]/report/route';
@@ -23,6 +23,7 @@ import { SharedReport, type SharedReportData } from '@/components/share/SharedRe
 import { SharedVerdict } from '@/components/share/SharedVerdict';
 import { outgoingMail, users } from '@/db/schema';
 import { escapeHtml } from '@/lib/mail/html';
+import { drawable } from '@/lib/pdf/text';
 import { startSession } from '@/lib/auth/session';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import type { Report } from '@/lib/geometry/contract';
@@ -78,7 +79,10 @@ function readHtml(html: string) {
   const legend = Object.fromEntries([...legendHtml.matchAll(/<span class="inline-flex[^"]*" data-mark="([a-z]+)">[\s\S]*?<\/svg><span>([^<]+)<\/span>/g)].map((m) => [m[1], unescape(m[2]!)]));
   const arrows = byTestId(html, 'arrow-scale');
   const verdictMark = html.match(/aria-label="Verdict" data-verdict="[a-z]+" data-mark="([a-z]+)"/)?.[1];
-  return { verdictWord, headline, cards, marks, legend, arrows, verdictMark };
+  // the method note: its heading, then each list item and paragraph, in order
+  const noteHtml = html.match(/data-testid="method-note"[^>]*>([\s\S]*?)<\/section>/)?.[1] ?? '';
+  const method = [...noteHtml.matchAll(/<(h2|li|p)[^>]*>([\s\S]*?)<\/\1>/g)].map((m) => unescape(m[2]!.replace(/<[^>]+>/g, '')));
+  return { verdictWord, headline, cards, marks, legend, arrows, verdictMark, method };
 }
 
 function render(el: ReactElement): string {
@@ -87,7 +91,7 @@ function render(el: ReactElement): string {
 }
 
 describe('one check on screen, as PDF, in the mail and through a share link', () => {
-  it('shows the same marks, words, counts and arrow scale on all four', async () => {
+  it('shows the same marks, words, counts, arrow scale and method note on all four', async () => {
     // --- on screen: the report page from its API answers
     const report = (await call(reportGet, { cookie, params: { id: checkId } })).json as Report;
     const detail = (await call(detailGet, { cookie, params: { id: checkId } })).json as CheckDetail;
@@ -138,6 +142,21 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
       expect(s.legend).toEqual(legend);
       expect(s.arrows).toBe(scale);
     }
+
+    // the method note, the same on all four: ISO 273 medium clearance for M8 is a 9.0 mm hole, so (9.0 − 8)/2 =
+    // 0.50 mm radial; the band is √(−2 ln 0.05) ≈ 2.45 σ (the 95 % radius of a 2-D normal, Rayleigh law)
+    const method = web.method;
+    expect(method[0]).toBe('How the tolerances were set');
+    expect(method[1]).toContain('M8 through a medium clearance hole of 9.00 mm (ISO 273), (hole − fastener)/2 = 0.50 mm');
+    expect(method.at(-1)).toMatch(/\d+ of \d+ rows of the fit tables .* 2\.45 × the per-axis standard uncertainty σ\.$/);
+    expect(shared.method).toEqual(method);
+    const mailText = mail!.text.replace(/\s+/g, ' ');
+    expect(mailText).toContain(`${method[0]}: ${method.slice(1).join(' ')}`);
+    for (const line of method) expect(mail!.html).toContain(escapeHtml(line));
+    // the PDF's standard Helvetica spells what it cannot encode in ASCII (− as -, σ as sigma)
+    const helvetica = await (await PDFDocument.create()).embedFont(StandardFonts.Helvetica);
+    expect(pdfText.replace(/\s+/g, ' ')).toContain(drawable(helvetica, method.join(' ')));
+    expect(pdfText).not.toContain('?');
 
     // the mail: its words and counts, and its map
     expect(mail!.subject).toContain(`(${word.toLowerCase()})`);

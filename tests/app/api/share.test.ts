@@ -104,7 +104,7 @@ describe('share links', () => {
     const second = await openShared(token);
     const { comments, ...rest } = second.json as Record<string, unknown>;
     expect(second.json).toEqual(JSON.parse(JSON.stringify(await openSharedReport(t.db, token))));
-    expect(Object.keys(rest).sort()).toEqual(['bedName', 'checkTitle', 'checkedAt', 'expiresAt', 'photoNote', 'report']);
+    expect(Object.keys(rest).sort()).toEqual(['bedName', 'checkTitle', 'checkedAt', 'expiresAt', 'fits', 'photoNote', 'report']);
     expect(comments).toHaveLength(1);
     // the page draws only the verdict: it asks for no comments and gets none
     expect((await openSharedReport(t.db, token, { comments: false })).comments).toEqual([]);

@@ -9,7 +9,7 @@ const Query = z.object({ paper: z.enum(['a4', 'letter']).default('a4'), units: z
 export const GET = route({ auth: 'none', params: z.object({ token: z.string().max(200) }), query: Query }, async ({ db, params, query }) => {
   const v = await openSharedReport(db, params.token);
   const bytes = await renderReportPdf(v.report, {
-    paper: query.paper, units: query.units, workshopName: 'Shared report', bedName: v.bedName, checkTitle: v.checkTitle, checkedAt: v.checkedAt, photoNote: v.photoNote,
+    paper: query.paper, units: query.units, workshopName: 'Shared report', bedName: v.bedName, checkTitle: v.checkTitle, checkedAt: v.checkedAt, photoNote: v.photoNote, fits: v.fits,
     comments: v.comments.map((c) => ({ author: c.authorName, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt })),
   });
   return new Response(Buffer.from(bytes), { headers: { 'content-type': 'application/pdf', 'content-disposition': 'attachment; filename="gridproof-shared-report.pdf"', 'cache-control': 'no-store', 'referrer-policy': 'no-referrer' } });
