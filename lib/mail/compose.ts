@@ -1,10 +1,11 @@
 /**
  * One call for the "send this report to a helper" use case: draws the deviation map of the report as PNG and
- * fills the report template with the report's own verdict word and mark, headline and figures, in the sender's
- * unit (lib/report: the same words, marks, arrow scale and method note as the report page, the PDF and the shared
- * page).
+ * fills the report template with the report's own verdict word and mark, headline, figures and measured distances,
+ * in the sender's unit (lib/report: the same words, marks, arrow scale and method note as the report page, the PDF
+ * and the shared page).
  */
 import type { Report } from '@/lib/geometry/contract';
+import { distanceSentence } from '@/lib/report/distances';
 import { headline, shapeLine } from '@/lib/report/headline';
 import { methodNote, methodNoteLines, type FitFamily } from '@/lib/report/method-note';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
@@ -12,7 +13,7 @@ import { BED_VERDICT_MARK, figureCards, reportCounts } from '@/lib/report/words'
 import { renderDeviationMapPng, renderMarkPng } from './map-image';
 import { reportMail, type MailContent, type ReportMailInput } from './templates';
 
-export type ReportMailFromReportInput = Omit<ReportMailInput, 'verdict' | 'verdictSentence' | 'shapeSentence' | 'figures' | 'verdictMark' | 'map' | 'methodNote'> & {
+export type ReportMailFromReportInput = Omit<ReportMailInput, 'verdict' | 'verdictSentence' | 'shapeSentence' | 'figures' | 'verdictMark' | 'map' | 'methodNote' | 'distances'> & {
   report: Report;
   /** The unit lengths are written in (default mm). */
   units?: LengthUnit;
@@ -34,7 +35,7 @@ export async function reportMailFromReport(input: ReportMailFromReportInput): Pr
   const figures = figureCards(reportCounts(report), formatLength(s.rmsMm, unit), formatLength(s.maxMm, unit)).map(([k, v]) => `${k} ${v}`).join(' · ');
   const method = methodNote(fits ?? null, unit);
   return reportMail({
-    ...rest, methodNote: { heading: method.heading, lines: fits === undefined ? [method.note] : methodNoteLines(method) }, verdict: s.verdict, verdictSentence: headline(report, unit), shapeSentence: shapeLine(report, unit), figures, verdictMark: mark,
+    ...rest, distances: (report.distances ?? []).map((d) => distanceSentence(d, (mm) => formatLength(mm, unit))), methodNote: { heading: method.heading, lines: fits === undefined ? [method.note] : methodNoteLines(method) }, verdict: s.verdict, verdictSentence: headline(report, unit), shapeSentence: shapeLine(report, unit), figures, verdictMark: mark,
     map: { content: png, contentType: 'image/png' },
   });
 }

@@ -66,6 +66,11 @@ export const ReportMailInputSchema = z.object({
   shapeSentence: z.string().max(1000).nullish(),
   /** The report's figures in one line, as its cards show them ("Measured 70 · Out 1 · …"). */
   figures: z.string().max(1000).nullish(),
+  /**
+   * The distances measured between positions given with the check, one sentence each (lib/report/distances.ts: given,
+   * photo with the square alone, after the fit, residual), in the reader's unit.
+   */
+  distances: z.array(z.string().min(1).max(1000)).max(50).nullish(),
   /** The verdict's mark as a small image (PNG), shown before the verdict word. */
   verdictMark: z.custom<Uint8Array>((v) => v instanceof Uint8Array, 'the mark must be bytes (Buffer or Uint8Array)').nullish(),
   /** The report's method note (lib/report/method-note.ts): its heading and its lines, shown small at the end. */
@@ -103,6 +108,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     `Verdict: ${verdictLine}`,
     ...(i.shapeSentence ? [i.shapeSentence] : []),
     ...(i.figures ? [i.figures] : []),
+    ...(i.distances?.length ? ['', 'Measured distances:', ...i.distances.map((l) => `  ${l}`)] : []),
     ...(i.note && i.note.trim() ? ['', `Note from ${i.senderName}:`, ...i.note.trim().split(/\r?\n/).map((l) => `  ${l}`)] : []),
     '',
     'Open the report (no account needed; read only):',
@@ -128,6 +134,9 @@ export function reportMail(input: ReportMailInput): MailContent {
     `<p style="margin-top:0"><strong>${escapeHtml(i.senderName)}</strong> of the workshop <strong>${escapeHtml(i.workshopName)}</strong> shared a bed check with you: ${escapeHtml(what)}.</p>`,
     `<p style="padding:10px 12px;border-left:4px solid ${colour};background:#f6f8f7">${markImg}<strong style="color:${colour}">${escapeHtml(word)}.</strong> ${escapeHtml(i.verdictSentence)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
     i.figures ? `<p style="font-size:14px">${escapeHtml(i.figures)}</p>` : '',
+    i.distances?.length
+      ? `<p style="margin:12px 0 4px;font-size:14px;font-weight:bold">Measured distances</p><ul style="margin:0;padding-left:20px;font-size:14px">${i.distances.map((l) => `<li>${escapeHtml(l)}</li>`).join('')}</ul>`
+      : '',
     noteHtml,
     button(url, 'Open the report'),
     expires ? `<p style="font-size:13px;color:#5b6663">${escapeHtml(expires)} No account is needed; the page is read only.</p>` : '<p style="font-size:13px;color:#5b6663">No account is needed; the page is read only.</p>',

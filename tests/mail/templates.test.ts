@@ -11,6 +11,10 @@ import { escapeHtml } from '@/lib/mail/html';
 import { reportMailFromReport } from '@/lib/mail/compose';
 import { headline } from '@/lib/report/headline';
 import { invitationMail, passwordResetMail, reportMail } from '@/lib/mail/templates';
+import { analyzePoints } from '@/lib/geometry/analyze';
+import { ReportSchema } from '@/lib/geometry/contract';
+import { presetById } from '@/lib/geometry/presets';
+import { makeScene } from '@/lib/geometry/synthetic';
 import { buildReport } from '../pdf/report-fixture';
 
 const hostile = '<img src=x onerror="alert(1)">\'`&';
@@ -80,6 +84,31 @@ describe('report mail from a report', () => {
     expect(inch.text).not.toMatch(/\d mm\b/);
     // PNG signature 89 50 4E 47 0D 0A 1A 0A (ISO/IEC 15948 §5.2) is "iVBORw0KGgo" in base64.
     expect(m.html).toContain('src="data:image/png;base64,iVBORw0KGgo');
+  });
+});
+
+describe('report mail with measured distances', () => {
+  it("lists each distance given with the check, the photo's length and the residual, in the sender's unit, in the text and the HTML", async () => {
+    const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
+    const scene = makeScene({ pattern, seed: 5, centreNoisePx: 0.05 });
+    // the preset's own 100 mm pitch: insert A1 to insert K1 is ten pitches, 1000 mm, given ± 0.3 mm as from a steel tape
+    const report = ReportSchema.parse(analyzePoints(scene.points, pattern, { distances: [{ from: 'insert A1', to: 'insert K1', mm: 1000, sigmaMm: 0.3 }] }));
+    const d = report.distances![0]!;
+    expect(d.used).toBe(true);
+    const mm = await reportMailFromReport({ report, workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
+    const sentence = `Measured distance insert A1 to insert K1: given 1000.00 mm ± 0.30 mm; photo with the square alone ${d.squareMm!.toFixed(2)} mm, after the fit ${d.fittedMm!.toFixed(2)} mm; given − fit `;
+    expect(mm.text).toContain('Measured distances:');
+    expect(mm.text).toContain(sentence);
+    expect(mm.text).toContain(`${Math.abs(d.residualSigmas!).toFixed(1)} times its uncertainty.`);
+    expect(mm.html).toContain(escapeHtml(sentence));
+    // 25.4 mm to the inch (exact by definition): 1000 mm = 39.3701 in, 0.3 mm = 0.0118 in
+    const inch = await reportMailFromReport({ report, units: 'in', workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
+    expect(inch.text).toContain(`given 39.3701 in ± 0.0118 in; photo with the square alone ${(d.squareMm! / 25.4).toFixed(4)} in, after the fit ${(d.fittedMm! / 25.4).toFixed(4)} in`);
+    expect(inch.html).toContain('given 39.3701 in ± 0.0118 in');
+    // a report without distances says nothing of them
+    const none = await reportMailFromReport({ report: { ...report, distances: undefined }, workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1' });
+    expect(none.text).not.toContain('Measured distance');
+    expect(none.html).not.toContain('Measured distance');
   });
 });
 
