@@ -100,6 +100,10 @@ export function reportMail(input: ReportMailInput): MailContent {
   const subject = oneLine(`${i.senderName} shared a bed check: ${what} (${word.toLowerCase()})`);
   // The sentence usually opens with the verdict itself; name it only when it does not.
   const verdictLine = /^(pass|passes|passed|marginal|fail|fails|failed)\b/i.test(i.verdictSentence.trim()) ? i.verdictSentence : `${word}. ${i.verdictSentence}`;
+  // the HTML sets the verdict word in its colour: the sentence's own opening word when it has one ("Fail: …"), else
+  // the word before it, so the word is never written twice
+  const lead = new RegExp(`^\\s*${word}:\\s*`).exec(i.verdictSentence);
+  const opening = lead ? { word: `${word}:`, rest: i.verdictSentence.slice(lead[0].length) } : { word: `${word}.`, rest: i.verdictSentence };
   const expires = i.linkExpiresAt ? `The link works until ${formatUtc(i.linkExpiresAt)}.` : '';
 
   const text = [
@@ -132,7 +136,7 @@ export function reportMail(input: ReportMailInput): MailContent {
     : '';
   const bodyHtml = [
     `<p style="margin-top:0"><strong>${escapeHtml(i.senderName)}</strong> of the workshop <strong>${escapeHtml(i.workshopName)}</strong> shared a bed check with you: ${escapeHtml(what)}.</p>`,
-    `<p style="padding:10px 12px;border-left:4px solid ${colour};background:#f6f8f7">${markImg}<strong style="color:${colour}">${escapeHtml(word)}.</strong> ${escapeHtml(i.verdictSentence)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
+    `<p style="padding:10px 12px;border-left:4px solid ${colour};background:#f6f8f7">${markImg}<strong style="color:${colour}">${escapeHtml(opening.word)}</strong> ${escapeHtml(opening.rest)}${i.shapeSentence ? `<br>${escapeHtml(i.shapeSentence)}` : ''}</p>`,
     i.figures ? `<p style="font-size:14px">${escapeHtml(i.figures)}</p>` : '',
     i.distances?.length
       ? `<p style="margin:12px 0 4px;font-size:14px;font-weight:bold">Measured distances</p><ul style="margin:0;padding-left:20px;font-size:14px">${i.distances.map((l) => `<li>${escapeHtml(l)}</li>`).join('')}</ul>`

@@ -120,6 +120,14 @@ describe('report mail with both verdicts', () => {
     expect(m.html).toContain(line);
     expect(m.text.indexOf(line)).toBeGreaterThan(m.text.indexOf('Verdict: '));
   });
+
+  it('writes the verdict word once in the HTML when the sentence opens with it, and before it when it does not', () => {
+    const opens = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'fail', verdictSentence: 'Fail: 3 of 66 measured positions are out of tolerance.' });
+    expect(opens.html).toContain('>Fail:</strong> 3 of 66 measured positions are out of tolerance.');
+    expect(opens.html.match(/\bFail\b/g)).toHaveLength(1);
+    const bare = reportMail({ workshopName: 'W', senderName: 'S', linkUrl: 'https://a.test/s/1', verdict: 'marginal', verdictSentence: 'two positions are too close to call.' });
+    expect(bare.html).toContain('>Marginal.</strong> two positions are too close to call.');
+  });
 });
 
 describe('mail settings from the environment', () => {
