@@ -75,11 +75,7 @@ export function BedMap(p: BedMapProps) {
       <rect x={X(p.originX)} y={Y(p.originY + p.heightMm)} width={p.widthMm} height={p.heightMm} fill="none" stroke="var(--ink)" strokeWidth={line * 1.5} />
       <text x={X(p.originX + p.widthMm / 2)} y={margin * 0.7} fontSize={font} textAnchor="middle" fill="var(--muted)">back of bed</text>
       {p.panels.map((q) => (
-        <g key={q.id}>
-          <rect x={X(q.x)} y={Y(q.y + q.height)} width={q.width} height={q.height} fill="none" stroke="var(--map-panel)" strokeWidth={line} strokeDasharray={`${line * 6} ${line * 3}`} />
-          <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 1.1} fontSize={font * 0.9} fill="var(--map-panel)" fontWeight={700} stroke="var(--map-ground)" strokeWidth={font * 0.25} paintOrder="stroke">{q.id}</text>
-          {q.note && <text x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 2.1} fontSize={font * 0.75} fill="var(--map-panel)" stroke="var(--map-ground)" strokeWidth={font * 0.25} paintOrder="stroke">{q.note}</text>}
-        </g>
+        <rect key={q.id} x={X(q.x)} y={Y(q.y + q.height)} width={q.width} height={q.height} fill="none" stroke="var(--map-panel)" strokeWidth={line} strokeDasharray={`${line * 6} ${line * 3}`} />
       ))}
       {p.items.map((it) => {
         const cx = X(it.x), cy = Y(it.y);
@@ -98,6 +94,14 @@ export function BedMap(p: BedMapProps) {
           </g>
         );
       })}
+      {/* panel names and moves on one line in the panel's back-left corner, drawn over the marks (with a halo of the
+          ground) so that a first row close to the panel's edge cannot hide them */}
+      {p.panels.map((q) => (
+        <text key={q.id} x={X(q.x) + font * 0.4} y={Y(q.y + q.height) + font * 1.1} fontSize={font * 0.9} fill="var(--map-panel)" stroke="var(--map-ground)" strokeWidth={font * 0.25} paintOrder="stroke" pointerEvents="none" data-panel={q.id}>
+          <tspan fontWeight={700}>{q.id}</tspan>
+          {q.note && <tspan fontSize={font * 0.75} dx={font * 0.5}>{q.note}</tspan>}
+        </text>
+      ))}
       <text x={X(p.originX + p.widthMm / 2)} y={fy - margin * 0.25} fontSize={font} textAnchor="middle" fill="var(--ink)" fontWeight={700}>front of bed (you stand here)</text>
       <g transform={`translate(${margin} ${fy + footer * 0.35})`}>
         <line x1={0} y1={0} x2={barLen} y2={0} stroke="var(--ink)" strokeWidth={line * 2} markerEnd="url(#gp-arrow-in)" />
