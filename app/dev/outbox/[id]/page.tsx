@@ -29,7 +29,7 @@ export default async function OutboxMessagePage({ params }: { params: Promise<{ 
           </section>
         )}
         <h2 className="text-xl font-bold">Plain text</h2>
-        <pre className="panel whitespace-pre-wrap font-mono text-sm" data-testid="outbox-text">{m.text}</pre>
+        <pre className="panel whitespace-pre-wrap wrap-anywhere font-mono text-sm" data-testid="outbox-text">{m.text}</pre>
       </div>
     </AppShell>
   );
