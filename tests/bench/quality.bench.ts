@@ -129,6 +129,13 @@ function cutThroughTarget(t: Truth): Degradation {
   return mid > w / 2 ? { crop: { x: 0, y: 0, width: mid, height: t.image.height } } : { crop: { x: mid, y: 0, width: w - mid, height: t.image.height } };
 }
 
+/** The frame cut to its 70 % nearest the target: the far part of the bed is outside, the target whole. */
+function cutAwayFromTarget(t: Truth): Degradation {
+  const cx = t.target.cornersPx.reduce((a, c) => a + c[0] / 4, 0);
+  const w = Math.round(0.7 * t.image.width);
+  return { crop: { x: cx > t.image.width / 2 ? t.image.width - w : 0, y: 0, width: w, height: t.image.height } };
+}
+
 function cases(big: { jpeg: Buffer; truth: Truth }): Case[] {
   const c: Case[] = [];
   const S = (name: string, options: Partial<SceneOptions>, expect: PhotoIssueCode[], deg?: Case['degrade']) => c.push({ name, pattern: SMALL, options: { ...SMALL_BASE, ...options }, expect, ...(deg ? { degrade: deg } : {}) });
@@ -150,6 +157,8 @@ function cases(big: { jpeg: Buffer; truth: Truth }): Case[] {
   S('25° tilt, turned 30°', { seed: 742, tiltDeg: 25, turnDeg: 30 }, ['tilted']);
   S('target cut by the border', { seed: 751 }, ['target-cut'], cutThroughTarget);
   S('target cut by the border, 6° tilt', { seed: 752, tiltDeg: 6 }, ['target-cut'], cutThroughTarget);
+  S('bed cut by the border', { seed: 761 }, ['bed-cut'], cutAwayFromTarget);
+  S('bed cut by the border, 8° tilt', { seed: 762, tiltDeg: 8 }, ['bed-cut'], cutAwayFromTarget);
   // a 12 MP photo of the 1.3 m bed resized as a messenger would: 8 mm inserts end up near 8 px, the target near 190 px
   c.push({ name: '12 MP downscaled to 1600 × 1200', pattern: LARGE, options: {}, photo: big, degrade: { downscale: { width: 1600, height: 1200 } }, expect: [] });
   return c;
