@@ -10,6 +10,10 @@
  * - The photo-quality stage (tests/bench/quality.bench.ts, in its own process): its time on a 12 MP photo, hits and
  *   false alarms per issue code on photos made bad on purpose, predicted against measured accuracy.
  *   `npm run bench:vision -- --part quality` runs that part alone, `--part scenes` the rest alone.
+ * - `--part pipelines [--quick]` (tests/bench/vision-pipelines.ts): eight seeded 12 MP scenes, each through the three
+ *   camera pipelines; per pipeline the scale and squareness errors, holes found, false matches, wrong clear
+ *   hole-to-hole verdicts and partly hidden holes measured, per scene the spread across pipelines, and the median
+ *   photo → report time, with the issue's targets met or not.
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
