@@ -24,7 +24,7 @@ export function PhotoQualityVerdict({ quality, phase, uploadHref }: { quality: P
           ))}
         </ul>
       )}
-      {bad && phase === 'settled' && <p className="text-sm font-bold">The figures below were measured on this photo anyway: they carry these problems, so take another photo before you act on them.</p>}
+      {/* settled: that the figures carry the problems is the report's own note (PhotoNote) just below, said once */}
       {bad && phase === 'running' && <p className="text-sm">It is measured anyway; you can take a better photo meanwhile.</p>}
       {bad && uploadHref && <Link href={uploadHref} className="btn btn-quiet self-start">Upload a better photo</Link>}
       <p className="text-sm"><Link className="underline" href="/guide#photo">How to take a good photo</Link></p>
