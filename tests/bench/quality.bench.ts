@@ -17,50 +17,20 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { PatternSchema, PHOTO_ISSUE_CODES, type Pattern, type PhotoIssueCode, type PhotoQuality, type Report } from '@/lib/geometry/contract';
+import { PatternSchema, PHOTO_ISSUE_CODES, type Pattern, type PhotoIssueCode, type PhotoQuality } from '@/lib/geometry/contract';
 import { analyzeImage, checkPhotoQuality } from '@/lib/vision';
 import { synthesize, type SceneOptions, type Truth } from '@/lib/vision/render';
 import { degrade, type Degradation } from '@/lib/vision/render/degrade';
 import { loadPhoto, reduce } from '@/lib/vision/load';
 import { LIMITS, measureQuality } from '@/lib/vision/quality';
 import { findSquare } from '@/lib/vision/square';
-import { scoreDetections } from '../vision/score';
+import { positionErrorAfterSimilarityMm, scoreDetections } from '../vision/score';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
 const load = (f: string): Pattern => PatternSchema.parse(JSON.parse(readFileSync(path.join(ROOT, 'tests/fixtures/vision', f), 'utf8')));
 const SMALL = load('bed-small.json');
 const LARGE = load('bed-large.json');
 const SMALL_BASE: Partial<SceneOptions> = { width: 1200, height: 900, supersample: 3 };
-
-/** RMS distance (2-D) of measured positions from the truth after the best least-squares similarity, mm. */
-export function positionErrorAfterSimilarityMm(report: Report, truth: Truth): { rmsMm: number; n: number } {
-  const P: [number, number, number, number][] = [];
-  for (const p of report.positions) {
-    if (!p.measured) continue;
-    const t = truth.holes.find((h) => h.family === p.family && h.col === p.col && h.row === p.row);
-    if (t?.visible) P.push([p.measured.x, p.measured.y, t.bed.x, t.bed.y]);
-  }
-  const n = P.length;
-  if (n < 3) return { rmsMm: NaN, n };
-  let ax = 0, ay = 0, bx = 0, by = 0;
-  for (const [x, y, u, v] of P) { ax += x; ay += y; bx += u; by += v; }
-  ax /= n; ay /= n; bx /= n; by /= n;
-  // u + i v ≈ (a + i b)(x + i y) + t, least squares (Umeyama 1991 without the reflection case)
-  let a = 0, b = 0, ss = 0;
-  for (const [x, y, u, v] of P) {
-    const px = x - ax, py = y - ay, qx = u - bx, qy = v - by;
-    a += px * qx + py * qy;
-    b += px * qy - py * qx;
-    ss += px * px + py * py;
-  }
-  a /= ss; b /= ss;
-  let se = 0;
-  for (const [x, y, u, v] of P) {
-    const px = x - ax, py = y - ay;
-    se += (a * px - b * py + bx - u) ** 2 + (b * px + a * py + by - v) ** 2;
-  }
-  return { rmsMm: Math.sqrt(se / n), n };
-}
 
 const median = (v: number[]) => { const s = [...v].sort((a, b) => a - b); return s.length ? s[Math.floor(s.length / 2)]! : NaN; };
 const rms = (v: number[]) => Math.sqrt(v.reduce((a, x) => a + x * x, 0) / v.length);

@@ -3,12 +3,13 @@
  * amount (lib/vision/render/degrade.ts). The truth of each check is the degradation we applied, not an output of
  * the stage: a defocus σ, a smear of known length and direction, a gain, a resize, a tilt, a crop through the target.
  * Sizes are 1.1 MP (the small bed) so that the file runs in well under a minute; the 12 MP timing and the
- * predicted-versus-measured accuracy over 24 seeded photos are in the bench (tests/bench/quality.bench.ts).
+ * predicted-versus-measured accuracy over 24 seeded photos are in the bench (tests/bench/quality.bench.ts); four here.
  */
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { PatternSchema, PhotoQualitySchema, type Pattern, type PhotoQuality } from '@/lib/geometry/contract';
-import { checkPhotoQuality } from '@/lib/vision';
+import { analyzeImage, checkPhotoQuality } from '@/lib/vision';
+import { positionErrorAfterSimilarityMm } from './score';
 import { synthesize, type SceneOptions, type Truth } from '@/lib/vision/render';
 import { degrade, type Degradation } from '@/lib/vision/render/degrade';
 import { SMALL_BED } from './scenes';
@@ -78,6 +79,26 @@ describe('photo-quality stage', () => {
     expect(codes(q)).toEqual(['underexposed']);
     expect(q.issues[0]!.advice).toMatch(/light/);
   }, 30_000);
+
+  it('predicts the position and scale 1σ within a factor 2 of the errors measured against the truth', async () => {
+    // truth: the renderer's true bed positions (after the best similarity, as the contract defines positionMm) and
+    // its injected scale; four photos pooled here, 24 in the bench
+    const pred: number[] = [], meas: number[] = [], predS: number[] = [], measS: number[] = [];
+    for (const [seed, blurPx, tiltDeg] of [[121, 0.5, 0], [122, 0.9, 6], [123, 1.2, 10], [124, 0.7, 14]] as const) {
+      const { jpeg, truth } = await synthesize(SMALL_BED, { ...base, seed, blurPx, tiltDeg });
+      const { report, meta } = await analyzeImage(jpeg, SMALL_BED, { referenceMm: truth.target.sizeMm });
+      pred.push(meta.quality.predicted!.positionMm);
+      meas.push(positionErrorAfterSimilarityMm(report, truth).rmsMm);
+      predS.push(meta.quality.predicted!.scalePpm, meta.quality.predicted!.scalePpm);
+      measS.push((report.lattice.scaleX! - 1 - truth.errors.scaleX) * 1e6, (report.lattice.scaleY! - 1 - truth.errors.scaleY) * 1e6);
+    }
+    const rms = (v: number[]) => Math.sqrt(v.reduce((a, x) => a + x * x, 0) / v.length);
+    expect(rms(pred) / rms(meas)).toBeGreaterThan(0.5);
+    expect(rms(pred) / rms(meas)).toBeLessThan(2);
+    // 8 scale errors (X and Y of 4 photos): an RMS of a few samples scatters, so a factor 3 either way
+    expect(rms(predS) / rms(measS)).toBeGreaterThan(1 / 3);
+    expect(rms(predS) / rms(measS)).toBeLessThan(3);
+  }, 120_000);
 
   it('calls holes too small in a 12 MP-framed bed downscaled to 1600 × 1200', async () => {
     // the large bed (1.3 m) rendered at 1800 × 1350 and resized as a messenger would: inserts of 8 mm end up near 8 px

@@ -74,3 +74,33 @@ export function positionErrorMm(report: Report, truth: Truth): { rmsMm: number; 
   }
   return { rmsMm: Math.sqrt(se / n), n };
 }
+
+/** RMS distance (2-D) of measured positions from the truth after the best least-squares similarity, mm. */
+export function positionErrorAfterSimilarityMm(report: Report, truth: Truth): { rmsMm: number; n: number } {
+  const P: [number, number, number, number][] = [];
+  for (const p of report.positions) {
+    if (!p.measured) continue;
+    const t = truth.holes.find((h) => h.family === p.family && h.col === p.col && h.row === p.row);
+    if (t?.visible) P.push([p.measured.x, p.measured.y, t.bed.x, t.bed.y]);
+  }
+  const n = P.length;
+  if (n < 3) return { rmsMm: NaN, n };
+  let ax = 0, ay = 0, bx = 0, by = 0;
+  for (const [x, y, u, v] of P) { ax += x; ay += y; bx += u; by += v; }
+  ax /= n; ay /= n; bx /= n; by /= n;
+  // u + i v ≈ (a + i b)(x + i y) + t, least squares (Umeyama 1991 without the reflection case)
+  let a = 0, b = 0, ss = 0;
+  for (const [x, y, u, v] of P) {
+    const px = x - ax, py = y - ay, qx = u - bx, qy = v - by;
+    a += px * qx + py * qy;
+    b += px * qy - py * qx;
+    ss += px * px + py * py;
+  }
+  a /= ss; b /= ss;
+  let se = 0;
+  for (const [x, y, u, v] of P) {
+    const px = x - ax, py = y - ay;
+    se += (a * px - b * py + bx - u) ** 2 + (b * px + a * py + by - v) ** 2;
+  }
+  return { rmsMm: Math.sqrt(se / n), n };
+}
