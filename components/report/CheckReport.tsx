@@ -16,7 +16,8 @@ import { MARK_ORDER, POSITION_MARKS } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
-import { arrowScaleWords, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
+import { arrowScaleWords, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, positionMark, viewCounts, type MapView } from '@/lib/report/words';
+import { reportMapItems } from '@/lib/report/map-items';
 import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
 import { BedMap, type MapItem } from './BedMap';
@@ -28,6 +29,7 @@ import { PanelsTable } from './PanelsTable';
 import { PhotoMarks, type PhotoMark } from './PhotoMarks';
 import { PositionsTable, positionRows } from './PositionsTable';
 import { ExaggerationSelect } from './ExaggerationSelect';
+import { MapViewSwitch } from './MapViewSwitch';
 import { MethodNote } from './MethodNote';
 import type { CheckDetail } from '@/lib/services/check-views';
 import { FigureCards, VerdictBox } from './VerdictBox';
@@ -56,6 +58,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
   const [unit, setUnit] = useState<LengthUnit>(detail.units);
   const [selected, setSelected] = useState<string | null>(null);
   const [exag, setExag] = useState<number | 'auto'>('auto');
+  const [view, setView] = useState<MapView>('bed');
   const id = detail.check.id;
   // a report stored before reports carried their bed's outline takes it from the check's pattern
   const report = useMemo(() => (stored.pattern.bed ? stored : withOutline(stored, detail.pattern)), [stored, detail.pattern]);
@@ -65,13 +68,12 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
   const autoX = useMemo(() => reportArrowScale(report), [report]);
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
-  const items: MapItem[] = useMemo(() => report.positions.map((p) => ({
-    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: positionMark(p),
-    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off (X ${formatLength(p.deviation.dx, unit, { signed: true })}, Y ${formatLength(p.deviation.dy, unit, { signed: true })}), allowed ${formatLength(p.toleranceMm, unit)} — ${MARK_WORD[p.verdict]}` : `${p.label}: ${MARK_WORD[positionMark(p)].toLowerCase()}${outOfSightWords(p) ? ` (${outOfSightWords(p)})` : ''}`,
-  })), [report, unit]);
+  const formView = useMemo(() => hasFormView(report), [report]);
+  const shown: MapView = formView ? view : 'bed';
+  const items: MapItem[] = useMemo(() => reportMapItems(report, shown, unit), [report, unit, shown]);
   const rows = useMemo(() => positionRows(report), [report]);
   const methodFamilies = useMemo(() => fitFamilies(detail.pattern), [detail.pattern]);
-  const counts = useMemo(() => reportCounts(report), [report]);
+  const counts = useMemo(() => viewCounts(report, shown), [report, shown]);
   const overlay = useMemo(() => (detail.detections ? photoOverlay(report, detail.detections) : null), [report, detail.detections]);
   const photoMarks: PhotoMark[] = useMemo(() => {
     if (!detail.detections || !overlay) return [];
@@ -121,8 +123,12 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
       <section className="panel flex flex-col gap-3" aria-labelledby="map-h">
         <div className="flex flex-wrap items-end justify-between gap-3">
           <h2 id="map-h" className="text-xl font-bold">Deviation map</h2>
-          <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} className="field no-print" />
+          <div className="no-print flex flex-wrap items-end gap-3">
+            {formView && <MapViewSwitch value={shown} onChange={setView} />}
+            <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} className="field" />
+          </div>
         </div>
+        {formView && <p className="text-sm text-muted" data-testid="map-view-meaning">{MAP_VIEW_WORD[shown]}: {MAP_VIEW_MEANING[shown]}.</p>}
         <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
           {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
           <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>
@@ -132,7 +138,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
           panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))}
           items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit}
           selected={selected} onSelect={setSelected}
-          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}, each showing a position's deviation.`}
+          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}, each showing a position's deviation${shown === 'form' ? ' hole to hole' : ''}.`}
         />
         {selected && <p className="font-bold" aria-live="polite">{items.find((i) => i.key === selected)?.title}</p>}
       </section>

@@ -17,8 +17,10 @@ import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { POSITION_MARKS } from '@/lib/report/palette';
-import { formatLength, type LengthUnit } from '@/lib/report/units';
-import { arrowScaleWords, MARK_WORD, positionMark, reportCounts } from '@/lib/report/words';
+import type { LengthUnit } from '@/lib/report/units';
+import { arrowScaleWords, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, viewCounts, type MapView } from '@/lib/report/words';
+import { reportMapItems } from '@/lib/report/map-items';
+import { MapViewSwitch } from '@/components/report/MapViewSwitch';
 import { MarkChip } from '@/components/report/Mark';
 import { MethodNote } from '@/components/report/MethodNote';
 import type { FitFamily } from '@/lib/report/method-note';
@@ -37,15 +39,15 @@ export interface SharedReportData {
 /** The shared report's body in `unit`, the unit of the page's headline (its switch reloads the page in the other). */
 export function SharedReport({ data, token, unit }: { data: SharedReportData; token: string; unit: LengthUnit }) {
   const [selected, setSelected] = useState<string | null>(null);
+  const [view, setView] = useState<MapView>('bed');
   const r = data.report;
   const geometry = useMemo(() => mapGeometry(r), [r]);
   const spacing = useMemo(() => nearestSpacing(r.positions), [r]);
   const exaggeration = useMemo(() => reportArrowScale(r), [r]);
-  const counts = useMemo(() => reportCounts(r), [r]);
-  const items: MapItem[] = useMemo(() => r.positions.map((p) => ({
-    key: p.label, label: p.label, x: p.nominal.x, y: p.nominal.y, dx: p.deviation?.dx ?? null, dy: p.deviation?.dy ?? null, mark: positionMark(p),
-    title: p.deviation ? `${p.label}: ${formatLength(p.deviation.r, unit)} off, allowed ${formatLength(p.toleranceMm, unit)} — ${MARK_WORD[p.verdict]}` : `${p.label}: ${MARK_WORD[positionMark(p)].toLowerCase()}`,
-  })), [r, unit]);
+  const formView = useMemo(() => hasFormView(r), [r]);
+  const shown: MapView = formView ? view : 'bed';
+  const counts = useMemo(() => viewCounts(r, shown), [r, shown]);
+  const items: MapItem[] = useMemo(() => reportMapItems(r, shown, unit), [r, unit, shown]);
   const rows = useMemo(() => positionRows(r), [r]);
   return (
     <div className="flex flex-col gap-6" data-testid="shared-report-body">
@@ -56,7 +58,11 @@ export function SharedReport({ data, token, unit }: { data: SharedReportData; to
         <a className="btn btn-quiet" href={`/api/shared/${token}/report.pdf?units=${unit}`} download>PDF</a>
       </div>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-map-h">
-        <h2 id="shared-map-h" className="text-xl font-bold">Deviation map</h2>
+        <div className="flex flex-wrap items-end justify-between gap-3">
+          <h2 id="shared-map-h" className="text-xl font-bold">Deviation map</h2>
+          {formView && <MapViewSwitch value={shown} onChange={setView} className="no-print" />}
+        </div>
+        {formView && <p className="text-sm text-muted" data-testid="map-view-meaning">{MAP_VIEW_WORD[shown]}: {MAP_VIEW_MEANING[shown]}.</p>}
         <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
           {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
           <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>

@@ -1,7 +1,8 @@
 /**
  * The report of a check as a PDF (pdf-lib, standard Helvetica): verdict sentence, summary and lattice figures,
  * a deviation map drawn with vectors and the report's own marks (lib/report/palette.ts), its arrow scale the one of
- * lib/report/map-scale.ts, the panel table with the moves that correct them, the table of positions
+ * lib/report/map-scale.ts, and a smaller second map hole to hole (the positions' form verdicts, same arrow scale) when
+ * the report has them, the panel table with the moves that correct them, the table of positions
  * out or marginal, the method note (lib/report/method-note.ts, as on every surface) and comments.
  *
  * Frames: the report is in the bed frame (mm, origin front-left, +X right, +Y away from the operator); the map
@@ -17,7 +18,7 @@ import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/report/palette';
 import { formatLength } from '@/lib/report/units';
-import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, MARK_WORD, outOfSightWords, positionMark, reportCounts } from '@/lib/report/words';
+import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, outOfSightWords, positionMark, reportCounts, viewCounts, viewDeviation, viewMark, type MapView } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
 import { photoNote } from '@/lib/report/photo-note';
 import { methodNote, methodNoteLines, type FitFamily } from '@/lib/report/method-note';
@@ -153,11 +154,17 @@ function drawMark(page: PDFPage, mark: Mark, x: number, y: number, r: number, gr
   }
 }
 
-function drawMap(f: Flow, report: Report, exaggeration: number) {
+/** Map scale (pt per mm of bed) in a box the text's width and at most `maxHeightPt` high. */
+function mapScale(f: Flow, report: Report, maxHeightPt: number): number {
+  const g = mapGeometry(report);
+  return Math.min(f.textWidth / g.widthMm, (maxHeightPt - 24) / g.heightMm);
+}
+
+/** The deviation map of `view` in a box at most `maxHeightPt` high, with its legend (the view's counts) and arrow scale. */
+function drawMap(f: Flow, report: Report, exaggeration: number, view: MapView, maxHeightPt: number) {
   const g = mapGeometry(report);
   const boxW = f.textWidth;
-  const boxH = Math.min(mmToPt(120), f.height * 0.42);
-  const scale = Math.min(boxW / g.widthMm, (boxH - 24) / g.heightMm);
+  const scale = mapScale(f, report, maxHeightPt);
   const drawW = g.widthMm * scale;
   const drawH = g.heightMm * scale;
   f.ensure(drawH + 40);
@@ -176,11 +183,12 @@ function drawMap(f: Flow, report: Report, exaggeration: number) {
   for (const q of report.positions) {
     const cx = px(q.nominal.x);
     const cy = py(q.nominal.y);
-    const mark = positionMark(q);
-    if (q.deviation && q.deviation.r * exaggeration * scale > r * 0.6) {
+    const mark = viewMark(q, view);
+    const d = viewDeviation(q, view);
+    if (d && d.r * exaggeration * scale > r * 0.6) {
       const colour = rgb(...hexToRgb01(MARKS[mark].colour));
-      const ex = cx + q.deviation.dx * scale * exaggeration;
-      const ey = cy + q.deviation.dy * scale * exaggeration;
+      const ex = cx + d.dx * scale * exaggeration;
+      const ey = cy + d.dy * scale * exaggeration;
       page.drawLine({ start: { x: cx, y: cy }, end: { x: ex, y: ey }, thickness: 0.6, color: colour });
       // Arrow head: two short strokes at ±25° from the shaft.
       const len = Math.hypot(ex - cx, ey - cy);
@@ -201,7 +209,7 @@ function drawMap(f: Flow, report: Report, exaggeration: number) {
   f.y = y0 - 12;
   // Legend: every mark a position can have, its name and count, then the arrow scale.
   f.y -= 10;
-  const counts = reportCounts(report);
+  const counts = viewCounts(report, view);
   let lx = f.left;
   for (const m of POSITION_MARKS) {
     drawMark(page, m, lx + 3.5, f.y + 3, 3, rgb(1, 1, 1));
@@ -291,8 +299,22 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   for (const line of figures) f.paragraph(line, { size: 9 });
 
   // Map
-  f.heading('Deviation map');
-  drawMap(f, report, reportArrowScale(report));
+  const exaggeration = reportArrowScale(report);
+  const mapH = Math.min(mmToPt(120), f.height * 0.42);
+  if (!hasFormView(report)) {
+    f.heading('Deviation map');
+    drawMap(f, report, exaggeration, 'bed', mapH);
+  } else {
+    // the whole bed, then hole to hole smaller: the same marks and the same arrow scale, so the arrows compare
+    for (const view of ['bed', 'form'] as const) {
+      const h = view === 'bed' ? mapH : mapH * 0.62;
+      // heading, note and map on one page
+      f.ensure(mapGeometry(report).heightMm * mapScale(f, report, h) + 90);
+      f.heading(`Deviation map: ${MAP_VIEW_WORD[view].toLowerCase()}`);
+      f.paragraph(`${MAP_VIEW_WORD[view]}: ${MAP_VIEW_MEANING[view]}.`, { size: 8, color: MUTED });
+      drawMap(f, report, exaggeration, view, h);
+    }
+  }
 
   // Panels
   if (report.panels.length) {

@@ -100,3 +100,46 @@ export function figureCards(c: ReportCounts, rms: string, largest: string): [str
 
 /** The arrow exaggeration as every legend prints it. */
 export const arrowScaleWords = (factor: number): string => `arrows × ${factor.toLocaleString('en')}`;
+
+/**
+ * Which deviation a map draws: each position's on the whole bed (after the best rigid placement of the whole
+ * lattice: the position's `deviation` and `verdict`), or hole to hole (its `form`: after the best affine placement,
+ * which takes the lattice's own size and squareness out — what a fixture spanning part of the bed feels).
+ */
+export type MapView = 'bed' | 'form';
+export const MAP_VIEWS: MapView[] = ['bed', 'form'];
+
+/** The name of each view: the same words as the tables' columns (web, PDF). */
+export const MAP_VIEW_WORD: Record<MapView, string> = { bed: 'Whole bed', form: 'Hole to hole' };
+
+/** What each view shows, in a machinist's words. */
+export const MAP_VIEW_MEANING: Record<MapView, string> = {
+  bed: 'each position against where the pattern puts it, the lattice placed as a whole: what a fixture spanning the bed feels',
+  form: "each position against its neighbours, the lattice's own size and squareness taken out: what a fixture spanning part of the bed feels",
+};
+
+/** True when the report carries hole-to-hole deviations (reports made before them do not). */
+export const hasFormView = (report: Pick<Report, 'positions'>): boolean => report.positions.some((p) => !!p.form);
+
+/** A position's mark in a view: hole to hole its form verdict when it has one, else as on the whole bed. */
+export function viewMark(p: Pick<ReportPosition, 'verdict' | 'hidden' | 'outOfView' | 'form'>, view: MapView): Mark {
+  return view === 'form' && p.form ? p.form.verdict : positionMark(p);
+}
+
+/** A position's deviation in a view (bed frame, mm): hole to hole its form deviation, else its rigid one; null when not measured. */
+export function viewDeviation(p: Pick<ReportPosition, 'deviation' | 'form'>, view: MapView): { dx: number; dy: number; r: number } | null {
+  if (view === 'form' && p.form) return { dx: p.form.dx, dy: p.form.dy, r: p.form.r };
+  return p.deviation;
+}
+
+/** The counts of a report's marks in a view (measured, not seen, hidden and unmatched are the same in both). */
+export function viewCounts(report: Pick<Report, 'positions' | 'unmatched'>, view: MapView): ReportCounts {
+  const c = reportCounts(report);
+  if (view === 'bed') return c;
+  const out = { ...c, in: 0, marginal: 0, out: 0 };
+  for (const p of report.positions) {
+    const m = viewMark(p, view);
+    if (m === 'in' || m === 'marginal' || m === 'out') out[m] += 1;
+  }
+  return out;
+}

@@ -82,7 +82,9 @@ function readHtml(html: string) {
   // the method note: its heading, then each list item and paragraph, in order
   const noteHtml = html.match(/data-testid="method-note"[^>]*>([\s\S]*?)<\/section>/)?.[1] ?? '';
   const method = [...noteHtml.matchAll(/<(h2|li|p)[^>]*>([\s\S]*?)<\/\1>/g)].map((m) => unescape(m[2]!.replace(/<[^>]+>/g, '')));
-  return { verdictWord, headline, cards, marks, legend, arrows, verdictMark, method };
+  // the map's switch between the whole bed and hole to hole (the report carries form verdicts)
+  const mapView = html.includes('data-testid="map-view"');
+  return { verdictWord, headline, cards, marks, legend, arrows, verdictMark, method, mapView };
 }
 
 function render(el: ReactElement): string {
@@ -141,6 +143,7 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
       expect(s.marks).toEqual(want.marks);
       expect(s.legend).toEqual(legend);
       expect(s.arrows).toBe(scale);
+      expect(s.mapView).toBe(true);
     }
 
     // the method note, the same on all four: ISO 273 medium clearance for M8 is a 9.0 mm hole, so (9.0 − 8)/2 =

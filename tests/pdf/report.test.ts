@@ -12,7 +12,8 @@ import { makeScene } from '@/lib/geometry/synthetic';
 import { renderReportPdf } from '@/lib/pdf/report';
 import { headline } from '@/lib/report/headline';
 import { hexToRgb01, MARKS } from '@/lib/report/palette';
-import { BED_VERDICT_WORD } from '@/lib/report/words';
+import { reportArrowScale } from '@/lib/report/map-scale';
+import { arrowScaleWords, BED_VERDICT_WORD, viewCounts } from '@/lib/report/words';
 import { bounds, readPage, type PageContent } from './pdf-reader';
 import { buildReport } from './report-fixture';
 
@@ -138,6 +139,42 @@ describe('report PDF from the measurement core', () => {
     const formFlagged = report.positions.filter((q) => q.form?.verdict === 'out' || q.form?.verdict === 'marginal');
     expect(formFlagged.length).toBeGreaterThan(0);
     for (const p of formFlagged) expect(text).toContain(p.label);
+  });
+
+  it('draws a second, smaller map hole to hole: each position by its form verdict, with the same arrow scale', async () => {
+    // a lattice stretched 0.8 mm per metre along X with one insert pushed 0.9 mm off: positions near the ends
+    // marginal on the whole bed, only the pushed insert off hole to hole (an affine placement takes a stretch out)
+    const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
+    const scene = makeScene({ pattern, seed: 5, scaleX: 1.0008, extraDeviation: new Map([[7, [0.9, 0.2]]]) });
+    const report = ReportSchema.parse(analyzePoints(scene.points, pattern));
+    const pages = await allPages(await renderReportPdf(report, { workshopName: 'North Bench', paper: 'a4' }));
+    const text = textOf(pages);
+    expect(text).toContain('Deviation map: whole bed');
+    expect(text).toContain('Deviation map: hole to hole');
+    // one arrow scale for the check, printed under both maps
+    expect(text.split(arrowScaleWords(reportArrowScale(report))).length - 1).toBe(2);
+    // the maps: their grounds (large filled rectangles of the map colour), and the filled marks inside each
+    const GROUND: [number, number, number] = [0.97, 0.97, 0.95];
+    const maps = pages.flatMap((pg, k) => pg.paths.filter((p) => same(p.fillRgb, GROUND)).map((p) => ({ page: k, box: bounds(p.subpaths.flat()) })));
+    expect(maps).toHaveLength(2);
+    const [bedMap, formMap] = maps as [(typeof maps)[number], (typeof maps)[number]];
+    expect(formMap.box.maxY - formMap.box.minY).toBeLessThan(0.7 * (bedMap.box.maxY - bedMap.box.minY));
+    const marksIn = (m: (typeof maps)[number], hex: string) => pages[m.page]!.paths.filter((p) => {
+      if (!p.fill || !same(p.fillRgb, hexToRgb01(hex))) return false;
+      const b = bounds(p.subpaths.flat());
+      return b.maxX - b.minX < 20 && b.minX >= m.box.minX && b.maxX <= m.box.maxX && b.minY >= m.box.minY && b.maxY <= m.box.maxY;
+    }).length;
+    const bed = viewCounts(report, 'bed');
+    const form = viewCounts(report, 'form');
+    expect(bed.marginal).toBeGreaterThan(10);
+    expect(form.marginal).toBe(0);
+    for (const m of ['in', 'marginal', 'out'] as const) {
+      expect(marksIn(bedMap, MARKS[m].colour), `whole bed ${m}`).toBe(bed[m]);
+      expect(marksIn(formMap, MARKS[m].colour), `hole to hole ${m}`).toBe(form[m]);
+    }
+    // each legend counts its own map's marks
+    expect(text).toContain(`Marginal ${bed.marginal} `);
+    expect(text).toContain(`Marginal ${form.marginal} `);
   });
 
   it('lists the measured distances given with the check, with their residuals', async () => {
