@@ -42,6 +42,11 @@ function grid(id: string, kind: Family['kind'], w: number, h: number, pitch: num
   return { id, kind, holeDiameter, origin: { x: sx.origin, y: sy.origin }, pitch: { x: pitch, y: pitch }, count: { x: sx.count, y: sy.count }, fit };
 }
 
+/** A pattern in mm of one family on a bed of `s`, cut into strips of `s.stripWidthMm` when given. */
+function metricPattern(name: string, s: PresetSize, family: Family): Pattern {
+  return PatternSchema.parse({ version: 1, name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [family], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+}
+
 export const PRESETS: Preset[] = [
   {
     id: 'in-3-quarter20-dogs',
@@ -67,7 +72,7 @@ export const PRESETS: Preset[] = [
     description: 'M6 threaded inserts on a 50 mm grid; ISO 273 medium clearance for the clamps.',
     size(s) {
       const f = grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 50, 6, { fastener: 'M6', clearance: 'medium' });
-      return PatternSchema.parse({ version: 1, name: this.name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [f], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+      return metricPattern(this.name, s, f);
     },
   },
   {
@@ -76,7 +81,7 @@ export const PRESETS: Preset[] = [
     description: '20 mm dog holes on a 96 mm grid; 20 mm dogs with 0.05 mm radial play (common practice for a snug dog).',
     size(s) {
       const f = grid('dogs', 'dog-hole', s.bedWidthMm, s.bedHeightMm, 96, 20, { pinDiameter: 19.9 });
-      return PatternSchema.parse({ version: 1, name: this.name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [f], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+      return metricPattern(this.name, s, f);
     },
   },
   {
@@ -85,7 +90,7 @@ export const PRESETS: Preset[] = [
     description: 'M8 threaded inserts on a 100 mm grid; ISO 273 medium clearance.',
     size(s) {
       const f = grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 100, 8, { fastener: 'M8', clearance: 'medium' });
-      return PatternSchema.parse({ version: 1, name: this.name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [f], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+      return metricPattern(this.name, s, f);
     },
   },
   {
@@ -95,7 +100,7 @@ export const PRESETS: Preset[] = [
     size(s) {
       const pitch = s.pitchMm ?? 50;
       const f = grid('holes', 'other', s.bedWidthMm, s.bedHeightMm, pitch, s.holeDiameterMm ?? 6, { toleranceMm: s.toleranceMm ?? 0.2 });
-      return PatternSchema.parse({ version: 1, name: this.name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [f], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+      return metricPattern(this.name, s, f);
     },
   },
 ];
