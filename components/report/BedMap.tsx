@@ -5,27 +5,12 @@
  * nominal place with an arrow for its displacement, multiplied by `exaggeration` so tenths of a mm show on a
  * metre-wide bed; the scale bar says what an arrow length means in real mm (or in).
  */
-import { POSITION_MARKS, type Mark } from '@/lib/report/palette';
+import { POSITION_MARKS } from '@/lib/report/palette';
+import type { MapItem } from '@/lib/report/map-items';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { niceFactor } from '@/lib/report/map';
 import { arrowScaleWords } from '@/lib/report/words';
 import { MarkShape, markVar } from './Mark';
-
-export interface MapItem {
-  key: string;
-  label: string;
-  /** Nominal place, bed mm. */
-  x: number;
-  y: number;
-  /** Displacement, mm (null when not measured). */
-  dx: number | null;
-  dy: number | null;
-  mark: Mark;
-  /** Text for hover/tap. */
-  title: string;
-  /** Drawn bolder (e.g. a change larger than its uncertainty). */
-  emphasis?: boolean;
-}
 
 export interface MapPanel { id: string; x: number; y: number; width: number; height: number; note?: string }
 

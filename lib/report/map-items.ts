@@ -8,7 +8,8 @@ import type { Report } from '@/lib/geometry/contract';
 import { formatLength, type LengthUnit } from './units';
 import { MARK_WORD, outOfSightWords, viewDeviation, viewMark, type Mark, type MapView } from './words';
 
-export interface ReportMapItem {
+/** One mark of a deviation map (web report, shared page, comparison). */
+export interface MapItem {
   key: string;
   label: string;
   /** Nominal place, bed mm. */
@@ -18,11 +19,14 @@ export interface ReportMapItem {
   dx: number | null;
   dy: number | null;
   mark: Mark;
+  /** Text for hover/tap. */
   title: string;
+  /** Drawn bolder (e.g. a change larger than its uncertainty). */
+  emphasis?: boolean;
 }
 
 /** One item per position of `report`, as `view` shows it, titles in `unit`. */
-export function reportMapItems(report: Pick<Report, 'positions'>, view: MapView, unit: LengthUnit): ReportMapItem[] {
+export function reportMapItems(report: Pick<Report, 'positions'>, view: MapView, unit: LengthUnit): MapItem[] {
   const len = (mm: number, signed = false) => formatLength(mm, unit, { signed });
   return report.positions.map((p) => {
     const d = viewDeviation(p, view);

@@ -1,7 +1,8 @@
 import { createElement } from 'react';
 import { renderToStaticMarkup } from 'react-dom/server';
 import { describe, expect, it } from 'vitest';
-import { BedMap, type MapItem } from '@/components/report/BedMap';
+import { BedMap } from '@/components/report/BedMap';
+import type { MapItem } from '@/lib/report/map-items';
 
 // A 600 × 400 mm plate of two 200 mm-deep strips, positions on 50 mm from 25 mm in: the first row of each strip
 // lies half a pitch from the strip's back edge, where its name and move are written.
