@@ -12,15 +12,16 @@ import { useQuery } from '@tanstack/react-query';
 import { api, errorText } from '@/components/api';
 import type { Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
-import { MARK_ORDER, POSITION_MARKS } from '@/lib/report/palette';
+import { MARK_ORDER } from '@/lib/report/palette';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
-import { arrowScaleWords, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, positionMark, viewCounts, type MapView } from '@/lib/report/words';
+import { arrowScaleWords, hasFormView, MARK_WORD, positionMark, type MapView } from '@/lib/report/words';
 import { reportMapItems } from '@/lib/report/map-items';
 import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
-import { BedMap, type MapItem } from './BedMap';
+import { BedMap } from './BedMap';
+import { MapLegend } from './MapLegend';
 import { DeviationHistogram } from './DeviationHistogram';
 import { DistancesTable } from './DistancesTable';
 import { LatticeFigures } from './LatticeFigures';
@@ -70,10 +71,9 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
   const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
   const formView = useMemo(() => hasFormView(report), [report]);
   const shown: MapView = formView ? view : 'bed';
-  const items: MapItem[] = useMemo(() => reportMapItems(report, shown, unit), [report, unit, shown]);
+  const items = useMemo(() => reportMapItems(report, shown, unit), [report, unit, shown]);
   const rows = useMemo(() => positionRows(report), [report]);
   const methodFamilies = useMemo(() => fitFamilies(detail.pattern), [detail.pattern]);
-  const counts = useMemo(() => viewCounts(report, shown), [report, shown]);
   const overlay = useMemo(() => (detail.detections ? photoOverlay(report, detail.detections) : null), [report, detail.detections]);
   const photoMarks: PhotoMark[] = useMemo(() => {
     if (!detail.detections || !overlay) return [];
@@ -128,11 +128,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
             <ExaggerationSelect value={exag} autoFactor={autoX} onChange={setExag} className="field" />
           </div>
         </div>
-        {formView && <p className="text-sm text-muted" data-testid="map-view-meaning">{MAP_VIEW_WORD[shown]}: {MAP_VIEW_MEANING[shown]}.</p>}
-        <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
-          {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
-          <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>
-        </div>
+        <MapLegend report={report} view={shown} formView={formView} exaggeration={exaggeration} />
         <BedMap
           widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY}
           panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))}

@@ -7,7 +7,8 @@
  */
 import '@/components/report/report.css';
 import { useMemo, useState } from 'react';
-import { BedMap, type MapItem } from '@/components/report/BedMap';
+import { BedMap } from '@/components/report/BedMap';
+import { MapLegend } from '@/components/report/MapLegend';
 import { DistancesTable } from '@/components/report/DistancesTable';
 import { LatticeFigures } from '@/components/report/LatticeFigures';
 import { PanelsTable } from '@/components/report/PanelsTable';
@@ -16,12 +17,10 @@ import { CommentList, type CommentItem } from '@/components/comments/Comments';
 import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
-import { POSITION_MARKS } from '@/lib/report/palette';
 import type { LengthUnit } from '@/lib/report/units';
-import { arrowScaleWords, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, viewCounts, type MapView } from '@/lib/report/words';
+import { hasFormView, type MapView } from '@/lib/report/words';
 import { reportMapItems } from '@/lib/report/map-items';
 import { MapViewSwitch } from '@/components/report/MapViewSwitch';
-import { MarkChip } from '@/components/report/Mark';
 import { MethodNote } from '@/components/report/MethodNote';
 import type { FitFamily } from '@/lib/report/method-note';
 
@@ -46,8 +45,7 @@ export function SharedReport({ data, token, unit }: { data: SharedReportData; to
   const exaggeration = useMemo(() => reportArrowScale(r), [r]);
   const formView = useMemo(() => hasFormView(r), [r]);
   const shown: MapView = formView ? view : 'bed';
-  const counts = useMemo(() => viewCounts(r, shown), [r, shown]);
-  const items: MapItem[] = useMemo(() => reportMapItems(r, shown, unit), [r, unit, shown]);
+  const items = useMemo(() => reportMapItems(r, shown, unit), [r, unit, shown]);
   const rows = useMemo(() => positionRows(r), [r]);
   return (
     <div className="flex flex-col gap-6" data-testid="shared-report-body">
@@ -62,11 +60,7 @@ export function SharedReport({ data, token, unit }: { data: SharedReportData; to
           <h2 id="shared-map-h" className="text-xl font-bold">Deviation map</h2>
           {formView && <MapViewSwitch value={shown} onChange={setView} className="no-print" />}
         </div>
-        {formView && <p className="text-sm text-muted" data-testid="map-view-meaning">{MAP_VIEW_WORD[shown]}: {MAP_VIEW_MEANING[shown]}.</p>}
-        <div className="flex flex-wrap gap-x-4 gap-y-1" aria-label="Legend">
-          {POSITION_MARKS.map((m) => <MarkChip key={m} mark={m} count={counts[m]} />)}
-          <span data-testid="arrow-scale">{arrowScaleWords(exaggeration)}</span>
-        </div>
+        <MapLegend report={r} view={shown} formView={formView} exaggeration={exaggeration} />
         <BedMap widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY} panels={geometry.panels} items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit} selected={selected} onSelect={setSelected} label="Map of the bed: each position's mark and how far it sits from where it should be" />
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-pos-h">
