@@ -9,7 +9,8 @@
  * image coordinates; corner 0 is the one by the orientation mark, or for a plain square the one nearest the
  * photo's bottom-left.
  */
-import { getCv, matFromGrey, type CvMat } from './cv';
+import { getCv, type CvMat } from './cv';
+import { forEachContour, withContourMats } from './contours';
 import { applyH, homographyFrom4 } from '@/lib/geometry/homography';
 import { DEFAULT_BIAS_PRIOR, fitSquareEdges, type SquareEdgeFit } from './edgefit';
 import { FRAME_FRACTION, MARK_CENTRE_FRACTION, MARK_FRACTION } from './target';
@@ -83,8 +84,8 @@ function squareLike(p: [number, number][]): boolean {
   return true;
 }
 
-/** Bilinear sample of a float grey plane (clamped at the border). */
-export function sampleGrey(g: Float32Array, w: number, h: number, x: number, y: number): number {
+/** Bilinear sample of a float grey plane (image px, clamped at the border), each neighbour first mapped by `decode`. */
+function bilinear(g: Float32Array, w: number, h: number, x: number, y: number, decode: (v: number) => number): number {
   const xf = x < 0 ? 0 : x > w - 1.001 ? w - 1.001 : x;
   const yf = y < 0 ? 0 : y > h - 1.001 ? h - 1.001 : y;
   const x0 = Math.floor(xf);
@@ -92,11 +93,18 @@ export function sampleGrey(g: Float32Array, w: number, h: number, x: number, y: 
   const fx = xf - x0;
   const fy = yf - y0;
   const i = y0 * w + x0;
-  const a = g[i]!;
-  const b = g[i + 1]!;
-  const c = g[i + w]!;
-  const d = g[i + w + 1]!;
+  const a = decode(g[i]!);
+  const b = decode(g[i + 1]!);
+  const c = decode(g[i + w]!);
+  const d = decode(g[i + w + 1]!);
   return a + (b - a) * fx + (c - a) * fy + (a - b - c + d) * fx * fy;
+}
+
+const asStored = (v: number) => v;
+
+/** Bilinear sample of a float grey plane (image px, clamped at the border), in the plane's own values. */
+export function sampleGrey(g: Float32Array, w: number, h: number, x: number, y: number): number {
+  return bilinear(g, w, h, x, y, asStored);
 }
 
 /** sRGB-encoded grey (0–255) → linear light (0–1): edges are located where the optics blurred them, in linear light. */
@@ -112,18 +120,7 @@ function toLinear(v: number): number {
 
 /** Bilinear sample in linear light (each neighbour decoded before interpolating). */
 function sampleLinear(g: Float32Array, w: number, h: number, x: number, y: number): number {
-  const xf = x < 0 ? 0 : x > w - 1.001 ? w - 1.001 : x;
-  const yf = y < 0 ? 0 : y > h - 1.001 ? h - 1.001 : y;
-  const x0 = Math.floor(xf);
-  const y0 = Math.floor(yf);
-  const fx = xf - x0;
-  const fy = yf - y0;
-  const i = y0 * w + x0;
-  const a = toLinear(g[i]!);
-  const b = toLinear(g[i + 1]!);
-  const c = toLinear(g[i + w]!);
-  const d = toLinear(g[i + w + 1]!);
-  return a + (b - a) * fx + (c - a) * fy + (a - b - c + d) * fx * fy;
+  return bilinear(g, w, h, x, y, toLinear);
 }
 
 /** A fitted edge line n·p = c (unit normal n, px) with what its precision needs. */
@@ -481,42 +478,27 @@ function meanInTarget(grey: Float32Array, w: number, h: number, c: Corners, cx: 
  */
 export async function findSquare(grey: Float32Array, w: number, h: number, small: { data: Uint8Array; width: number; height: number }, factor: number): Promise<SquareFound | null> {
   const { cv } = await getCv();
-  const src = matFromGrey(cv, small.data, small.width, small.height);
-  const bin = new cv.Mat() as CvMat;
-  const contours = new cv.MatVector() as { size(): number; get(i: number): CvMat; delete(): void };
-  const hier = new cv.Mat() as CvMat;
   const quads: Quad[] = [];
-  try {
+  withContourMats(cv, small.data, small.width, small.height, ({ src, bin, contours, hier }) => {
     const block = (Math.max(15, Math.round(Math.min(small.width, small.height) / 12)) | 1) >>> 0;
     cv.adaptiveThreshold(src, bin, 255, cv.ADAPTIVE_THRESH_MEAN_C, cv.THRESH_BINARY_INV, block, 12);
     cv.findContours(bin, contours, hier, cv.RETR_CCOMP, cv.CHAIN_APPROX_SIMPLE);
     const minArea = (Math.min(small.width, small.height) * 0.03) ** 2;
-    const n = contours.size();
     const hd = hier.data32S;
-    for (let i = 0; i < n; i++) {
-      const c = contours.get(i);
-      try {
-        const area = Math.abs(cv.contourArea(c) as number);
-        if (area < minArea) continue;
-        const peri = cv.arcLength(c, true) as number;
-        const approx = new cv.Mat() as CvMat;
-        cv.approxPolyDP(c, approx, 0.03 * peri, true);
-        if (approx.rows === 4 && cv.isContourConvex(approx)) {
-          const d = approx.data32S;
-          const pts: [number, number][] = [0, 1, 2, 3].map((k) => [d[2 * k]! * factor + (factor - 1) / 2, d[2 * k + 1]! * factor + (factor - 1) / 2]);
-          if (squareLike(pts)) quads.push({ pts, area: area * factor * factor, hole: hd[4 * i + 3]! >= 0, parent: hd[4 * i + 3]!, index: i });
-        }
-        approx.delete();
-      } finally {
-        c.delete();
+    forEachContour(contours, (c, i) => {
+      const area = Math.abs(cv.contourArea(c) as number);
+      if (area < minArea) return;
+      const peri = cv.arcLength(c, true) as number;
+      const approx = new cv.Mat() as CvMat;
+      cv.approxPolyDP(c, approx, 0.03 * peri, true);
+      if (approx.rows === 4 && cv.isContourConvex(approx)) {
+        const d = approx.data32S;
+        const pts: [number, number][] = [0, 1, 2, 3].map((k) => [d[2 * k]! * factor + (factor - 1) / 2, d[2 * k + 1]! * factor + (factor - 1) / 2]);
+        if (squareLike(pts)) quads.push({ pts, area: area * factor * factor, hole: hd[4 * i + 3]! >= 0, parent: hd[4 * i + 3]!, index: i });
       }
-    }
-  } finally {
-    src.delete();
-    bin.delete();
-    contours.delete();
-    hier.delete();
-  }
+      approx.delete();
+    });
+  });
   // Gridproof target: an outer quad whose hole is a quad of the frame's inner area ratio
   const innerRatio = (1 - 2 * FRAME_FRACTION) ** 2;
   type Cand = { outer: Quad; score: number; kind: 'target' | 'square' };
