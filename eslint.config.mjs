@@ -19,6 +19,19 @@ const config = [
       '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
     },
   },
+  {
+    // one rule for dates (lib/dates.ts): UTC, said so; a time written in the runtime's own zone or locale reads
+    // differently on the server and in the browser (a hydration error) and differently from the PDF and the mail
+    files: ['app/**/*.{ts,tsx}', 'components/**/*.{ts,tsx}', 'lib/**/*.{ts,tsx}', 'workers/**/*.ts'],
+    rules: {
+      'no-restricted-syntax': ['error',
+        { selector: "CallExpression[callee.property.name=/^toLocale(Date|Time)String$/]", message: 'Show an instant with formatUtc / formatUtcDay (lib/dates.ts).' },
+        { selector: "CallExpression[callee.property.name='toLocaleString']:not([arguments.0.type='Literal'])", message: 'Name the locale (numbers), or show an instant with formatUtc (lib/dates.ts).' },
+        { selector: "CallExpression[callee.property.name='toLocaleString'] Property[key.name=/^(dateStyle|timeStyle|timeZone|year|month|day|hour|minute)$/]", message: 'Show an instant with formatUtc / formatUtcDay (lib/dates.ts).' },
+        { selector: "NewExpression[callee.object.name='Intl'][callee.property.name='DateTimeFormat']", message: 'Show an instant with formatUtc / formatUtcDay (lib/dates.ts).' },
+      ],
+    },
+  },
 ];
 
 export default config;

@@ -6,10 +6,10 @@ import { useState } from 'react';
 import type { BedDto } from '@/lib/services/beds';
 import { api, errorText, fieldError } from './api';
 import { Verdict } from './Verdict';
+import { formatUtcDay } from '@/lib/dates';
 
 export type PresetOption = { id: string; name: string; description: string };
 
-const when = (ms: number) => new Date(ms).toLocaleDateString(undefined, { year: 'numeric', month: 'short', day: 'numeric' });
 
 export function BedsBoard({ initialBeds, canCreate, presets }: { initialBeds: BedDto[]; canCreate: boolean; presets: PresetOption[] }) {
   const beds = useQuery({ queryKey: ['beds'], queryFn: () => api<{ beds: BedDto[] }>('/api/beds').then((r) => r.beds), initialData: initialBeds });
@@ -44,7 +44,7 @@ export function BedsBoard({ initialBeds, canCreate, presets }: { initialBeds: Be
                   </span>
                 )}
                 <span className="text-sm text-muted">
-                  {b.checkCount === 0 ? 'No check yet' : `${b.checkCount} check${b.checkCount === 1 ? '' : 's'}, last ${when(b.lastCheck!.createdAt)}`}
+                  {b.checkCount === 0 ? 'No check yet' : `${b.checkCount} check${b.checkCount === 1 ? '' : 's'}, last ${formatUtcDay(b.lastCheck!.createdAt)}`}
                 </span>
               </Link>
             </li>

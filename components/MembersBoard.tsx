@@ -3,6 +3,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { api, errorText, fieldError } from './api';
+import { formatUtc } from '@/lib/dates';
 
 type Role = 'owner' | 'machinist' | 'reviewer';
 type Member = { userId: string; name: string; email: string; role: Role; joinedAt: number };
@@ -58,7 +59,7 @@ export function MembersBoard({ initial, isOwner, meId }: { initial: Data; isOwne
           <ul className="flex flex-col divide-y divide-line">
             {invitations.map((i) => (
               <li key={i.id} className="flex flex-wrap items-center gap-3 py-3">
-                <span className="flex-1">{i.email} — <span className="capitalize">{i.role}</span><br /><span className="text-sm text-muted">valid until {new Date(i.expiresAt).toLocaleDateString()}</span></span>
+                <span className="flex-1">{i.email} — <span className="capitalize">{i.role}</span><br /><span className="text-sm text-muted">valid until {formatUtc(i.expiresAt)}</span></span>
                 <button type="button" className="btn btn-quiet" onClick={() => revoke.mutate(i.id)} disabled={revoke.isPending}>Revoke</button>
               </li>
             ))}

@@ -8,6 +8,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useId, useState, type FormEvent } from 'react';
 import { api, errorText, fieldError } from '@/components/api';
+import { formatUtc } from '@/lib/dates';
 
 export interface CommentItem {
   id: string;
@@ -18,7 +19,6 @@ export interface CommentItem {
   createdAt: number;
 }
 
-const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
 
 export function CommentList({ comments, canDelete, onDelete, onSelectPosition }: {
   comments: CommentItem[];
@@ -34,7 +34,7 @@ export function CommentList({ comments, canDelete, onDelete, onSelectPosition }:
         <li key={c.id} className="rounded-lg border border-line p-3">
           <p className="flex flex-wrap items-baseline gap-x-3 text-sm text-muted">
             <strong className="text-ink">{c.authorName ?? 'A former member'}</strong>
-            <span>{when(c.createdAt)}</span>
+            <span>{formatUtc(c.createdAt)}</span>
             {c.positionLabel && (onSelectPosition
               ? <button type="button" className="font-mono font-bold text-accent underline" onClick={() => onSelectPosition(c.positionLabel!)}>{c.positionLabel}</button>
               : <span className="font-mono font-bold text-ink">{c.positionLabel}</span>)}

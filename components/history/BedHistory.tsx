@@ -13,16 +13,15 @@ import { api, errorText } from '@/components/api';
 import { Verdict } from '@/components/Verdict';
 import { formatLength, UNIT_DECIMALS, type LengthUnit } from '@/lib/report/units';
 import { trendSeries, type HistoryRow } from './trend';
+import { formatUtc, formatUtcDay } from '@/lib/dates';
 
-const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
-const day = (ms: number) => new Date(ms).toLocaleDateString(undefined, { month: 'short', day: 'numeric' });
 
 export function BedHistory({ bedId, unit: initialUnit }: { bedId: string; unit: LengthUnit }) {
   const router = useRouter();
   const [unit, setUnit] = useState<LengthUnit>(initialUnit);
   const [pick, setPick] = useState<string[]>([]);
   const q = useQuery({ queryKey: ['bed-checks', bedId], queryFn: () => api<{ checks: HistoryRow[] }>(`/api/beds/${bedId}/checks`), refetchInterval: 15_000 });
-  const series = useMemo(() => trendSeries(q.data?.checks ?? [], unit).map((p) => ({ ...p, name: `${p.title ? `${p.title} · ` : ''}${day(p.t)}` })), [q.data, unit]);
+  const series = useMemo(() => trendSeries(q.data?.checks ?? [], unit).map((p) => ({ ...p, name: `${p.title ? `${p.title} · ` : ''}${formatUtcDay(p.t)}` })), [q.data, unit]);
   if (q.isPending) return <p className="panel" aria-busy="true">Loading the checks…</p>;
   if (q.isError) return <p className="panel field-error" role="alert">{errorText(q.error)}</p>;
   const checks = q.data.checks;
@@ -72,11 +71,11 @@ export function BedHistory({ bedId, unit: initialUnit }: { bedId: string; unit: 
             {checks.map((c) => (
               <li key={c.id} className="flex flex-wrap items-center gap-x-4 gap-y-2 border-b border-line py-3" data-testid="history-row">
                 <label className="flex min-h-12 items-center gap-2">
-                  <input type="checkbox" className="h-6 w-6" disabled={!finished.has(c.id)} checked={pick.includes(c.id)} onChange={() => toggle(c.id)} aria-label={`Pick ${c.title ?? when(c.createdAt)} to compare`} />
+                  <input type="checkbox" className="h-6 w-6" disabled={!finished.has(c.id)} checked={pick.includes(c.id)} onChange={() => toggle(c.id)} aria-label={`Pick ${c.title ?? formatUtc(c.createdAt)} to compare`} />
                 </label>
                 <div className="min-w-48 flex-1">
                   <p className="font-bold">{c.title ?? 'Check'}</p>
-                  <p className="text-sm text-muted">{when(c.createdAt)}</p>
+                  <p className="text-sm text-muted">{formatUtc(c.createdAt)}</p>
                 </div>
                 <Verdict status={c.status} verdict={c.verdict} />
                 <p className="font-mono">{c.rmsMm !== null ? `RMS ${formatLength(c.rmsMm, unit)} · worst ${formatLength(c.maxMm ?? 0, unit)} · ${c.outCount ?? 0} out` : '—'}</p>

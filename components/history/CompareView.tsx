@@ -23,8 +23,8 @@ import { comparisonHeadline } from '@/lib/report/headline';
 import { arrowScaleWords } from '@/lib/report/words';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
+import { formatUtc } from '@/lib/dates';
 
-const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
 
 export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string; unit: LengthUnit }) {
   const [unit, setUnit] = useState<LengthUnit>(initialUnit);
@@ -57,7 +57,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
   const exaggeration = exag === 'auto' ? autoX : exag;
   const panelNote = new Map(data.panels.map((p) => [p.id, `${p.significant ? 'moved ' : ''}${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })}`]));
   const sorted = [...data.positions].sort((x, y) => Number(y.significant) - Number(x.significant) || y.r - x.r);
-  const label = (d: typeof detA.data) => `${d.check.title ?? 'Check'} · ${when(d.check.finishedAt ?? d.check.createdAt)}`;
+  const label = (d: typeof detA.data) => `${d.check.title ?? 'Check'} · ${formatUtc(d.check.finishedAt ?? d.check.createdAt)}`;
 
   return (
     <div className="flex flex-col gap-6" data-testid="compare-view">

@@ -37,6 +37,7 @@ import { FigureCards, VerdictBox } from './VerdictBox';
 import { PhotoNote } from './PhotoNote';
 import { photoNote } from '@/lib/report/photo-note';
 import { fitFamilies } from '@/lib/report/method-note';
+import { formatUtc } from '@/lib/dates';
 
 /** What `/api/checks/{id}/detail` answers: the service's own type, so the two cannot drift. */
 export type { CheckDetail };
@@ -89,7 +90,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
     return out;
   }, [detail.detections, overlay, report, unit]);
 
-  const when = new Date(detail.check.finishedAt ?? detail.check.createdAt).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
+  const when = formatUtc(detail.check.finishedAt ?? detail.check.createdAt);
   return (
     <article className="flex flex-col gap-6" data-testid="check-report">
       <VerdictBox report={report} unit={unit} title={`${detail.check.bedName}${detail.check.title ? ` · ${detail.check.title}` : ''} · ${when}`} />
@@ -100,7 +101,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
         <ul className="panel list-disc pl-8" aria-label="Notes">{report.warnings!.map((w) => <li key={w}>{w}</li>)}</ul>
       )}
       {detail.check.edited && (
-        <p className="text-muted">Fitted after review: detections edited by {detail.check.edited.byName ?? 'a former member'} on {new Date(detail.check.edited.at).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' })}.</p>
+        <p className="text-muted">Fitted after review: detections edited by {detail.check.edited.byName ?? 'a former member'} on {formatUtc(detail.check.edited.at)}.</p>
       )}
 
       <div className="no-print flex flex-wrap items-end gap-3">

@@ -18,6 +18,7 @@ import type { Points, Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
 import { MARK_WORD } from '@/lib/report/words';
 import { ZoomStage, type StageApi } from './ZoomStage';
+import { formatUtc } from '@/lib/dates';
 
 type Corner = [number, number];
 interface Hole { id: string; x: number; y: number; diameterPx: number; confidence?: number; added: boolean; removed: boolean }
@@ -142,7 +143,7 @@ function Editor({ checkId, points, report, canReview, photo, edited }: { checkId
 
   return (
     <div className="flex flex-col gap-4" data-testid="review-editor">
-      {edited && <p className="text-muted">Last edited by {edited.byName ?? 'a former member'} on {new Date(edited.at).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' })}.</p>}
+      {edited && <p className="text-muted">Last edited by {edited.byName ?? 'a former member'} on {formatUtc(edited.at)}.</p>}
       {!canReview && <p className="panel">Your role can look but not edit; a machinist or the owner can re-fit.</p>}
       <div className="flex flex-wrap gap-x-4 gap-y-1">
         {(['out', 'marginal', 'in', 'missing', 'unmatched'] as const).map((m) => <MarkChip key={m} mark={m} />)}

@@ -7,10 +7,10 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { api, errorText, fieldError } from '@/components/api';
+import { formatUtc } from '@/lib/dates';
 
 interface LinkRow { id: string; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean }
 
-const day = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
 
 export function SharePanel({ checkId }: { checkId: string }) {
   const qc = useQueryClient();
@@ -59,7 +59,7 @@ export function SharePanel({ checkId }: { checkId: string }) {
         <div className="rounded-lg border-2 border-accent p-3" data-testid="fresh-link">
           <p className="font-bold">{fresh.sentTo ? `Sent to ${fresh.sentTo}. The link in the mail:` : 'Copy the link now: it is shown only this once.'}</p>
           <p className="mt-1 break-all font-mono text-sm" data-testid="fresh-link-url">{fresh.url}</p>
-          <p className="text-sm text-muted">Works until {day(fresh.expiresAt)}.</p>
+          <p className="text-sm text-muted">Works until {formatUtc(fresh.expiresAt)}.</p>
           <button type="button" className="btn btn-quiet mt-2" onClick={() => void copy()}>{copied ? 'Copied' : 'Copy'}</button>
         </div>
       )}
@@ -87,7 +87,7 @@ export function SharePanel({ checkId }: { checkId: string }) {
               <li key={l.id} className="flex flex-wrap items-center justify-between gap-2 rounded-lg border border-line p-3">
                 <span>
                   <strong>{l.live ? 'Live' : l.revokedAt ? 'Revoked' : 'Expired'}</strong>
-                  <span className="text-muted"> · made {day(l.createdAt)} · {l.live ? `until ${day(l.expiresAt)}` : ''} · {l.viewCount} view{l.viewCount === 1 ? '' : 's'}</span>
+                  <span className="text-muted"> · made {formatUtc(l.createdAt)} · {l.live ? `until ${formatUtc(l.expiresAt)}` : ''} · {l.viewCount} view{l.viewCount === 1 ? '' : 's'}</span>
                 </span>
                 {l.live && <button type="button" className="btn btn-danger !min-h-0 !py-1" onClick={() => revoke.mutate(l.id)} disabled={revoke.isPending}>Revoke</button>}
               </li>

@@ -8,6 +8,7 @@ import { PhotoNote } from '@/components/report/PhotoNote';
 import { FigureCards, VerdictBox } from '@/components/report/VerdictBox';
 import type { Report } from '@/lib/geometry/contract';
 import type { LengthUnit } from '@/lib/report/units';
+import { formatUtc } from '@/lib/dates';
 
 export interface SharedVerdictProps {
   bedName: string;
@@ -21,7 +22,7 @@ export interface SharedVerdictProps {
 }
 
 export function SharedVerdict({ bedName, checkTitle, checkedAt, report, unit, photoNote }: SharedVerdictProps) {
-  const when = checkedAt ? `${new Date(checkedAt).toISOString().slice(0, 16).replace('T', ' ')} UTC` : null;
+  const when = checkedAt ? formatUtc(checkedAt) : null;
   return (
     <>
       <VerdictBox report={report} unit={unit} heading="h1" title={`${bedName}${checkTitle ? ` · ${checkTitle}` : ''}${when ? ` · ${when}` : ''}`} />

@@ -9,6 +9,7 @@ import { MARKS } from '@/lib/report/palette';
 import { BED_VERDICT_MARK, BED_VERDICT_WORD } from '@/lib/report/words';
 import { APP_NAME } from './config';
 import { escapeHtml, escapeMultiline, oneLine, safeHttpUrl } from './html';
+import { formatUtc } from '@/lib/dates';
 
 /** A rendered message, ready for `enqueueMail`. */
 export interface MailContent {
@@ -21,11 +22,6 @@ export const MAIL_KINDS = ['report', 'invitation', 'password-reset'] as const;
 export type MailKind = (typeof MAIL_KINDS)[number];
 
 const when = z.union([z.date(), z.number().finite()]).transform((v) => (v instanceof Date ? v : new Date(v)));
-
-/** Formats an instant as `2026-12-09 14:05 UTC` (mail readers live in every time zone). */
-export function formatUtc(at: Date): string {
-  return `${at.toISOString().slice(0, 16).replace('T', ' ')} UTC`;
-}
 
 function layout(opts: { title: string; workshopName: string | null; bodyHtml: string; footerHtml: string }): string {
   const workshop = opts.workshopName ? `<span style="color:#c9d3cf;font-weight:normal"> &middot; ${escapeHtml(opts.workshopName)}</span>` : '';

@@ -23,6 +23,7 @@ import { drawable, wrapText } from './text';
 import { photoNote } from '@/lib/report/photo-note';
 import { methodNote, methodNoteLines, type FitFamily } from '@/lib/report/method-note';
 import { mmToPt, paperSizePt, type Paper } from './units';
+import { formatUtc } from '@/lib/dates';
 
 export interface ReportPdfComment {
   author: string | null;
@@ -57,10 +58,6 @@ const MAP_GROUND = rgb(0.97, 0.97, 0.95);
 const INK = rgb(0.1, 0.13, 0.12);
 const MUTED = rgb(0.38, 0.42, 0.41);
 const RULE = rgb(0.8, 0.83, 0.82);
-
-function utc(at: number | Date): string {
-  return `${new Date(at).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
-}
 
 /** Page-flowing writer: a cursor from the top, new pages as needed. */
 class Flow {
@@ -242,7 +239,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   f.y -= 16;
   f.text('Gridproof bed check', { size: 16, font: bold });
   f.y -= 14;
-  f.text(`${opts.workshopName} · ${title}${opts.checkedAt ? ` · ${utc(opts.checkedAt)}` : ''}`, { size: 9.5, color: MUTED });
+  f.text(`${opts.workshopName} · ${title}${opts.checkedAt ? ` · ${formatUtc(opts.checkedAt)}` : ''}`, { size: 9.5, color: MUTED });
   f.y -= 12;
   f.text(`Pattern: ${report.pattern.name}`, { size: 8.5, color: MUTED });
 
@@ -406,7 +403,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   if (opts.comments?.length) {
     f.heading('Comments');
     for (const c of opts.comments) {
-      f.paragraph(`${c.author ?? 'Former member'}${c.positionLabel ? ` on ${c.positionLabel}` : ''} · ${utc(c.createdAt)}`, { size: 8, font: bold, color: MUTED });
+      f.paragraph(`${c.author ?? 'Former member'}${c.positionLabel ? ` on ${c.positionLabel}` : ''} · ${formatUtc(c.createdAt)}`, { size: 8, font: bold, color: MUTED });
       f.paragraph(c.body, { size: 9, indent: 8 });
       f.y -= 4;
     }

@@ -7,6 +7,7 @@
 import type { Report } from '@/lib/geometry/contract';
 import { hiddenWords } from './hidden';
 import { csvLength, type LengthUnit } from './units';
+import { formatUtcDay } from '@/lib/dates';
 
 /** One CSV field, quoted when RFC 4180 needs it. */
 export function csvField(value: string | number | boolean | null | undefined): string {
@@ -50,5 +51,5 @@ export function panelsCsv(report: Report, unit: LengthUnit): string {
 /** A file name for an export: `gridproof-<bed or check>-<yyyy-mm-dd>.<ext>`, safe on every file system. */
 export function exportFileName(stem: string, date: Date, ext: 'csv' | 'json'): string {
   const safe = stem.toLowerCase().normalize('NFKD').replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 60) || 'check';
-  return `gridproof-${safe}-${date.toISOString().slice(0, 10)}.${ext}`;
+  return `gridproof-${safe}-${formatUtcDay(date)}.${ext}`;
 }

@@ -5,6 +5,7 @@ import { getWorkshop } from '@/db/queries/workshops';
 import { renderReportPdf } from '@/lib/pdf';
 import { authorize, type Actor } from './actor';
 import { loadFinishedCheck, loadFitFamilies } from './share-report';
+import { formatUtcDay } from '@/lib/dates';
 
 export async function checkReportPdf(db: Db, actor: Actor, checkId: string, opts: { paper: 'a4' | 'letter'; units: 'mm' | 'in' }): Promise<{ bytes: Uint8Array; fileName: string }> {
   authorize(actor, 'workshop:read');
@@ -15,6 +16,6 @@ export async function checkReportPdf(db: Db, actor: Actor, checkId: string, opts
     comments: comments.map((c) => ({ author: c.authorName, positionLabel: c.positionLabel, body: c.body, createdAt: c.createdAt })),
   });
   const slug = bedName.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'bed';
-  const day = new Date(check.finishedAt ?? check.createdAt).toISOString().slice(0, 10);
+  const day = formatUtcDay(check.finishedAt ?? check.createdAt);
   return { bytes, fileName: `gridproof-${slug}-${day}.pdf` };
 }

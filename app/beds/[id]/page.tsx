@@ -9,11 +9,11 @@ import { requireActor } from '@/lib/auth/session';
 import { can } from '@/lib/services/actor';
 import { getBed } from '@/lib/services/beds';
 import { orNotFound } from '@/lib/http/not-found';
+import { formatUtc } from '@/lib/dates';
 
 export const metadata: Metadata = { title: 'Bed' };
 
 const fmt = (n: number | null | undefined, digits = 2) => (n === null || n === undefined ? '—' : n.toFixed(digits));
-const when = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
 
 export default async function BedPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
@@ -84,7 +84,7 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
                 <tbody>
                   {checks.map((c) => (
                     <tr key={c.id} className="border-b border-line">
-                      <td className="py-2 pr-4"><Link href={`/checks/${c.id}`} className="underline">{c.title ? <strong>{c.title}<br /></strong> : null}{when(c.createdAt)}</Link></td>
+                      <td className="py-2 pr-4"><Link href={`/checks/${c.id}`} className="underline">{c.title ? <strong>{c.title}<br /></strong> : null}{formatUtc(c.createdAt)}</Link></td>
                       <td className="pr-4"><Verdict status={c.status} verdict={c.verdict} /></td>
                       <td className="pr-4 font-mono">{fmt(c.rmsMm)}</td>
                       <td className="pr-4 font-mono">{fmt(c.maxMm)}</td>

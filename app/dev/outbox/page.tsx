@@ -5,6 +5,7 @@ import { getDb } from '@/db/client';
 import { requireActor } from '@/lib/auth/session';
 import { listOutbox } from '@/lib/services/dev-outbox';
 import { orNotFound } from '@/lib/http/not-found';
+import { formatUtc } from '@/lib/dates';
 
 export const metadata: Metadata = { title: 'Outbox (development)' };
 export const dynamic = 'force-dynamic';
@@ -25,7 +26,7 @@ export default async function OutboxPage() {
               <tbody>
                 {rows.map((m) => (
                   <tr key={m.id} className="border-b border-line align-top">
-                    <td className="py-2 pr-4 whitespace-nowrap">{new Date(m.createdAt).toISOString().slice(0, 16).replace('T', ' ')}</td>
+                    <td className="py-2 pr-4 whitespace-nowrap">{formatUtc(m.createdAt)}</td>
                     <td className="pr-4">{m.kind}</td>
                     <td className="pr-4 font-mono text-sm">{m.toAddress}</td>
                     <td className="pr-4"><Link className="underline" href={`/dev/outbox/${m.id}`}>{m.subject}</Link></td>

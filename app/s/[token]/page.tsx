@@ -6,6 +6,7 @@ import { openSharedReport } from '@/lib/services/share';
 import { SharedReportClient } from './SharedReportClient';
 import { AppError } from '@/lib/http/errors';
 import { orNotFound } from '@/lib/http/not-found';
+import { formatUtc } from '@/lib/dates';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Shared bed check', referrer: 'no-referrer', robots: { index: false, follow: false } };
@@ -38,7 +39,7 @@ export default async function SharedPage({ params, searchParams }: { params: Pro
         <noscript><p className="text-lg">The deviation map, the tables and the comments need JavaScript; the PDF has the map, the positions out of tolerance and the comments: <a className="underline" href={`/api/shared/${token}/report.pdf`}>download the PDF</a>.</p></noscript>
       </article>
       <p className="text-sm text-muted">
-        This link works until {new Date(view.expiresAt).toISOString().slice(0, 16).replace('T', ' ')} UTC unless its owner revokes it sooner.
+        This link works until {formatUtc(view.expiresAt)} unless its owner revokes it sooner.
         Before anyone reaches onto the machine to act on this report: spindle stopped, machine switched off; the machine maker&apos;s manual and local rules come first.
       </p>
     </div>

@@ -10,6 +10,7 @@ import { AppError } from '@/lib/http/errors';
 import { resolveFamily } from '@/lib/services/accessories-placement';
 import { listAccessories } from '@/lib/services/accessories';
 import { loadCheckPattern, loadFinishedCheck, type FinishedCheck } from '@/lib/services/share-report';
+import { formatUtcDay } from '@/lib/dates';
 
 export const metadata: Metadata = { title: 'Accessory fit' };
 
@@ -41,7 +42,7 @@ export default async function FitPage({ params }: { params: Promise<{ id: string
   const boards: BoardCheck[] = [];
   for (const b of await listBeds(db, actor.workshopId)) {
     for (const c of await listBedChecks(db, actor.workshopId, b.id, 20)) {
-      if (c.id !== id && (c.status === 'done' || c.status === 'needs-review')) boards.push({ id: c.id, label: `${b.name}${c.title ? ` · ${c.title}` : ''} · ${new Date(c.finishedAt ?? c.createdAt).toISOString().slice(0, 10)}` });
+      if (c.id !== id && (c.status === 'done' || c.status === 'needs-review')) boards.push({ id: c.id, label: `${b.name}${c.title ? ` · ${c.title}` : ''} · ${formatUtcDay(c.finishedAt ?? c.createdAt)}` });
     }
   }
   return (
