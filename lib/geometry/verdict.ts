@@ -35,14 +35,77 @@ export function panelCornerShift(w: number, h: number, dx: number, dy: number, r
 /** What would settle the overall size when the reference cannot. */
 const SETTLE = 'a larger reference target, or a measured distance between two far-apart positions, would settle it';
 
-/** Overall size and squareness in one sentence (mm), from the shape check. */
-export function shapeSentence(c: ReportShapeCheck): string {
-  const allowed = `${c.toleranceMm.toFixed(2)} mm allowed`;
+/**
+ * Writes a length given in mm: the measurement core writes "0.12 mm" (`suffix: false`: "0.12"); the report's
+ * surfaces pass one that writes the reader's unit (lib/report/units.ts), so the words are the same in mm and inches.
+ */
+export type LengthWriter = (mm: number, opts?: { suffix?: boolean }) => string;
+const mmWriter: LengthWriter = (mm, opts) => `${mm.toFixed(2)}${opts?.suffix === false ? '' : ' mm'}`;
+
+/** Overall size and squareness in one sentence, from the shape check (mm), lengths written by `len`. */
+export function shapeSentence(c: ReportShapeCheck, len: LengthWriter = mmWriter): string {
+  const allowed = `${len(c.toleranceMm)} allowed`;
   if (c.worstMm === null || c.uncertaintyMm === null) return `Overall size and squareness: not measured, the reference could not observe them; ${SETTLE}.`;
-  const fig = `${c.worstMm.toFixed(2)} ± ${bandRadiusMm(c.uncertaintyMm).toFixed(2)} mm (95 %)`;
+  const fig = `${len(c.worstMm, { suffix: false })} ± ${len(bandRadiusMm(c.uncertaintyMm))} (95 %)`;
   if (c.verdict === 'in') return `Overall size and squareness: within tolerance, they move no position by more than ${fig} (${allowed}).`;
   if (c.verdict === 'out') return `Overall size and squareness: out, they move positions by up to ${fig} (${allowed}); a fixture spanning the whole bed will not drop in.`;
   return `Overall size and squareness: this reference cannot judge them to the tolerance (up to ${fig} against ${allowed}); ${SETTLE}.`;
+}
+
+/** What the bed's sentence is written from: the verdict already reached and the facts behind it. */
+export interface VerdictSentenceInput {
+  verdict: 'pass' | 'marginal' | 'fail';
+  positions: Report['positions'];
+  shape?: ReportShapeCheck | null;
+  /** Panels that sit off and should be reseated. */
+  reseat: string[];
+  /** Positions the photo could show but where no hole was found, of `expected` it could show. */
+  unseen: number;
+  expected: number;
+}
+
+/** "1 of 71 measured positions is", "3 of 71 … are": the verb agrees with the count. */
+const ofMeasured = (n: number, of: number) => `${n} of ${of} measured positions ${n === 1 ? 'is' : 'are'}`;
+
+/**
+ * The whole bed's verdict and its reasons in one sentence, lengths written by `len`. Positions too close to call on
+ * the bed as a whole are named even when the verdict is taken hole to hole (they do not make the bed marginal: the
+ * reference, not the bed, often limits them), so the sentence counts what the figures count.
+ */
+export function verdictSentence(i: VerdictSentenceInput, len: LengthWriter = mmWriter): string {
+  const matched = i.positions.filter((p) => p.deviation);
+  const withForm = matched.filter((p) => p.form);
+  const hasForm = withForm.length > 0;
+  const worstOf = (ps: Report['positions'], r: (p: Report['positions'][number]) => number) => ps.reduce((a, b) => (r(a) - a.toleranceMm > r(b) - b.toleranceMm ? a : b));
+  const reasons: string[] = [];
+  const formOut = withForm.filter((p) => p.form!.verdict === 'out');
+  if (formOut.length) {
+    const w = worstOf(formOut, (p) => p.form!.r);
+    reasons.push(`${ofMeasured(formOut.length, matched.length)} out of tolerance hole to hole (worst ${w.label}, ${len(w.form!.r)} off against ${len(w.toleranceMm)} allowed)`);
+  }
+  const out = i.positions.filter((p) => p.verdict === 'out');
+  if (out.length) {
+    const w = worstOf(out, (p) => p.deviation!.r);
+    reasons.push(`${ofMeasured(out.length, matched.length)} out of tolerance ${hasForm ? 'on the bed as a whole ' : ''}(worst ${w.label}, ${len(w.deviation!.r)} off against ${len(w.toleranceMm)} allowed)`);
+  }
+  if (i.shape?.verdict === 'out' && i.shape.worstMm !== null) reasons.push(`the overall size and squareness move positions by up to ${len(i.shape.worstMm)} against ${len(i.shape.toleranceMm)} allowed`);
+  const tooClose = (n: number, where: string) => `${n} ${n === 1 ? 'is' : 'are'} too close to the tolerance to call${where}`;
+  const marginal = i.positions.filter((p) => p.verdict === 'marginal').length;
+  const formMarginal = withForm.filter((p) => p.form!.verdict === 'marginal').length;
+  if (hasForm ? formMarginal : marginal) reasons.push(tooClose(hasForm ? formMarginal : marginal, hasForm ? ' hole to hole' : ''));
+  if (i.reseat.length) reasons.push(`${i.reseat.join(', ')} ${i.reseat.length === 1 ? 'sits' : 'sit'} off and should be reseated`);
+  if (i.expected > 0 && i.unseen > 0.1 * i.expected) reasons.push(`${i.unseen} of ${i.expected} positions ${i.unseen === 1 ? 'was' : 'were'} not seen`);
+  const alsoBed = hasForm && marginal ? tooClose(marginal, ' on the bed as a whole') : null;
+  if (i.verdict === 'pass') {
+    const rs = hasForm ? withForm.map((p) => p.form!.r) : matched.map((p) => p.deviation!.r);
+    const rms = rs.length ? Math.sqrt(rs.reduce((s, r) => s + r * r, 0) / rs.length) : 0;
+    const figures = `(RMS ${len(rms)}, worst ${len(rs.length ? Math.max(...rs) : 0)})`;
+    const all = matched.length === 1 ? 'the 1 measured position is' : `all ${matched.length} measured positions are`;
+    return `Pass: ${all} within tolerance ${hasForm ? `hole to hole ${figures}` : figures}${alsoBed ? `; ${alsoBed}` : ''}${i.unseen > 0 ? `, ${i.unseen} not seen` : ''}.`;
+  }
+  if (alsoBed) reasons.push(alsoBed);
+  const head = i.verdict === 'marginal' ? 'Marginal' : 'Fail';
+  return `${head}: ${reasons.length ? reasons.join('; ') : 'see the figures below'}.`;
 }
 
 /**
@@ -59,8 +122,6 @@ export function bedVerdict(positions: Report['positions'], panels: Report['panel
   const max = rs.length ? Math.max(...rs) : 0;
   const withForm = matched.filter((p) => p.form);
   const hasForm = withForm.length > 0;
-  const fr = withForm.map((p) => p.form!.r);
-  const formRms = fr.length ? Math.sqrt(fr.reduce((s, r) => s + r * r, 0) / fr.length) : 0;
   const out = positions.filter((p) => p.verdict === 'out');
   const marginal = positions.filter((p) => p.verdict === 'marginal');
   const formOut = withForm.filter((p) => p.form!.verdict === 'out');
@@ -76,29 +137,11 @@ export function bedVerdict(positions: Report['positions'], panels: Report['panel
     const s = panelCornerShift(P.width, P.height, q.dx, q.dy, (q.rotationDeg * Math.PI) / 180);
     return s > 0.5 * minTol && s > 2 * q.uncertaintyMm;
   });
-  const worstOf = (ps: Report['positions'], r: (p: Report['positions'][number]) => number) => ps.reduce((a, b) => (r(a) - a.toleranceMm > r(b) - b.toleranceMm ? a : b));
-  const reasons: string[] = [];
-  if (formOut.length) {
-    const w = worstOf(formOut, (p) => p.form!.r);
-    reasons.push(`${formOut.length} of ${matched.length} measured positions are out of tolerance hole to hole (worst ${w.label}, ${w.form!.r.toFixed(2)} mm off against ${w.toleranceMm.toFixed(2)} mm allowed)`);
-  }
-  if (out.length) {
-    const w = worstOf(out, (p) => p.deviation!.r);
-    reasons.push(`${out.length} of ${matched.length} measured positions are out of tolerance ${hasForm ? 'on the bed as a whole ' : ''}(worst ${w.label}, ${w.deviation!.r.toFixed(2)} mm off against ${w.toleranceMm.toFixed(2)} mm allowed)`);
-  }
   const shapeOut = shape?.verdict === 'out';
-  if (shapeOut) reasons.push(`the overall size and squareness move positions by up to ${shape.worstMm!.toFixed(2)} mm against ${shape.toleranceMm.toFixed(2)} mm allowed`);
   const close = hasForm ? formMarginal : marginal;
-  if (close.length) reasons.push(`${close.length} ${close.length === 1 ? 'is' : 'are'} too close to the tolerance to call${hasForm ? ' hole to hole' : ''}`);
-  if (reseat.length) reasons.push(`${reseat.map((q) => q.id).join(', ')} ${reseat.length === 1 ? 'sits' : 'sit'} off and should be reseated`);
   const lowCover = expected > 0 && unseen > 0.1 * expected;
-  if (lowCover) reasons.push(`${unseen} of ${expected} positions were not seen`);
   const verdict: 'pass' | 'marginal' | 'fail' = out.length || formOut.length || shapeOut ? 'fail' : close.length || reseat.length || lowCover ? 'marginal' : 'pass';
-  const head = verdict === 'pass' ? 'Pass' : verdict === 'marginal' ? 'Marginal' : 'Fail';
-  const passFigures = hasForm ? `hole to hole (RMS ${formRms.toFixed(2)} mm, worst ${Math.max(...fr).toFixed(2)} mm)` : `(RMS ${rms.toFixed(2)} mm, worst ${max.toFixed(2)} mm)`;
-  const sentence = verdict === 'pass'
-    ? `Pass: all ${matched.length} measured positions are within tolerance ${passFigures}${unseen > 0 ? `, ${unseen} not seen` : ''}.`
-    : `${head}: ${reasons.join('; ')}.`;
+  const sentence = verdictSentence({ verdict, positions, shape, reseat: reseat.map((q) => q.id), unseen, expected });
   return {
     matched: matched.length, missing: missing.length, rmsMm: rms, maxMm: max, out: out.length, marginal: marginal.length, verdict, sentence,
     ...(hasForm ? { formOut: formOut.length, formMarginal: formMarginal.length } : {}),

@@ -129,6 +129,12 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const headline = web.headline!;
     // in mm the headline is the measurement core's own sentence
     expect(headline).toBe(stored.summary.sentence);
+    // the headline counts what the cards count: the positions out, and those too close to call, on the whole bed
+    // (one position "is", several "are": English subject–verb agreement)
+    const are = (n: number) => (n === 1 ? 'is' : 'are');
+    expect(want.counts.marginal).toBeGreaterThan(0);
+    expect(headline).toContain(`${want.counts.out} of ${want.measured} measured positions ${are(want.counts.out)} out of tolerance on the bed as a whole`);
+    expect(headline).toContain(`${want.counts.marginal} ${are(want.counts.marginal)} too close to the tolerance to call on the bed as a whole`);
     const counts = `${want.measured} · ${MARK_WORD.out} ${want.counts.out} · ${MARK_WORD.marginal} ${want.counts.marginal} · ${MARK_WORD.missing} ${want.counts.missing} · ${MARK_WORD.hidden} ${want.counts.hidden}`;
     const legend = Object.fromEntries(POSITION_MARKS.map((m) => [m, `${MARK_WORD[m]} ${want.counts[m]}`]));
     const scale = web.arrows!;
