@@ -33,6 +33,7 @@
  */
 import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
 import { ISSUE_ADVICE } from './advice';
+import { cutTargetMark } from './cut-target';
 import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { sampleGrey, type Corners } from './square';
@@ -575,6 +576,12 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
     return done(null);
   }
   const corners = q.corners;
+  // a target cut by the border can leave its orientation mark whole, found as a small filled square
+  const mark = cutTargetMark(q.grey, w, h, corners);
+  if (mark) {
+    issues.push(issue('target-cut', mark.offPhoto ? 'Only the target\'s corner mark is whole in the photo: the border cuts through the target.' : 'Only the target\'s corner mark was found whole: its frame is hidden or glared.'));
+    return done(null);
+  }
   const S = q.referenceMm;
   const H = homographyFrom4(targetCornersMm(S), corners);
   const Hi = invertHomography(H);
@@ -688,9 +695,4 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
     positionMm = Math.sqrt(2 * (num / cnt));
   }
   return done(Number.isFinite(positionMm) ? { positionMm: round(positionMm, 1e5), scalePpm: round(scalePpm, 10) } : null);
-}
-
-/** True when the photo cannot be measured at all (no target to give the scale). */
-export function unmeasurable(q: PhotoQuality): boolean {
-  return q.predicted === null && q.issues.some((i) => i.code === 'target-cut');
 }

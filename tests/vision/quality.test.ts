@@ -115,14 +115,17 @@ describe('photo-quality stage', () => {
     expect(Math.abs(q.measured.tiltDeg! - 25)).toBeLessThan(2);
   }, 30_000);
 
-  it('calls a target cut by the border of the photo, and the photo cannot be measured', async () => {
-    const q = await quality(SMALL_BED, { seed: 351 }, (t) => {
-      // crop the photo through the middle of the target
-      const xs = t.target.cornersPx.map((c) => c[0]);
-      const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-      return mid > 600 ? { crop: { x: 0, y: 0, width: mid, height: 900 } } : { crop: { x: mid, y: 0, width: 1200 - mid, height: 900 } };
-    });
-    expect(codes(q)).toEqual(['target-cut']);
-    expect(q.predicted).toBeNull();
-  }, 30_000);
+  it('calls a target cut by the border of the photo target-cut and nothing else, and the photo cannot be measured', async () => {
+    // the crop through the middle of the target (the renderer's true corners) keeps the half without the
+    // orientation mark (seed 351) or with it (752: the whole mark, a filled square, stays in the photo)
+    for (const [seed, tiltDeg] of [[351, 0], [752, 6]] as const) {
+      const q = await quality(SMALL_BED, { seed, tiltDeg }, (t) => {
+        const xs = t.target.cornersPx.map((c) => c[0]);
+        const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
+        return mid > 600 ? { crop: { x: 0, y: 0, width: mid, height: 900 } } : { crop: { x: mid, y: 0, width: 1200 - mid, height: 900 } };
+      });
+      expect(codes(q)).toEqual(['target-cut']);
+      expect(q.predicted).toBeNull();
+    }
+  }, 60_000);
 });
