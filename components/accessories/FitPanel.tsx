@@ -8,7 +8,7 @@
 import { useMutation } from '@tanstack/react-query';
 import { useMemo, useState } from 'react';
 import { api, errorText } from '@/components/api';
-import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 
 /** `firstFamily`: the bed family id the accessory's first pin (its origin) enters. */
 export interface FitAccessory { id: string; name: string; pinCount: number; firstFamily: string }
@@ -31,7 +31,7 @@ function Outcome({ r, unit, what }: { r: Placement; unit: LengthUnit; what: stri
       <p className={`rounded-lg border-4 p-3 text-xl font-bold ${r.fits ? 'border-pass bg-pass-bg text-pass' : 'border-fail bg-fail-bg text-fail'}`}>
         {r.fits ? `${what} fits, with ${L(r.marginMm)} to spare` : `${what} binds by ${L(-r.marginMm)}`}
       </p>
-      <p className="text-muted">Best placement: shift X {L(r.placement.dx, true)}, Y {L(r.placement.dy, true)}, turn {r.placement.rotationDeg >= 0 ? '+' : '−'}{Math.abs(r.placement.rotationDeg).toFixed(3)}° from where it sits nominally.{r.binding.length ? ` Deciding pins: ${r.binding.join(', ')}.` : ''}</p>
+      <p className="text-muted">Best placement: shift X {L(r.placement.dx, true)}, Y {L(r.placement.dy, true)}, turn {formatAngle(r.placement.rotationDeg, { signed: true })} from where it sits nominally.{r.binding.length ? ` Deciding pins: ${r.binding.join(', ')}.` : ''}</p>
       <div className="overflow-x-auto">
         <table className="w-full text-left">
           <thead><tr className="border-b-2 border-line"><th className="py-2 pr-4">Pin</th><th className="pr-4">Hole</th><th className="pr-4">Clearance</th><th className="pr-4">Off centre</th><th className="pr-4">Spare</th><th>Binds by</th></tr></thead>

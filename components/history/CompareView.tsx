@@ -21,7 +21,7 @@ import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/re
 import { autoExaggeration } from '@/lib/report/map-scale';
 import { comparisonHeadline } from '@/lib/report/headline';
 import { arrowScaleWords } from '@/lib/report/words';
-import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
 import { formatUtc } from '@/lib/dates';
 
@@ -93,7 +93,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
                     <td className="py-2 pr-4">{p.id}</td>
                     <td className="pr-4 font-mono">{formatLength(p.dx, unit, { signed: true })}</td>
                     <td className="pr-4 font-mono">{formatLength(p.dy, unit, { signed: true })}</td>
-                    <td className="pr-4 font-mono">{p.rotationDeg >= 0 ? '+' : '−'}{Math.abs(p.rotationDeg).toFixed(3)}°</td>
+                    <td className="pr-4 font-mono">{formatAngle(p.rotationDeg, { signed: true })}</td>
                     <td className="pr-4 font-mono">{formatLength(p.uncertaintyMm, unit)}</td>
                     <td>{p.significant ? 'Yes — moved' : 'No'}</td>
                   </tr>

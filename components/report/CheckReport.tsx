@@ -13,7 +13,7 @@ import { api, errorText } from '@/components/api';
 import type { Report } from '@/lib/geometry/contract';
 import { photoOverlay } from '@/lib/report/overlay';
 import { MARK_ORDER } from '@/lib/report/palette';
-import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { arrowScaleWords, hasFormView, MARK_WORD, positionMark, type MapView } from '@/lib/report/words';
@@ -69,7 +69,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
   const spacing = useMemo(() => nearestSpacing(report.positions), [report]);
   const autoX = useMemo(() => reportArrowScale(report), [report]);
   const exaggeration = exag === 'auto' ? autoX : exag;
-  const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${p.rotationDeg.toFixed(3)}°`])), [report, unit]);
+  const panelNote = useMemo(() => new Map(report.panels.map((p) => [p.id, `${formatLength(p.dx, unit, { signed: true, suffix: false })}, ${formatLength(p.dy, unit, { signed: true })} · ${formatAngle(p.rotationDeg, { signed: true })}`])), [report, unit]);
   const formView = useMemo(() => hasFormView(report), [report]);
   const shown: MapView = formView ? view : 'bed';
   const items = useMemo(() => reportMapItems(report, shown, unit), [report, unit, shown]);

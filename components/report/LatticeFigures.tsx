@@ -1,7 +1,7 @@
 /** The lattice's global scale and squareness with their 1σ uncertainty, or why they were not observed. */
 import type { Report } from '@/lib/geometry/contract';
 import { bandRadiusMm } from '@/lib/geometry/band';
-import { formatLength, formatPpm, scaleOver, type LengthUnit } from '@/lib/report/units';
+import { formatAngle, formatLength, formatPpm, scaleOver, type LengthUnit } from '@/lib/report/units';
 
 export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { report: Report; unit: LengthUnit; bedWidthMm: number | null; bedHeightMm: number | null }) {
   const l = report.lattice;
@@ -9,9 +9,9 @@ export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { repo
   const rows: { name: string; value: string; plain: string }[] = [];
   if (l.observed && l.scaleX !== null && l.scaleY !== null && l.squarenessDeg !== null) {
     const wx = bedWidthMm ?? 1000, wy = bedHeightMm ?? 1000;
-    rows.push({ name: 'Scale along X', value: `${formatPpm(l.scaleX)} ± ${Math.round((u.scaleX ?? 0) * 1e6)} ppm`, plain: `${scaleOver(l.scaleX, wx, unit)} over ${bedWidthMm ? 'the bed’s width' : '1 m'}` });
-    rows.push({ name: 'Scale along Y', value: `${formatPpm(l.scaleY)} ± ${Math.round((u.scaleY ?? 0) * 1e6)} ppm`, plain: `${scaleOver(l.scaleY, wy, unit)} over ${bedHeightMm ? 'the bed’s depth' : '1 m'}` });
-    rows.push({ name: 'Squareness', value: `${l.squarenessDeg >= 0 ? '+' : '−'}${Math.abs(l.squarenessDeg).toFixed(3)}° ± ${(u.squarenessDeg ?? 0).toFixed(3)}°`, plain: `the X and Y rows meet at ${(90 - l.squarenessDeg).toFixed(3)}°` });
+    rows.push({ name: 'Scale along X', value: formatPpm(l.scaleX, u.scaleX), plain: `${scaleOver(l.scaleX, wx, unit)} over ${bedWidthMm ? 'the bed’s width' : '1 m'}` });
+    rows.push({ name: 'Scale along Y', value: formatPpm(l.scaleY, u.scaleY), plain: `${scaleOver(l.scaleY, wy, unit)} over ${bedHeightMm ? 'the bed’s depth' : '1 m'}` });
+    rows.push({ name: 'Squareness', value: formatAngle(l.squarenessDeg, { signed: true, sigmaDeg: u.squarenessDeg }), plain: `the X and Y rows meet at ${formatAngle(90 - l.squarenessDeg)}` });
   }
   return (
     <div className="flex flex-col gap-2" data-testid="lattice">
@@ -31,7 +31,7 @@ export function LatticeFigures({ report, unit, bedWidthMm, bedHeightMm }: { repo
       {l.shapeCheck && l.shapeCheck.worstMm !== null && l.shapeCheck.uncertaintyMm !== null && (
         <p data-testid="shape-check"><strong>Overall size and squareness: {l.shapeCheck.verdict === 'in' ? 'within tolerance' : l.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.</strong> They move a position by up to {formatLength(l.shapeCheck.worstMm, unit)} ± {formatLength(bandRadiusMm(l.shapeCheck.uncertaintyMm), unit)} (95 %); {formatLength(l.shapeCheck.toleranceMm, unit)} allowed.</p>
       )}
-      <p className="text-sm text-muted">Bed turned {l.rotationDeg.toFixed(2)}° in the photo{u.rotationDeg !== null ? ` (± ${u.rotationDeg.toFixed(3)}°)` : ''}; uncertainties are one standard deviation. Positions’ deviations on the whole bed are measured after the best rigid placement of the whole lattice; hole to hole, after the best affine placement, which takes the lattice’s own size and squareness out.</p>
+      <p className="text-sm text-muted">Bed turned {formatAngle(l.rotationDeg, { sigmaDeg: u.rotationDeg })} in the photo; uncertainties are one standard deviation. Positions’ deviations on the whole bed are measured after the best rigid placement of the whole lattice; hole to hole, after the best affine placement, which takes the lattice’s own size and squareness out.</p>
     </div>
   );
 }

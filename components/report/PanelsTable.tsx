@@ -1,6 +1,6 @@
 /** The panels with their offsets and the move that puts each back (the core's own words), in the chosen unit. */
 import type { Report } from '@/lib/geometry/contract';
-import { formatLength, type LengthUnit } from '@/lib/report/units';
+import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 
 export function PanelsTable({ report, unit }: { report: Report; unit: LengthUnit }) {
   if (report.panels.length === 0) return <p>This pattern has no panels.</p>;
@@ -19,7 +19,7 @@ export function PanelsTable({ report, unit }: { report: Report; unit: LengthUnit
               <td className="py-2 pr-4 font-bold">{p.id}</td>
               <td className="pr-4 font-mono whitespace-nowrap">{L(p.dx)}</td>
               <td className="pr-4 font-mono whitespace-nowrap">{L(p.dy)}</td>
-              <td className="pr-4 font-mono whitespace-nowrap">{p.rotationDeg >= 0 ? '+' : '−'}{Math.abs(p.rotationDeg).toFixed(3)}°{p.rotationUncertaintyDeg !== undefined ? ` ±${p.rotationUncertaintyDeg.toFixed(3)}°` : ''}</td>
+              <td className="pr-4 font-mono whitespace-nowrap">{formatAngle(p.rotationDeg, { signed: true, sigmaDeg: p.rotationUncertaintyDeg })}</td>
               <td className="pr-4 font-mono whitespace-nowrap">{formatLength(p.uncertaintyMm, unit)}</td>
               <td className="pr-4 font-mono">{p.positions}</td>
               <td className="min-w-64">{p.correction}</td>

@@ -16,7 +16,9 @@ export function positionVerdict(rMm: number, uMm: number, tolMm: number): Verdic
   return 'marginal';
 }
 
-const fmt = (mm: number) => `${mm >= 0 ? '+' : '−'}${Math.abs(mm).toFixed(2)} mm (${mm >= 0 ? '+' : '−'}${Math.abs(mm / MM_PER_IN).toFixed(3)} in)`;
+/** A signed figure to `d` places; one that rounds to zero carries no sign (no "−0.00"). */
+const signed = (v: number, d: number) => { const r = Number(v.toFixed(d)); return `${r > 0 ? '+' : r < 0 ? '−' : ''}${Math.abs(r).toFixed(d)}`; };
+const fmt = (mm: number) => `${signed(mm, 2)} mm (${signed(mm / MM_PER_IN, 3)} in)`;
 
 /** The correction for a panel found at offset (dx, dy) mm and turned rotDeg (counter-clockwise, seen from above). */
 export function panelCorrection(dxMm: number, dyMm: number, rotDeg: number): string {

@@ -17,7 +17,7 @@ import { headline, shapeLine } from '@/lib/report/headline';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/report/palette';
-import { formatLength } from '@/lib/report/units';
+import { formatAngle, formatLength, formatPpm, scaleOver } from '@/lib/report/units';
 import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, outOfSightWords, positionMark, reportCounts, viewCounts, viewDeviation, viewMark, type MapView } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
 import { photoNote } from '@/lib/report/photo-note';
@@ -276,15 +276,14 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   f.heading('Figures');
   const lat = report.lattice;
   const u = lat.uncertainty;
-  const pm = (v: number | null, digits: number, k = 1) => (v === null ? '' : ` ± ${(v * k).toFixed(digits)}`);
   const scaleLine = (name: string, v: number | null, sd: number | null) =>
-    v === null ? `${name}: not measured` : `${name}: ${((v - 1) * 1000).toFixed(3)}${pm(sd, 3, 1000)} mm per metre (factor ${v.toFixed(6)})`;
+    v === null ? `${name}: not measured.` : `${name}: ${formatPpm(v, sd)}, ${scaleOver(v, 1000, unit)} over 1 m (factor ${v.toFixed(6)}).`;
   const figures = [
     `${figureCards(reportCounts(report), formatLength(s.rmsMm, unit), formatLength(s.maxMm, unit)).map(([k, v]) => `${k} ${v}`).join(' · ')} · ${MARK_WORD.unmatched} ${report.unmatched.length}.`,
-    `Lattice rotation on the photo: ${lat.rotationDeg.toFixed(3)}°${pm(u.rotationDeg, 3)}.`,
+    `Lattice rotation on the photo: ${formatAngle(lat.rotationDeg, { sigmaDeg: u.rotationDeg })}; uncertainties are one standard deviation.`,
     scaleLine('Scale along X', lat.scaleX, u.scaleX),
     scaleLine('Scale along Y', lat.scaleY, u.scaleY),
-    lat.squarenessDeg === null ? 'Squareness: not measured' : `Squareness (departure of the X and Y rows from 90°): ${lat.squarenessDeg.toFixed(4)}°${pm(u.squarenessDeg, 4)}.`,
+    lat.squarenessDeg === null ? 'Squareness: not measured.' : `Squareness (departure of the X and Y rows from 90°): ${formatAngle(lat.squarenessDeg, { signed: true, sigmaDeg: u.squarenessDeg })}.`,
     ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
     ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => len(mm, 2))),
     ...(lat.shapeCheck && lat.shapeCheck.worstMm !== null && lat.shapeCheck.uncertaintyMm !== null
@@ -327,7 +326,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
         { title: `± ${unitName}`, width: 40, align: 'right' },
         { title: 'Correcting move', width: 230, wrap: true },
       ],
-      report.panels.map((q) => [q.id, signed(q.dx), signed(q.dy), q.rotationDeg.toFixed(3), String(q.positions), len(q.uncertaintyMm, 3).replace(/ (mm|in)$/, ''), q.correction]),
+      report.panels.map((q) => [q.id, signed(q.dx), signed(q.dy), formatAngle(q.rotationDeg, { signed: true, suffix: false }), String(q.positions), len(q.uncertaintyMm, 3).replace(/ (mm|in)$/, ''), q.correction]),
     );
   }
   if (report.seams.length) {

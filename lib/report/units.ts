@@ -36,10 +36,33 @@ export function csvLength(mm: number | null | undefined, unit: LengthUnit): stri
   return fromMm(mm, unit).toFixed(UNIT_DECIMALS[unit] + 1);
 }
 
-/** Scale as a deviation in parts per million: 1.0003 → "+300 ppm". */
-export function formatPpm(scale: number): string {
+/**
+ * Scale as a deviation in parts per million: 1.0003 → "+300 ppm"; with its 1σ (a ratio, 6e-5) "+300 ± 60 ppm". Every
+ * surface (web, PDF) writes scale this way.
+ */
+export function formatPpm(scale: number, sigma?: number | null): string {
   const ppm = Math.round((scale - 1) * 1e6);
-  return `${ppm > 0 ? '+' : ppm < 0 ? '−' : ''}${Math.abs(ppm)} ppm`;
+  const pm = sigma === null || sigma === undefined ? '' : ` ± ${Math.round(Math.abs(sigma) * 1e6)}`;
+  return `${ppm > 0 ? '+' : ppm < 0 ? '−' : ''}${Math.abs(ppm)}${pm} ppm`;
+}
+
+/**
+ * Decimal places shown for an angle, degrees: 0.001°, which turns a line 1 m long by 0.017 mm at its end
+ * (1000 mm × tan 0.001°), about the 0.01 mm lengths are shown to.
+ */
+export const ANGLE_DECIMALS = 3;
+
+/**
+ * An angle in degrees, as every surface (web, PDF, mail) writes one: "0.012°"; `signed` "+0.012°" / "−0.012°" (a
+ * real minus sign); with its uncertainty `sigmaDeg` "+0.012° ± 0.003°", each with its degree sign; `suffix: false`
+ * leaves the sign out where a column heading carries it.
+ */
+export function formatAngle(deg: number, opts: { signed?: boolean; sigmaDeg?: number | null; suffix?: boolean } = {}): string {
+  const rounded = Number(deg.toFixed(ANGLE_DECIMALS));
+  const sign = rounded < 0 ? '−' : opts.signed && rounded > 0 ? '+' : '';
+  const unit = opts.suffix === false ? '' : '°';
+  const value = `${sign}${Math.abs(rounded).toFixed(ANGLE_DECIMALS)}${unit}`;
+  return opts.sigmaDeg === null || opts.sigmaDeg === undefined ? value : `${value} ± ${Math.abs(opts.sigmaDeg).toFixed(ANGLE_DECIMALS)}${unit}`;
 }
 
 /** What a scale deviation means over a length: (scale − 1) × length, in the display unit. */

@@ -98,7 +98,8 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const report = (await call(reportGet, { cookie, params: { id: checkId } })).json as Report;
     const detail = (await call(detailGet, { cookie, params: { id: checkId } })).json as CheckDetail;
     expect(detail.units).toBe('mm');
-    const web = readHtml(render(createElement(ReportView, { report, detail })));
+    const webHtml = render(createElement(ReportView, { report, detail }));
+    const web = readHtml(webHtml);
 
     // --- in the mail, which also makes the share link
     const sent = await call(sendPost, { cookie, body: { email: 'helper@voice.test' }, params: { id: checkId } });
@@ -166,6 +167,16 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const helvetica = await (await PDFDocument.create()).embedFont(StandardFonts.Helvetica);
     expect(pdfText.replace(/\s+/g, ' ')).toContain(drawable(helvetica, method.join(' ')));
     expect(pdfText).not.toContain('?');
+
+    // angles with their ± the same on the page and in the PDF: degrees to 0.001° with the degree sign after the
+    // figure and after its ± (ISO 80000-3), the figure the stored one to that rounding
+    const lat = stored.lattice;
+    expect(lat.squarenessDeg).not.toBeNull();
+    for (const [deg, sigma] of [[lat.squarenessDeg!, lat.uncertainty.squarenessDeg!], [lat.rotationDeg, lat.uncertainty.rotationDeg!]] as const) {
+      const shown = unescape(webHtml).match(new RegExp(`${deg < 0 ? '−' : '\\+?'}${Math.abs(deg).toFixed(3).replace('.', '\\.')}° ± ${sigma.toFixed(3).replace('.', '\\.')}°`))?.[0];
+      expect(shown, `${deg}° ± ${sigma}° on the page`).toBeDefined();
+      expect(pdfText).toContain(drawable(helvetica, shown!));
+    }
 
     // the mail: its words and counts, and its map
     expect(mail!.subject).toContain(`(${word.toLowerCase()})`);

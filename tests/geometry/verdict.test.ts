@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import { presetById } from '@/lib/geometry/presets';
 import { makeScene, type SceneSpec } from '@/lib/geometry/synthetic';
-import { verdictSentence } from '@/lib/geometry/verdict';
+import { panelCorrection, verdictSentence } from '@/lib/geometry/verdict';
 
 const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
 const measure = (spec: Omit<SceneSpec, 'pattern'>) => analyzePoints(makeScene({ pattern, ...spec }).points, pattern);
@@ -54,5 +54,12 @@ describe('the bed sentence', () => {
     const r = measure({ seed: 2 });
     const one = r.positions.filter((p) => p.deviation).slice(0, 1);
     expect(verdictSentence({ verdict: 'pass', positions: one, reseat: [], unseen: 0, expected: 1 })).toMatch(/^Pass: the 1 measured position is within tolerance/);
+  });
+});
+
+describe('the correcting move of a panel', () => {
+  it('writes a move that rounds to nothing without a sign, and the inch figure as the mm one over 25.4', () => {
+    // 0.004 mm rounds to 0.00 mm and 0.0002 in to 0.000 in; −0.12 mm is −0.0047 in, 0.005 in to three places
+    expect(panelCorrection(-0.004, 0.12, 0)).toMatch(/^move X by 0\.00 mm \(0\.000 in\), Y by −0\.12 mm \(−0\.005 in\), /);
   });
 });

@@ -5,6 +5,7 @@
  * limit, two positions not seen. `scale` repeats the lattice to make a large report.
  */
 import { ReportSchema, type Report, type ReportPosition } from '@/lib/geometry/contract';
+import { panelCorrection } from '@/lib/geometry/verdict';
 
 function lcg(seed: number) {
   let s = seed >>> 0;
@@ -67,8 +68,8 @@ export function buildReport(opts: { cols?: number; rows?: number; seed?: number 
     positions,
     unmatched: [{ x: 333.3, y: 150.2 }],
     panels: [
-      { id: 'P1', dx: 0.004, dy: -0.002, rotationDeg: 0.0004, positions: measured.filter((p) => p.panel === 'P1').length, uncertaintyMm: 0.006, correction: 'move X by −0.00 mm (−0.000 in), Y by +0.00 mm (+0.000 in), turn 0.000° clockwise about its centre' },
-      { id: 'P2', dx: 0.121, dy: -0.049, rotationDeg: 0.003, positions: measured.filter((p) => p.panel === 'P2').length, uncertaintyMm: 0.006, correction: 'move X by −0.12 mm (−0.005 in), Y by +0.05 mm (+0.002 in), turn 0.003° clockwise about its centre' },
+      { id: 'P1', dx: 0.004, dy: -0.002, rotationDeg: 0.0004, positions: measured.filter((p) => p.panel === 'P1').length, uncertaintyMm: 0.006, correction: panelCorrection(0.004, -0.002, 0.0004) },
+      { id: 'P2', dx: 0.121, dy: -0.049, rotationDeg: 0.003, positions: measured.filter((p) => p.panel === 'P2').length, uncertaintyMm: 0.006, correction: panelCorrection(0.121, -0.049, 0.003) },
     ],
     seams: [{ a: 'P1', b: 'P2', dx: 0.117, dy: -0.047, r: 0.126, uncertaintyMm: 0.008 }],
     lattice: {

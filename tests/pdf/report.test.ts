@@ -43,10 +43,12 @@ describe('report PDF', () => {
     // The headline (wrapped over lines) appears word for word.
     const words = headline(report, 'mm').split(' ');
     expect(words.every((w) => text.includes(w))).toBe(true);
-    // Figures: scale 1.00021 is +0.210 mm per metre; squareness; RMS.
-    expect(text).toContain('0.210 ± 0.040 mm per metre');
-    expect(text).toContain('-0.120 ± 0.040 mm per metre');
-    expect(text).toContain('0.0123');
+    // Figures: scale 1.00021 is +210 parts per million, (1.00021 − 1) × 1000 mm = +0.21 mm over 1 m; its 1σ 4e-5 is
+    // 40 ppm; squareness in degrees with the degree sign on the figure and on its ± (ISO 80000-3)
+    expect(text).toContain('Scale along X: +210 ± 40 ppm, +0.21 mm over 1 m');
+    expect(text).toContain('Scale along Y: -120 ± 40 ppm, -0.12 mm over 1 m');
+    // (0.0123° ± 0.003° to 0.001°)
+    expect(text).toContain('Squareness (departure of the X and Y rows from 90°): +0.012° ± 0.003°.');
     // the figures as the report's cards name them
     expect(text).toContain(`RMS off ${report.summary.rmsMm.toFixed(2)} mm`);
     expect(text).toContain(`Measured ${report.positions.filter((p) => p.deviation).length} · Out ${report.positions.filter((p) => p.verdict === 'out').length}`);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvLength, formatLength, formatPpm, fromMm, toMm } from '@/lib/report/units';
+import { csvLength, formatAngle, formatLength, formatPpm, fromMm, toMm } from '@/lib/report/units';
 
 describe('display units', () => {
   // 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
@@ -29,5 +29,24 @@ describe('display units', () => {
     expect(formatPpm(1.0003)).toBe('+300 ppm');
     expect(formatPpm(0.99995)).toBe('−50 ppm');
     expect(formatPpm(1)).toBe('0 ppm');
+  });
+
+  it('states scale with its 1σ in the same parts per million', () => {
+    // 1σ 6e-5 is 60 parts per million
+    expect(formatPpm(1.0003, 6e-5)).toBe('+300 ± 60 ppm');
+    expect(formatPpm(0.99995, null)).toBe('−50 ppm');
+  });
+
+  // ISO 80000-3: a plane angle in degrees is written with the degree sign straight after the number
+  it('writes an angle to 0.001° with its degree sign, and its ± with the degree sign too', () => {
+    expect(formatAngle(0.0123456)).toBe('0.012°');
+    expect(formatAngle(-0.0126, { signed: true })).toBe('−0.013°');
+    expect(formatAngle(0.0126, { signed: true })).toBe('+0.013°');
+    // a turn that rounds to nothing carries no sign
+    expect(formatAngle(-0.0004, { signed: true })).toBe('0.000°');
+    expect(formatAngle(0.0123, { signed: true, sigmaDeg: 0.0009 })).toBe('+0.012° ± 0.001°');
+    expect(formatAngle(0.5, { sigmaDeg: null })).toBe('0.500°');
+    // under a column heading that names the degree
+    expect(formatAngle(-0.25, { signed: true, suffix: false })).toBe('−0.250');
   });
 });
