@@ -42,9 +42,12 @@ function grid(id: string, kind: Family['kind'], w: number, h: number, pitch: num
   return { id, kind, holeDiameter, origin: { x: sx.origin, y: sy.origin }, pitch: { x: pitch, y: pitch }, count: { x: sx.count, y: sy.count }, fit };
 }
 
-/** A pattern in mm of one family on a bed of `s`, cut into strips of `s.stripWidthMm` when given. */
-function metricPattern(name: string, s: PresetSize, family: Family): Pattern {
-  return PatternSchema.parse({ version: 1, name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [family], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) });
+/** A preset of one family in mm: `family` lays it out on a bed of `s`, cut into strips of `s.stripWidthMm` when given. */
+function oneFamilyPreset(id: string, name: string, description: string, family: (s: PresetSize) => Family): Preset {
+  return {
+    id, name, description,
+    size: (s) => PatternSchema.parse({ version: 1, name, units: 'mm', bed: { width: s.bedWidthMm, height: s.bedHeightMm }, families: [family(s)], panels: strips(s.bedWidthMm, s.bedHeightMm, s.stripWidthMm) }),
+  };
 }
 
 export const PRESETS: Preset[] = [
@@ -66,43 +69,26 @@ export const PRESETS: Preset[] = [
       return PatternSchema.parse({ version: 1, name: this.name, units: 'in', bed: { width: w, height: h }, families: [inserts, dogs], panels: strips(w, h, s.stripWidthMm ? s.stripWidthMm / MM_PER_IN : undefined) });
     },
   },
-  {
-    id: 'm6-50',
-    name: 'M6 inserts on 50 mm',
-    description: 'M6 threaded inserts on a 50 mm grid; ISO 273 medium clearance for the clamps.',
-    size(s) {
-      const f = grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 50, 6, { fastener: 'M6', clearance: 'medium' });
-      return metricPattern(this.name, s, f);
-    },
-  },
-  {
-    id: 'g96-d20',
-    name: '96 mm grid, 20 mm dog holes',
-    description: '20 mm dog holes on a 96 mm grid; 20 mm dogs with 0.05 mm radial play (common practice for a snug dog).',
-    size(s) {
-      const f = grid('dogs', 'dog-hole', s.bedWidthMm, s.bedHeightMm, 96, 20, { pinDiameter: 19.9 });
-      return metricPattern(this.name, s, f);
-    },
-  },
-  {
-    id: 'm8-100',
-    name: 'M8 inserts on 100 mm',
-    description: 'M8 threaded inserts on a 100 mm grid; ISO 273 medium clearance.',
-    size(s) {
-      const f = grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 100, 8, { fastener: 'M8', clearance: 'medium' });
-      return metricPattern(this.name, s, f);
-    },
-  },
-  {
-    id: 'custom',
-    name: 'Custom grid',
-    description: 'One family on a square grid of your pitch, hole size and tolerance; edit the JSON for more.',
-    size(s) {
-      const pitch = s.pitchMm ?? 50;
-      const f = grid('holes', 'other', s.bedWidthMm, s.bedHeightMm, pitch, s.holeDiameterMm ?? 6, { toleranceMm: s.toleranceMm ?? 0.2 });
-      return metricPattern(this.name, s, f);
-    },
-  },
+  oneFamilyPreset(
+    'm6-50', 'M6 inserts on 50 mm',
+    'M6 threaded inserts on a 50 mm grid; ISO 273 medium clearance for the clamps.',
+    (s) => grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 50, 6, { fastener: 'M6', clearance: 'medium' }),
+  ),
+  oneFamilyPreset(
+    'g96-d20', '96 mm grid, 20 mm dog holes',
+    '20 mm dog holes on a 96 mm grid; 20 mm dogs with 0.05 mm radial play (common practice for a snug dog).',
+    (s) => grid('dogs', 'dog-hole', s.bedWidthMm, s.bedHeightMm, 96, 20, { pinDiameter: 19.9 }),
+  ),
+  oneFamilyPreset(
+    'm8-100', 'M8 inserts on 100 mm',
+    'M8 threaded inserts on a 100 mm grid; ISO 273 medium clearance.',
+    (s) => grid('inserts', 'threaded-insert', s.bedWidthMm, s.bedHeightMm, 100, 8, { fastener: 'M8', clearance: 'medium' }),
+  ),
+  oneFamilyPreset(
+    'custom', 'Custom grid',
+    'One family on a square grid of your pitch, hole size and tolerance; edit the JSON for more.',
+    (s) => grid('holes', 'other', s.bedWidthMm, s.bedHeightMm, s.pitchMm ?? 50, s.holeDiameterMm ?? 6, { toleranceMm: s.toleranceMm ?? 0.2 }),
+  ),
 ];
 
 /** The preset with this id, or undefined. */
