@@ -24,7 +24,6 @@ import { SharedVerdict } from '@/components/share/SharedVerdict';
 import { outgoingMail, users } from '@/db/schema';
 import { escapeHtml } from '@/lib/mail/html';
 import { drawable } from '@/lib/pdf/text';
-import { startSession } from '@/lib/auth/session';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import type { Report } from '@/lib/geometry/contract';
 import { presetById } from '@/lib/geometry/presets';
@@ -35,7 +34,7 @@ import { hexToRgb01, MARKS, POSITION_MARKS, type Mark } from '@/lib/report/palet
 import { BED_VERDICT_MARK, BED_VERDICT_WORD, MARK_WORD } from '@/lib/report/words';
 import type { Actor } from '@/lib/services/actor';
 import { finishedCheck } from '@/tests/services/share-fixtures';
-import { call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 import { bounds, readPage, type PageContent } from '../pdf/pdf-reader';
 
 const pattern = presetById('m8-100')!.size({ bedWidthMm: 1200, bedHeightMm: 800, stripWidthMm: 200 });
@@ -49,7 +48,7 @@ let stored: Report;
 beforeAll(async () => {
   t = await useFreshDatabase();
   owner = await newOwner(t.db, 'One voice shop');
-  cookie = `gp_session=${await startSession(t.db, { userId: owner.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, owner);
   // panels shifted, one insert pushed well off, some holes not found, the reference square over a few
   const scene = makeScene({ pattern, seed: 5, panelShiftMm: 0.3, missingFraction: 0.06, extraDeviation: new Map([[7, [0.9, 0.2]]]), square: { sizeMm: 220, x: 300, y: 300, angleDeg: 4 } });
   // stored as the worker stores it: with the bed's outline

@@ -16,6 +16,23 @@ export const SMALL_PATTERN: Pattern = {
   }],
 };
 
+/**
+ * A bed of 20 mm dog holes on a 96 mm grid (a common dog-hole grid, common practice), ten columns from X = 48 mm,
+ * `rows` rows from Y = `originYMm`, in two panels L and R that meet at X = 480 mm.
+ */
+export function twoPanelDogBed(name: string, o: { heightMm: number; originYMm: number; rows: number; toleranceMm: number }): Pattern {
+  return {
+    version: 1,
+    name,
+    units: 'mm',
+    bed: { width: 960, height: o.heightMm },
+    families: [{
+      id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 48, y: o.originYMm }, pitch: { x: 96, y: 96 }, count: { x: 10, y: o.rows }, fit: { toleranceMm: o.toleranceMm },
+    }],
+    panels: [{ id: 'L', x: 0, y: 0, width: 480, height: o.heightMm }, { id: 'R', x: 480, y: 0, width: 480, height: o.heightMm }],
+  };
+}
+
 export interface Shop { workshopId: string; userId: string; bedId: string; patternId: string }
 
 export async function makeShop(db: Db, name = 'shop', pattern: Pattern | null = SMALL_PATTERN): Promise<Shop> {

@@ -14,7 +14,6 @@ import { join, relative } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startSession } from '@/lib/auth/session';
 import { intakePhoto } from '@/lib/checks/intake';
 import type { Pattern } from '@/lib/geometry/contract';
 import { createAccessory } from '@/lib/services/accessories';
@@ -28,7 +27,7 @@ import { coreReport, finishedCheck } from '@/tests/services/share-fixtures';
 import { insertMembership } from '@/db/queries/memberships';
 import { insertUser } from '@/db/queries/users';
 import { hashPassword } from '@/lib/auth/password';
-import { addMember, newOwner, uniqueEmail, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, newOwner, uniqueEmail, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 const ROOT = process.cwd();
 const API = join(ROOT, 'app', 'api');
@@ -197,7 +196,7 @@ async function callAs(who: Who, handler: Handler, method: Method, path: string, 
   const headers: Record<string, string> = { host: 'gridproof.test' };
   // a session of its own for every call: sign-out (one of the handlers) revokes the session it is sent
   const actor = actors[who];
-  if (actor) headers.cookie = `gp_session=${await startSession(t.db, { userId: actor.user.id, workshopId: actor.workshopId })}`;
+  if (actor) headers.cookie = await sessionCookie(t.db, actor);
   let params = entry.params?.(f) ?? {};
   if ('token' in params && who !== 'share') params = { ...params, token: 'made-up-token-' + 'z'.repeat(30) };
   let body: BodyInit | undefined;

@@ -10,8 +10,7 @@
  * a 16-bit PNG keeps 65 536 levels (ISO/IEC 15948 bit depth 16). Photos of beds are rendered by lib/vision/render
  * with its exact truth; the lattice rules (positive pitch, bounded counts) are the pattern contract's.
  */
-import { mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { setTimeout as delay } from 'node:timers/promises';
 import sharp from 'sharp';
@@ -21,13 +20,12 @@ import { POST as uploadPost } from '@/app/api/beds/[id]/checks/route';
 import { GET as checkGet } from '@/app/api/checks/[id]/route';
 import { POST as refitPost } from '@/app/api/checks/[id]/refit/route';
 import { beds, checks, photos } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import type { Pattern } from '@/lib/geometry/contract';
 import { createBed } from '@/lib/services/beds';
 import { loadPhoto } from '@/lib/vision/load';
 import { synthesize } from '@/lib/vision/render';
 import { blockRaw, displayedAt, grey16Png, makeBadPhotos, noiseRaw, orientedJpeg } from '@/tests/fixtures/make-bad-inputs';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 import { spawnWorker, stopWorker, type WorkerProc } from '@/tests/workers/spawn';
 
 const PATTERN: Pattern = {
@@ -41,26 +39,22 @@ const PATTERN: Pattern = {
 const UPLOAD_LIMIT = 2_000_000;
 
 let t: WebTestDb;
-let storeDir: string;
 let cookie: string;
 let bedId: string;
 let worker: WorkerProc | undefined;
 const table: [string, string][] = [];
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-bad-store-'));
-  process.env.STORAGE_DIR = storeDir;
   process.env.UPLOAD_MAX_BYTES = String(UPLOAD_LIMIT);
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   const owner = await newOwner(t.db, 'Hardening shop');
   const machinist = await addMember(t.db, owner.workshopId, 'machinist');
-  cookie = `gp_session=${await startSession(t.db, { userId: machinist.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, machinist);
   bedId = (await createBed(t.db, owner, { name: 'Bed', pattern: PATTERN })).id;
 });
 afterAll(async () => {
   if (worker) await stopWorker(worker);
   await t.close();
-  rmSync(storeDir, { recursive: true, force: true });
   delete process.env.UPLOAD_MAX_BYTES;
   console.log(`\ninput | what happened\n--- | ---\n${table.map(([a, b]) => `${a} | ${b}`).join('\n')}\n`);
 });
@@ -97,7 +91,7 @@ function storedFiles(dir: string): string[] {
     for (const name of readdirSync(d)) {
       const p = join(d, name);
       if (statSync(p).isDirectory()) walk(p);
-      else out.push(relative(storeDir, p).split('\\').join('/'));
+      else out.push(relative(t.storeDir, p).split('\\').join('/'));
     }
   };
   walk(dir);
@@ -151,7 +145,7 @@ describe('photos the loader must read right', () => {
 
 describe('bad input through the API and a worker', () => {
   it('answers each bad upload clearly or fails its check with a reason, keeps the worker running and stores nothing partial', async () => {
-    worker = spawnWorker({ DATABASE_URL: process.env.DATABASE_URL!, STORAGE_DIR: storeDir, WORKER_ID: 'hardening', WORKER_LEASE_MS: '5000' });
+    worker = spawnWorker({ DATABASE_URL: process.env.DATABASE_URL!, STORAGE_DIR: t.storeDir, WORKER_ID: 'hardening', WORKER_LEASE_MS: '5000' });
     await worker.waitFor((l) => l.event === 'worker.ready');
 
     const scene = await synthesize(PATTERN, { seed: 21, misplacedCount: 0 });
@@ -213,7 +207,7 @@ describe('bad input through the API and a worker', () => {
 
     // no partial file: every stored file is a photo a row names (no temp parts), and refused inputs left no row
     const rowsNow = await t.db.select().from(photos);
-    const files = storedFiles(storeDir).filter((f) => !f.startsWith('derived/'));
+    const files = storedFiles(t.storeDir).filter((f) => !f.startsWith('derived/'));
     expect(files.sort()).toEqual(rowsNow.map((p) => p.storageKey).sort());
     expect(rowsNow).toHaveLength(accepted.length + 1);
     expect(await t.db.select().from(checks)).toHaveLength(accepted.length + 1);

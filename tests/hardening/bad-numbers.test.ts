@@ -7,12 +7,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { POST as bedsPost } from '@/app/api/beds/route';
 import { POST as uploadPost } from '@/app/api/beds/[id]/checks/route';
-import { startSession } from '@/lib/auth/session';
 import type { Pattern } from '@/lib/geometry/contract';
 import { createBed } from '@/lib/services/beds';
 import { ShareCreateSchema } from '@/lib/services/share';
 import { fromZodError } from '@/lib/http/errors';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 const PATTERN: Pattern = {
   version: 1, name: 'dog bed', units: 'mm', bed: { width: 960, height: 672 },
@@ -29,7 +28,7 @@ beforeAll(async () => {
   t = await useFreshDatabase();
   const owner = await newOwner(t.db, 'Numbers shop');
   const machinist = await addMember(t.db, owner.workshopId, 'machinist');
-  cookie = `gp_session=${await startSession(t.db, { userId: machinist.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, machinist);
   bedId = (await createBed(t.db, owner, { name: 'Bed', pattern: PATTERN })).id;
 });
 afterAll(async () => {

@@ -4,34 +4,27 @@
  * position, no camera make or serial — while being turned upright by the original's orientation tag.
  * EXIF is read back with exifr (an independent parser); tag numbers per CIPA DC-008 (GPS IFD, Make 0x010F).
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import exifr from 'exifr';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { GET as photoGet } from '@/app/api/checks/[id]/photo/route';
-import { startSession } from '@/lib/auth/session';
 import { intakePhoto } from '@/lib/checks/intake';
 import { createBed } from '@/lib/services/beds';
 import { getStorage } from '@/lib/storage';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
-import { addMember, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 let t: WebTestDb;
-let storeDir: string;
 let checkId: string;
 let original: Buffer;
 const cookies: Record<string, string> = {};
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-derived-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   const owner = await newOwner(t.db, 'Photo shop');
   const reviewer = await addMember(t.db, owner.workshopId, 'reviewer');
   const other = await newOwner(t.db, 'Nosy shop');
-  for (const [k, a] of [['reviewer', reviewer], ['other', other]] as const) cookies[k] = `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`;
+  for (const [k, a] of [['reviewer', reviewer], ['other', other]] as const) cookies[k] = await sessionCookie(t.db, a);
   const bed = await createBed(t.db, owner, { name: 'Bed', pattern: SMALL_PATTERN });
   original = await sharp({ create: { width: 120, height: 80, channels: 3, background: { r: 150, g: 120, b: 90 } } })
     .jpeg()
@@ -44,7 +37,7 @@ beforeAll(async () => {
   const r = await intakePhoto(t.db, getStorage(), { workshopId: owner.workshopId, bedId: bed.id, userId: owner.user.id, source: original, referenceMm: 150 });
   checkId = r.check.id;
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 const get = (cookie?: string) => photoGet(new Request(`http://gridproof.test/api/checks/${checkId}/photo`, { headers: { host: 'gridproof.test', ...(cookie ? { cookie } : {}) } }),
   { params: Promise.resolve({ id: checkId }) });

@@ -14,7 +14,6 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { GET as listGet, POST as uploadPost } from '@/app/api/beds/[id]/checks/route';
 import { checks, jobs, photos } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import { uploadCheck } from '@/lib/checks/api';
 import { errorResponse, toAppError } from '@/lib/http/errors';
 import type { Actor } from '@/lib/services/actor';
@@ -22,24 +21,21 @@ import { createBed } from '@/lib/services/beds';
 import { LocalStorage } from '@/lib/storage';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { noiseRaw } from '@/tests/fixtures/make-bad-inputs';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 let t: WebTestDb;
-let storeDir: string;
 let machinist: Actor;
 let cookie: string;
 let bedId: string;
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-faults-store-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   const owner = await newOwner(t.db, 'Faults shop');
   machinist = await addMember(t.db, owner.workshopId, 'machinist');
-  cookie = `gp_session=${await startSession(t.db, { userId: machinist.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, machinist);
   bedId = (await createBed(t.db, owner, { name: 'Bed', pattern: SMALL_PATTERN })).id;
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 let shade = 10;
 async function photo(): Promise<Buffer> {
@@ -93,7 +89,7 @@ describe('database busy or locked', () => {
   it('gives up on a long lock with a clear 503 and leaves no photo behind', async () => {
     process.env.DB_BUSY_RETRY_MS = '300';
     const before = await counts();
-    const filesBefore = files(storeDir).filter((f) => !f.startsWith('.tmp')).sort();
+    const filesBefore = files(t.storeDir).filter((f) => !f.startsWith('.tmp')).sort();
     const lock = await holdWriteLock(6500); // longer than the 5 s busy timeout plus the retry budget
     const res = await uploadPost(uploadRequest(await photo()), { params: Promise.resolve({ id: bedId }) });
     const body = (await res.json()) as { error?: { code: string; message: string } };
@@ -102,7 +98,7 @@ describe('database busy or locked', () => {
     expect([res.status, body.error?.code], JSON.stringify(body)).toEqual([503, 'busy']);
     expect(body.error?.message).toMatch(/Nothing was saved/);
     expect(await counts()).toEqual(before);
-    expect(files(storeDir).filter((f) => !f.startsWith('.tmp')).sort()).toEqual(filesBefore);
+    expect(files(t.storeDir).filter((f) => !f.startsWith('.tmp')).sort()).toEqual(filesBefore);
   }, 30_000);
 });
 
@@ -163,7 +159,7 @@ describe('web process restart during an upload', () => {
       const timer = setTimeout(() => reject(new Error(`child never wrote: ${err}`)), 20_000);
       child.stdout!.on('data', (d: Buffer) => { if (d.toString().includes('writing')) { clearTimeout(timer); resolve(); } });
     });
-    const parts = files(join(storeDir, '.tmp'));
+    const parts = files(join(t.storeDir, '.tmp'));
     expect(parts.length).toBeGreaterThan(0); // it really was half way
     child.kill('SIGKILL');
     await new Promise((r) => child.on('exit', r));
@@ -171,10 +167,10 @@ describe('web process restart during an upload', () => {
     expect(await counts()).toEqual(before);
     const list = await call(listGet, { cookie, params: { id: bedId } });
     expect((list.json as { checks: unknown[] }).checks).toHaveLength(before.checks);
-    const visible = files(storeDir).filter((f) => !f.startsWith('.tmp'));
+    const visible = files(t.storeDir).filter((f) => !f.startsWith('.tmp'));
     expect(visible.length).toBe(before.photos); // only the finished photos of earlier tests
     // the part is swept when a worker starts (older than its threshold; 0 here)
-    expect(await new LocalStorage(storeDir).sweepTemp(0)).toBeGreaterThan(0);
-    expect(files(join(storeDir, '.tmp'))).toEqual([]);
+    expect(await new LocalStorage(t.storeDir).sweepTemp(0)).toBeGreaterThan(0);
+    expect(files(join(t.storeDir, '.tmp'))).toEqual([]);
   }, 30_000);
 });

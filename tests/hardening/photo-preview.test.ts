@@ -4,20 +4,16 @@
  * cut short (its scan ends before the EOI marker, ITU-T T.81 B.2.1) and a PNG whose IHDR declares
  * 20000 × 20000 px (ISO/IEC 15948 §11.2.2; chunk CRC as in its annex D, computed by node:zlib's crc32).
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { crc32, deflateSync } from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { GET as detailGet } from '@/app/api/checks/[id]/detail/route';
 import { GET as photoGet } from '@/app/api/checks/[id]/photo/route';
-import { startSession } from '@/lib/auth/session';
 import { intakePhoto } from '@/lib/checks/intake';
 import { createBed } from '@/lib/services/beds';
 import { getStorage } from '@/lib/storage';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { noiseJpeg } from '@/tests/fixtures/make-bad-inputs';
-import { call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 /** A PNG chunk: length, type, data, CRC-32 of type and data (ISO/IEC 15948 §5.3). */
 function chunk(type: string, data: Buffer): Buffer {
@@ -37,16 +33,13 @@ function pngDeclaring(w: number, h: number): Buffer {
 }
 
 let t: WebTestDb;
-let storeDir: string;
 let cookie: string;
 const checkIds: Record<string, string> = {};
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-preview-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   const owner = await newOwner(t.db, 'Preview shop');
-  cookie = `gp_session=${await startSession(t.db, { userId: owner.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, owner);
   const bed = await createBed(t.db, owner, { name: 'Bed', pattern: SMALL_PATTERN });
   const jpeg = await noiseJpeg(640, 480);
   const photos = { truncated: jpeg.subarray(0, Math.floor(jpeg.length * 0.4)), huge: pngDeclaring(20000, 20000), fine: jpeg };
@@ -55,7 +48,7 @@ beforeAll(async () => {
     checkIds[name] = r.check.id;
   }
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 const photo = (id: string) => call(photoGet, { cookie, params: { id }, path: `/api/checks/${id}/photo` });
 const detail = async (id: string) => (await call(detailGet, { cookie, params: { id } })).json as { photo: { available: boolean; reason: string | null } };

@@ -7,43 +7,36 @@
  * replays it). The malformed-cookie cases are the ones that answered 500 (`%E0%A4%A`: a percent escape cut
  * short, which decodeURIComponent refuses, ECMA-262 §19.2.6.2).
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { POST as signInPost } from '@/app/api/auth/sign-in/route';
 import { POST as signOutPost } from '@/app/api/auth/sign-out/route';
 import { GET as meGet } from '@/app/api/me/route';
-import { startSession } from '@/lib/auth/session';
 import { intakePhoto } from '@/lib/checks/intake';
 import { createBed } from '@/lib/services/beds';
 import { getStorage } from '@/lib/storage';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { noiseJpeg } from '@/tests/fixtures/make-bad-inputs';
 import { loadHandler, routeTable, type RouteHandler } from '@/tests/web/route-table';
-import { call, newOwner, TEST_PASSWORD, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { call, newOwner, TEST_PASSWORD, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 import type { Actor } from '@/lib/services/actor';
 
 const SEED = Number(process.env.FUZZ_SEED ?? Math.floor(Math.random() * 2 ** 31));
 const RUNS_PER_ROUTE = Number(process.env.FUZZ_RUNS ?? 40);
 
 let t: WebTestDb;
-let storeDir: string;
 let owner: Actor;
 const ids: string[] = [];
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-fuzz-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   owner = await newOwner(t.db, 'Fuzz shop');
   const bed = await createBed(t.db, owner, { name: 'Bed', pattern: SMALL_PATTERN });
   const r = await intakePhoto(t.db, getStorage(), { workshopId: owner.workshopId, bedId: bed.id, userId: owner.user.id, source: await noiseJpeg(), referenceMm: 150 });
   ids.push(bed.id, r.check.id, r.photo.id, owner.user.id, owner.workshopId);
   console.log(JSON.stringify({ routeFuzzSeed: SEED }));
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 /** Any string of bytes a Cookie header can carry (HTTP field values: visible ASCII, space, tab and obs-text 0x80–0xFF). */
 const headerBytes = fc.string({ unit: fc.oneof(fc.integer({ min: 0x20, max: 0x7e }), fc.integer({ min: 0x80, max: 0xff }), fc.constant(0x09)).map((c) => String.fromCharCode(c)), maxLength: 300 });
@@ -72,7 +65,7 @@ const bodyArb: fc.Arbitrary<BodyKind | null> = fc.oneof(
 
 async function send(handler: RouteHandler, method: string, path: string, params: Record<string, string>, cookie: CookieKind, query: Record<string, string>, body: BodyKind | null): Promise<Response> {
   const headers: Record<string, string> = { host: 'gridproof.test' };
-  headers.cookie = cookie.kind === 'live' ? `gp_session=${await startSession(t.db, { userId: owner.user.id, workshopId: owner.workshopId })}` : cookie.header;
+  headers.cookie = cookie.kind === 'live' ? await sessionCookie(t.db, owner) : cookie.header;
   if (body?.type) headers['content-type'] = body.type;
   const url = new URL(`http://gridproof.test${path}`);
   for (const [k, v] of Object.entries(query)) url.searchParams.set(k, v);

@@ -4,29 +4,45 @@
  * that go through the real services (no mocked database).
  */
 import { randomBytes } from 'node:crypto';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { closeDb, getDb, migrateDb, type Db } from '@/db/client';
 import { insertMembership } from '@/db/queries/memberships';
 import { insertUser, toPublicUser } from '@/db/queries/users';
 import { hashPassword } from '@/lib/auth/password';
+import { SESSION_COOKIE, startSession } from '@/lib/auth/session';
 import type { Actor, Role } from '@/lib/services/actor';
 import { signUp } from '@/lib/services/auth';
 
-export type WebTestDb = { db: Db; dir: string; close: () => Promise<void> };
+export type WebTestDb = {
+  db: Db;
+  dir: string;
+  /** The photo store's folder (STORAGE_DIR) when asked for with `{ storage: true }`. */
+  storeDir: string;
+  close: () => Promise<void>;
+};
 
-/** Points DATABASE_URL at a new temp file, migrates it and returns the shared handle. Call once per file. */
-export async function useFreshDatabase(): Promise<WebTestDb> {
+/**
+ * Points DATABASE_URL at a new temp file, migrates it and returns the shared handle; with `storage: true` also
+ * points STORAGE_DIR at a new folder beside it. `close()` removes both. Call once per file.
+ */
+export async function useFreshDatabase(opts: { storage?: boolean } = {}): Promise<WebTestDb> {
   const dir = mkdtempSync(join(tmpdir(), 'gridproof-web-'));
   process.env.DATABASE_URL = `file:${join(dir, 'test.db')}`;
   process.env.SESSION_SECRET ??= randomBytes(32).toString('hex');
+  const storeDir = join(dir, 'storage');
+  if (opts.storage) {
+    mkdirSync(storeDir);
+    process.env.STORAGE_DIR = storeDir;
+  }
   await closeDb();
   const db = await getDb();
   await migrateDb(db);
   return {
     db,
     dir,
+    storeDir,
     close: async () => {
       await closeDb();
       rmSync(dir, { recursive: true, force: true });
@@ -51,6 +67,11 @@ export async function addMember(db: Db, workshopId: string, role: Role): Promise
   const row = await insertUser(db, { email: uniqueEmail(role), name: `A ${role}`, passwordHash: await hashPassword(TEST_PASSWORD) });
   await insertMembership(db, { workshopId, userId: row.id, role });
   return { user: toPublicUser(row), workshopId, role };
+}
+
+/** A Cookie header value that signs `actor` in to their workshop (a real session row). */
+export async function sessionCookie(db: Db, actor: Actor): Promise<string> {
+  return `${SESSION_COOKIE}=${await startSession(db, { userId: actor.user.id, workshopId: actor.workshopId })}`;
 }
 
 type Handler = (req: Request, ctx?: { params: Promise<Record<string, string | string[] | undefined>> }) => Promise<Response>;

@@ -4,9 +4,6 @@
  * measurement core's stated panel accuracy (issue: ≤ 0.03 mm on 12 MP scenes at 0.33 mm/px) widened to
  * 0.15 mm for this small, fast 1600 × 1200 px scene (about 0.75 mm/px).
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { POST as uploadPost } from '@/app/api/beds/[id]/checks/route';
@@ -14,39 +11,27 @@ import { GET as checkGet } from '@/app/api/checks/[id]/route';
 import { GET as reportGet } from '@/app/api/checks/[id]/report/route';
 import { checkPositions, photos } from '@/db/schema';
 import { jobsForCheck } from '@/db/queries/jobs';
-import { startSession } from '@/lib/auth/session';
 import { ReportSchema, type Pattern } from '@/lib/geometry/contract';
 import { createBed } from '@/lib/services/beds';
 import type { Actor } from '@/lib/services/actor';
 import { synthesize, type Truth } from '@/lib/vision/render';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
+import { twoPanelDogBed } from '../checks/fixtures';
 import { spawnWorker, stopWorker, type WorkerProc } from './spawn';
 
-const PATTERN: Pattern = {
-  version: 1,
-  name: 'two-panel dog bed',
-  units: 'mm',
-  bed: { width: 960, height: 672 },
-  families: [{
-    id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 48, y: 48 }, pitch: { x: 96, y: 96 }, count: { x: 10, y: 7 }, fit: { toleranceMm: 0.5 },
-  }],
-  panels: [{ id: 'L', x: 0, y: 0, width: 480, height: 672 }, { id: 'R', x: 480, y: 0, width: 480, height: 672 }],
-};
+const PATTERN: Pattern = twoPanelDogBed('two-panel dog bed', { heightMm: 672, originYMm: 48, rows: 7, toleranceMm: 0.5 });
 
 let t: WebTestDb;
-let storeDir: string;
 let cookie: string;
 let bedId: string;
 let photo: { jpeg: Buffer; truth: Truth };
 const procs: WorkerProc[] = [];
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-e2e-store-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   const owner: Actor = await newOwner(t.db, 'E2E shop');
   const machinist = await addMember(t.db, owner.workshopId, 'machinist');
-  cookie = `gp_session=${await startSession(t.db, { userId: machinist.user.id, workshopId: owner.workshopId })}`;
+  cookie = await sessionCookie(t.db, machinist);
   bedId = (await createBed(t.db, owner, { name: 'Router bed', pattern: PATTERN })).id;
   photo = await synthesize(PATTERN, { seed: 11, panelOffsetMm: 0.6, misplacedCount: 0, supersample: 2 });
 });
@@ -55,11 +40,11 @@ afterEach(async () => {
 });
 afterAll(async () => {
   await t.close();
-  rmSync(storeDir, { recursive: true, force: true });
+ 
 });
 
 const start = (env: Record<string, string>) => {
-  const p = spawnWorker({ DATABASE_URL: process.env.DATABASE_URL!, STORAGE_DIR: storeDir, ...env });
+  const p = spawnWorker({ DATABASE_URL: process.env.DATABASE_URL!, STORAGE_DIR: t.storeDir, ...env });
   procs.push(p);
   return p;
 };

@@ -18,19 +18,10 @@ import { ReportSchema, type Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { LocalStorage } from '@/lib/storage';
 import { tempDb, type TempDb } from '../queue/helpers';
-import { makeShop } from '../checks/fixtures';
+import { makeShop, twoPanelDogBed } from '../checks/fixtures';
 import { spawnWorker, stopWorker, type WorkerProc } from './spawn';
 
-const PATTERN: Pattern = {
-  version: 1,
-  name: 'two-panel test bed',
-  units: 'mm',
-  bed: { width: 960, height: 600 },
-  families: [{
-    id: 'dog', kind: 'dog-hole', holeDiameter: 20, origin: { x: 48, y: 60 }, pitch: { x: 96, y: 96 }, count: { x: 10, y: 6 }, fit: { toleranceMm: 0.3 },
-  }],
-  panels: [{ id: 'L', x: 0, y: 0, width: 480, height: 600 }, { id: 'R', x: 480, y: 0, width: 480, height: 600 }],
-};
+const PATTERN: Pattern = twoPanelDogBed('two-panel test bed', { heightMm: 600, originYMm: 60, rows: 6, toleranceMm: 0.3 });
 
 let t: TempDb;
 let storeDir: string;

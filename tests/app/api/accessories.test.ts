@@ -7,10 +7,9 @@ import { DELETE as accDelete, GET as accGet, PATCH as accPatch } from '@/app/api
 import { GET as accList, POST as accPost } from '@/app/api/accessories/route';
 import { POST as fitPost } from '@/app/api/checks/[id]/fit/route';
 import type { Pattern } from '@/lib/geometry/contract';
-import { startSession } from '@/lib/auth/session';
 import type { Actor } from '@/lib/services/actor';
 import { finishedCheck, handReport } from '@/tests/services/share-fixtures';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 /** Inserts at 76.2 mm (3 in) pitch, 5 × 4 (common practice), plus 20 mm dog holes at 96 mm pitch (common practice). */
 const BED: Pattern = {
@@ -34,7 +33,7 @@ let checkId: string;
 let ownerCookie: string;
 let reviewerCookie: string;
 let strangerCookie: string;
-const session = async (a: Actor) => `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`;
+const session = (a: Actor) => sessionCookie(t.db, a);
 
 beforeAll(async () => {
   t = await useFreshDatabase();

@@ -3,9 +3,6 @@
  * migrated SQLite file and a real local store. The photo carries EXIF written by sharp (an independent
  * library) and is read back with exifr (another): the display copy must carry none of it.
  */
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import exifr from 'exifr';
 import sharp from 'sharp';
 import { eq } from 'drizzle-orm';
@@ -15,27 +12,23 @@ import { GET as detailGet } from '@/app/api/checks/[id]/detail/route';
 import { GET as photoGet } from '@/app/api/checks/[id]/photo/route';
 import { GET as exportGet } from '@/app/api/checks/[id]/export/route';
 import { checks } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import { analyzePoints } from '@/lib/geometry';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { createBed } from '@/lib/services/beds';
 import type { Actor } from '@/lib/services/actor';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 
 let t: WebTestDb;
-let storeDir: string;
 let owner: Actor;
 let reviewerCookie: string;
 let otherCookie: string;
 let checkId: string;
 
-const cookieFor = async (a: Actor) => `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`;
+const cookieFor = (a: Actor) => sessionCookie(t.db, a);
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-views-store-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   owner = await newOwner(t.db, 'Views shop');
   reviewerCookie = await cookieFor(await addMember(t.db, owner.workshopId, 'reviewer'));
   otherCookie = await cookieFor(await newOwner(t.db, 'Other shop'));
@@ -55,7 +48,7 @@ beforeAll(async () => {
   expect(res.status).toBe(202);
   checkId = ((await res.json()) as { check: { id: string } }).check.id;
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 describe('check read routes', () => {
   it('serves members an upright display copy of the photo with no metadata', async () => {

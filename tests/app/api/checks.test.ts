@@ -3,8 +3,7 @@
  * Photos are encoded by sharp (an independent library). Error bodies follow the house shape
  * { error: { code, message, fields? } }.
  */
-import { mkdtempSync, readdirSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -15,14 +14,12 @@ import { GET as compareGet } from '@/app/api/checks/[id]/compare/[other]/route';
 import { POST as refitPost } from '@/app/api/checks/[id]/refit/route';
 import { eq } from 'drizzle-orm';
 import { checks, photos } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import { createBed } from '@/lib/services/beds';
 import type { Actor } from '@/lib/services/actor';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 
 let t: WebTestDb;
-let storeDir: string;
 let owner: Actor;
 let machinistCookie: string;
 let reviewerCookie: string;
@@ -31,12 +28,10 @@ let bedId: string;
 let otherBedId: string;
 let jpeg: Buffer;
 
-const cookieFor = async (a: Actor) => `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`;
+const cookieFor = (a: Actor) => sessionCookie(t.db, a);
 
 beforeAll(async () => {
-  storeDir = mkdtempSync(join(tmpdir(), 'gridproof-api-store-'));
-  process.env.STORAGE_DIR = storeDir;
-  t = await useFreshDatabase();
+  t = await useFreshDatabase({ storage: true });
   owner = await newOwner(t.db, 'Checks shop');
   machinistCookie = await cookieFor(await addMember(t.db, owner.workshopId, 'machinist'));
   reviewerCookie = await cookieFor(await addMember(t.db, owner.workshopId, 'reviewer'));
@@ -46,7 +41,7 @@ beforeAll(async () => {
   otherBedId = (await createBed(t.db, other, { name: 'Their bed', pattern: SMALL_PATTERN })).id;
   jpeg = await sharp(Buffer.alloc(80 * 60 * 3, 120), { raw: { width: 80, height: 60, channels: 3 } }).jpeg().toBuffer();
 });
-afterAll(async () => { await t.close(); rmSync(storeDir, { recursive: true, force: true }); });
+afterAll(async () => { await t.close(); });
 
 function uploadRequest(cookie: string, fields: Record<string, string | Blob>): Request {
   const form = new FormData();
@@ -151,7 +146,7 @@ describe('checks API', () => {
   });
 
   it('refuses a text file named .jpg (415) and an oversize photo (413), keeping nothing', async () => {
-    const before = readdirSync(join(storeDir, 'photos', owner.workshopId)).length;
+    const before = readdirSync(join(t.storeDir, 'photos', owner.workshopId)).length;
     const txt = await upload(machinistCookie, bedId, { photo: new Blob(['just some words, not a photo'], { type: 'image/jpeg' }), referenceMm: '150' });
     expect(txt.status).toBe(415);
     expect(txt.json.error?.code).toBe('unsupported_media_type');
@@ -163,8 +158,8 @@ describe('checks API', () => {
     } finally {
       delete process.env.UPLOAD_MAX_BYTES;
     }
-    expect(readdirSync(join(storeDir, 'photos', owner.workshopId)).length).toBe(before);
-    expect(readdirSync(join(storeDir, '.tmp'))).toEqual([]);
+    expect(readdirSync(join(t.storeDir, 'photos', owner.workshopId)).length).toBe(before);
+    expect(readdirSync(join(t.storeDir, '.tmp'))).toEqual([]);
   });
 
   it('keeps nothing of an upload cut off half way through the photo', async () => {
@@ -175,14 +170,14 @@ describe('checks API', () => {
     const type = whole.headers.get('content-type')!;
     const bytes = Buffer.from(await whole.arrayBuffer());
     const cut = bytes.subarray(0, bytes.length - 20_000);
-    const before = readdirSync(join(storeDir, 'photos', owner.workshopId)).length;
+    const before = readdirSync(join(t.storeDir, 'photos', owner.workshopId)).length;
     const res = await uploadPost(new Request('http://gridproof.test/api/beds/x/checks', {
       method: 'POST', headers: { cookie: machinistCookie, host: 'gridproof.test', 'content-type': type }, body: cut,
     }), { params: Promise.resolve({ id: bedId }) });
     expect(res.status).toBe(422);
     expect(((await res.json()) as { error: { message: string } }).error.message).toMatch(/cut off/);
-    expect(readdirSync(join(storeDir, 'photos', owner.workshopId)).length).toBe(before);
-    expect(readdirSync(join(storeDir, '.tmp'))).toEqual([]);
+    expect(readdirSync(join(t.storeDir, 'photos', owner.workshopId)).length).toBe(before);
+    expect(readdirSync(join(t.storeDir, '.tmp'))).toEqual([]);
   });
 
   it('refuses a re-fit while the check is still queued, and a reviewer cannot re-fit', async () => {

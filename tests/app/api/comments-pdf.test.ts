@@ -9,11 +9,10 @@ import { GET as commentsGet, POST as commentPost } from '@/app/api/checks/[id]/c
 import { GET as reportPdf } from '@/app/api/checks/[id]/report.pdf/route';
 import { GET as targetPdf } from '@/app/api/target.pdf/route';
 import type { Pattern } from '@/lib/geometry/contract';
-import { startSession } from '@/lib/auth/session';
 import type { Actor } from '@/lib/services/actor';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { finishedCheck, handReport } from '@/tests/services/share-fixtures';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 let t: WebTestDb;
 let owner: Actor;
@@ -24,7 +23,7 @@ beforeAll(async () => {
   t = await useFreshDatabase();
   owner = await newOwner(t.db, 'Comment shop');
   const members: [string, Actor][] = [['owner', owner], ['machinist', await addMember(t.db, owner.workshopId, 'machinist')], ['reviewer', await addMember(t.db, owner.workshopId, 'reviewer')], ['reviewer2', await addMember(t.db, owner.workshopId, 'reviewer')], ['stranger', await newOwner(t.db, 'Other')]];
-  for (const [k, a] of members) cookie.set(k, `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`);
+  for (const [k, a] of members) cookie.set(k, await sessionCookie(t.db, a));
   // two families that both have a B2: a bare "B2" is then ambiguous
   const TWO: Pattern = { ...SMALL_PATTERN, families: [...SMALL_PATTERN.families, { id: 'ins', kind: 'threaded-insert', holeDiameter: 8, origin: { x: 148, y: 148 }, pitch: { x: 96, y: 96 }, count: { x: 3, y: 2 }, fit: { toleranceMm: 0.5 } }] };
   ({ checkId } = await finishedCheck(t.db, owner, TWO, handReport(TWO, { 'dog B2': [0.4, 0.1] })));

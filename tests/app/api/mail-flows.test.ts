@@ -16,13 +16,12 @@ import { POST as invitePost } from '@/app/api/members/route';
 import { GET as sharedGet } from '@/app/api/shared/[token]/route';
 import { getMembership } from '@/db/queries/memberships';
 import { outgoingMail, passwordResets } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import { createMailer, deliverPendingMail, getLocalMail, listLocalMail, startLocalSmtp, type LocalSmtpServer, type Mailer } from '@/lib/mail';
 import { mailConfigFromEnv } from '@/lib/mail/config';
 import type { Actor, Role } from '@/lib/services/actor';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { coreReport, finishedCheck } from '@/tests/services/share-fixtures';
-import { addMember, call, cookieFrom, newOwner, TEST_PASSWORD, uniqueEmail, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, cookieFrom, newOwner, TEST_PASSWORD, uniqueEmail, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 let t: WebTestDb;
 let server: LocalSmtpServer;
@@ -35,7 +34,7 @@ beforeAll(async () => {
   server = await startLocalSmtp({ port: 0, dir: `${t.dir}/inbox` });
   mailer = createMailer(mailConfigFromEnv({ SMTP_HOST: '127.0.0.1', SMTP_PORT: String(server.port), SMTP_SECURE: 'false', MAIL_FROM: 'Gridproof <checks@gridproof.test>' }));
   owner = await newOwner(t.db, 'Round Trip Shop');
-  ownerCookie = `gp_session=${await startSession(t.db, { userId: owner.user.id, workshopId: owner.workshopId })}`;
+  ownerCookie = await sessionCookie(t.db, owner);
 });
 afterAll(async () => {
   mailer.close();
@@ -112,11 +111,11 @@ describe('invitations by e-mail', () => {
     const { token } = linkIn((await deliveredTo(other.user.email)).text, '/invite');
     expect(r.status).toBe(201);
     const stranger = await newOwner(t.db, 'Stranger');
-    const strangerCookie = `gp_session=${await startSession(t.db, { userId: stranger.user.id, workshopId: stranger.workshopId })}`;
+    const strangerCookie = await sessionCookie(t.db, stranger);
     expect((await call(acceptPost, { cookie: strangerCookie, body: { token } })).status).toBe(403);
     // signed out, the existing account must sign in first
     expect((await call(acceptPost, { body: { token, name: 'x', password: TEST_PASSWORD } })).status).toBe(409);
-    const otherCookie = `gp_session=${await startSession(t.db, { userId: other.user.id, workshopId: other.workshopId })}`;
+    const otherCookie = await sessionCookie(t.db, other);
     const a = await call(acceptPost, { cookie: otherCookie, body: { token } });
     expect(a.status).toBe(200);
     expect((a.json as { created: boolean }).created).toBe(false);
@@ -126,7 +125,7 @@ describe('invitations by e-mail', () => {
 
   it("queues no mail for a machinist's invitation (owners only)", async () => {
     const m = await addMember(t.db, owner.workshopId, 'machinist');
-    const mc = `gp_session=${await startSession(t.db, { userId: m.user.id, workshopId: m.workshopId })}`;
+    const mc = await sessionCookie(t.db, m);
     const email = uniqueEmail('refused');
     expect((await call(invitePost, { cookie: mc, body: { email, role: 'reviewer' } })).status).toBe(403);
     expect(await t.db.select().from(outgoingMail).where(eq(outgoingMail.toAddress, email))).toHaveLength(0);
@@ -143,7 +142,7 @@ describe('password reset by e-mail', () => {
 
   it('mails a one-hour single-use link; using it changes the password and ends every session', async () => {
     const user = await addMember(t.db, owner.workshopId, 'reviewer');
-    const oldCookie = `gp_session=${await startSession(t.db, { userId: user.user.id, workshopId: user.workshopId })}`;
+    const oldCookie = await sessionCookie(t.db, user);
     expect((await call(meGet, { cookie: oldCookie })).status).toBe(200);
     expect((await call(resetPost, { body: { email: user.user.email.toUpperCase() } })).status).toBe(202);
     const mail = await deliveredTo(user.user.email);

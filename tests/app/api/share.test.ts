@@ -13,7 +13,6 @@ import { DELETE as linkDelete } from '@/app/api/share-links/[id]/route';
 import { GET as sharedGet } from '@/app/api/shared/[token]/route';
 import { GET as sharedPdf } from '@/app/api/shared/[token]/report.pdf/route';
 import { outgoingMail, rateLimits, shareLinks } from '@/db/schema';
-import { startSession } from '@/lib/auth/session';
 import type { Report } from '@/lib/geometry/contract';
 import type { Actor } from '@/lib/services/actor';
 import { addComment } from '@/lib/services/comments';
@@ -22,7 +21,7 @@ import { NextRequest } from 'next/server';
 import { proxy } from '@/proxy';
 import { SMALL_PATTERN } from '@/tests/checks/fixtures';
 import { coreReport, finishedCheck, requeue, SECRET_PHOTO_NAME } from '@/tests/services/share-fixtures';
-import { addMember, call, newOwner, useFreshDatabase, type WebTestDb } from '@/tests/web/helpers';
+import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
 
 let t: WebTestDb;
 let owner: Actor;
@@ -38,7 +37,7 @@ beforeAll(async () => {
   owner = await newOwner(t.db, 'Sharing shop');
   machinist = await addMember(t.db, owner.workshopId, 'machinist');
   reviewer = await addMember(t.db, owner.workshopId, 'reviewer');
-  for (const a of [owner, machinist, reviewer]) cookies.set(a, `gp_session=${await startSession(t.db, { userId: a.user.id, workshopId: a.workshopId })}`);
+  for (const a of [owner, machinist, reviewer]) cookies.set(a, await sessionCookie(t.db, a));
   const report = coreReport(SMALL_PATTERN);
   ({ checkId } = await finishedCheck(t.db, owner, SMALL_PATTERN, report, { bedName: 'Main router', title: 'Monday' }));
   // a second bed of the same workshop that the link must not reveal
@@ -154,7 +153,7 @@ describe('share links', () => {
   it('revokes a link: the URL then answers 410, and a reviewer or another workshop cannot revoke', async () => {
     expect((await call(linkDelete, { method: 'DELETE', cookie: cookie(reviewer), params: { id: linkId } })).status).toBe(403);
     const stranger = await newOwner(t.db, 'Stranger shop');
-    const strangerCookie = `gp_session=${await startSession(t.db, { userId: stranger.user.id, workshopId: stranger.workshopId })}`;
+    const strangerCookie = await sessionCookie(t.db, stranger);
     expect((await call(linkDelete, { method: 'DELETE', cookie: strangerCookie, params: { id: linkId } })).status).toBe(404);
     const r = await call(linkDelete, { method: 'DELETE', cookie: cookie(machinist), params: { id: linkId } });
     expect(r.status).toBe(200);
@@ -210,7 +209,7 @@ describe('sending a report to a helper', () => {
 
   it('stops a sender after 30 report mails in an hour (429)', async () => {
     const sender = await addMember(t.db, owner.workshopId, 'machinist');
-    const c = `gp_session=${await startSession(t.db, { userId: sender.user.id, workshopId: sender.workshopId })}`;
+    const c = await sessionCookie(t.db, sender);
     // the limit counts per sender in rate_limits; fill the hour's window as 30 sends would
     await t.db.insert(rateLimits).values({ key: `share-send:${sender.user.id}`, count: 30, resetAt: Date.now() + 3600e3 });
     const r = await call(sendPost, { cookie: c, body: { email: 'limit@example.test' }, params: { id: checkId } });
