@@ -71,9 +71,15 @@ export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkI
         {view.quality && view.quality.issues.length > 0 && <PhotoQualityVerdict quality={view.quality} phase="failed" />}
         <h3 className="text-lg font-bold">What to try</h3>
         <ul className="flex flex-col gap-3">
+          {advice.checkPattern && (
+            <li className="flex flex-col gap-2">
+              <span>Check the bed&apos;s pattern first: the holes are looked for at the sizes it gives and matched to its pitch and layout, so a wrong hole size finds none and a wrong pitch matches none.</span>
+              {canUpload && <Link href={`/beds/${view.bedId}/setup`} className="btn btn-quiet self-start">Check the bed&apos;s pattern</Link>}
+            </li>
+          )}
           {advice.anotherPhoto && (
             <li className="flex flex-col gap-2">
-              <span>Take another photo: from straight above, the whole bed and the whole square in the frame, even light, no glare on the square, chips swept off.</span>
+              <span>Take another photo: from straight above, the whole bed and the whole square in the frame, even light, no glare on the square, chips swept off, in focus.</span>
               {canUpload && <Link href={`/beds/${view.bedId}/upload`} className="btn self-start">Upload another photo</Link>}
             </li>
           )}

@@ -54,9 +54,20 @@ export function pollInterval(view: Pick<CheckStatusView, 'status'> | undefined, 
   return polls < 20 ? 700 : polls < 80 ? 1500 : 4000;
 }
 
-/** What to try after a failure, by what the message says went wrong. */
-export function failureAdvice(error: string | undefined): { markCorners: boolean; anotherPhoto: boolean } {
+/**
+ * What to try after a failure, by what went wrong (the worker's messages: lib/vision/index.ts, lib/geometry/stages,
+ * lib/checks/run-analysis.ts):
+ * - the reference square not found, or its corners wrong: mark the corners by hand, or another photo;
+ * - too few holes found (the square was found): the holes are looked for at the sizes the bed's pattern gives, so
+ *   check the pattern, then another photo (sharp, clean, even light); marking the square's corners cannot help;
+ * - holes found but too few matched the pattern: the pattern (pitch, origin), the square's corners (they set the
+ *   scale the holes are matched at), or another photo;
+ * - anything else (an unreadable file, a limit): another photo.
+ */
+export function failureAdvice(error: string | undefined): { markCorners: boolean; checkPattern: boolean; anotherPhoto: boolean } {
   const e = (error ?? '').toLowerCase();
-  const aboutSquare = /square|corner|target|reference/.test(e);
-  return { markCorners: aboutSquare || e === '' || /hole|find|detect/.test(e), anotherPhoto: true };
+  const holesFound = /\bonly \d+ holes? (was|were) found\b/.test(e);
+  const holesMatched = /\bholes? (matched|could be matched)\b/.test(e);
+  const square = !holesFound && !holesMatched && /reference square|corners/.test(e);
+  return { markCorners: square || holesMatched, checkPattern: holesFound || holesMatched, anotherPhoto: true };
 }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { failureAdvice, isSettled, pollInterval, progressPercent, stageWords } from '@/components/check-status/stages';
+import { isSettled, pollInterval, progressPercent, stageWords } from '@/components/check-status/stages';
 import { STAGES } from '@/lib/checks/run-analysis';
 
 describe('the check status words', () => {
@@ -29,10 +29,5 @@ describe('the check status words', () => {
     expect(progressPercent({ status: 'running', progress: 1 })).toBe(99);
     expect(progressPercent({ status: 'running', progress: null })).toBe(0);
     expect(progressPercent({ status: 'done', progress: 0.2 })).toBe(100);
-  });
-
-  it('offers to mark the corners by hand when the square was not found', () => {
-    expect(failureAdvice('No reference square was found in the photo.').markCorners).toBe(true);
-    expect(failureAdvice('The photo could not be decoded.').anotherPhoto).toBe(true);
   });
 });
