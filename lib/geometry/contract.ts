@@ -54,7 +54,6 @@ export const numberIn = (field: string, min: number, max: number, unit: string) 
 const finite = z.number().finite();
 const positive = finite.positive();
 export const Vec2Schema = z.object({ x: finite, y: finite });
-export type Vec2 = z.infer<typeof Vec2Schema>;
 export const HOLE_KINDS = ['threaded-insert', 'dog-hole', 'pin-hole', 'other'] as const;
 export type HoleKind = (typeof HOLE_KINDS)[number];
 
@@ -276,7 +275,6 @@ const MeasuredVerdict = z.enum(['in', 'marginal', 'out']);
  * made before it existed.
  */
 export const ReportFormSchema = z.object({ dx: finite, dy: finite, r: finite, uncertaintyMm: finite, verdict: MeasuredVerdict });
-export type ReportForm = z.infer<typeof ReportFormSchema>;
 
 /**
  * Overall size and squareness: the largest displacement (mm) that the measured scale X, scale Y and squareness make
@@ -321,7 +319,6 @@ export const ReportPanelSchema = z.object({
   /** The move that puts the panel back (the negative of its offset), in words, mm and inches. */
   correction: z.string(),
 });
-export type ReportPanel = z.infer<typeof ReportPanelSchema>;
 
 /** Codes of the photo-quality stage (lib/vision/quality.ts): what in the photo limits or prevents the measurement. */
 export const PHOTO_ISSUE_CODES = ['blurred', 'motion-blur', 'overexposed', 'underexposed', 'target-small', 'holes-small', 'tilted', 'target-cut', 'bed-cut'] as const;

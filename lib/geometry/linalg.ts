@@ -71,13 +71,6 @@ export function choleskySolve(l: Float64Array, n: number, b: Float64Array): Floa
   return x;
 }
 
-/** Solves the SPD system A x = b (A row-major n×n, not modified). Returns null if A is not SPD. */
-export function solveSpd(a: Float64Array, n: number, b: Float64Array): Float64Array | null {
-  const l = Float64Array.from(a);
-  if (!cholesky(l, n)) return null;
-  return choleskySolve(l, n, b);
-}
-
 /** Inverse of an SPD matrix (row-major n×n), or null if it is not SPD. */
 export function invertSpd(a: Float64Array, n: number): Float64Array | null {
   const l = Float64Array.from(a);

@@ -29,8 +29,6 @@ export const PAPER_MARGIN_MAX_MM = 14;
 export function paperMarginMm(sizeMm: number): number {
   return Math.min(PAPER_MARGIN_FRACTION * sizeMm, PAPER_MARGIN_MAX_MM);
 }
-/** Default outer size, mm (fits on A4 or US Letter with its margin and ruler). */
-export const DEFAULT_TARGET_MM = 150;
 
 /** The four outer corners in the target frame, mm, in order 0..3 (counter-clockwise from the mark corner). */
 export function targetCornersMm(sizeMm: number): [number, number][] {
