@@ -49,13 +49,20 @@ export const ASSUMED_FOCAL_35MM = 27;
  * - over-exposure: the target's white clipped on half its samples while it reads less than 16 times its black in
  *   linear light: a print's toner or ink reflects 3–6 % of what the paper does (optical density 1.2–1.5, common
  *   practice, from memory), a ratio of 16–30, so a clipped white with less contrast would have been brighter (a
- *   photo exposed g times too long divides the ratio by g); or a quarter of the bed around the holes clipped;
+ *   photo exposed g times too long divides the ratio by g); or, whatever the camera's tone curve did to that ratio
+ *   (a phone's darkens the black: 35 where a linear camera gives 23), the clipped white's frame stroke reading
+ *   thinner than printed by over 0.45 of its edges' rise (25 % to 75 % of the way from black to white): the white
+ *   beyond the sensor's maximum cuts each edge's rise short on its white side, which moves the edge into the
+ *   black; measured on our renders, by 0.26 (×1.3) to 0.55–1.1 (×1.9) of the rise, where a tone curve and
+ *   sharpening that keep black and white move it by 0.2–0.35 (a phone's, blurred by 1.4 px or at full mid-tone
+ *   contrast with strong sharpening), a linear camera's by under 0.1, a camera that blurs encoded values outward
+ *   (−0.23); or a quarter of the bed around the holes clipped;
  * - under-exposure: the white paper below 120 of 255, more than 2 stops under a white near clipping (linear 0.19),
  *   where the sensor's noise starts to set the edges' precision;
  * - target under 200 px a side, holes under 10 px across, a tilt over 20° (the far side then shrinks by a
  *   third against the near side on a phone lens), the target or the bed beyond the frame.
  */
-export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, whiteClipShare: 0.5, printContrast: 16, holesClipShare: 0.25, whiteLevel: 120, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
+export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, whiteClipShare: 0.5, printContrast: 16, strokeThinning: 0.45, holesClipShare: 0.25, whiteLevel: 120, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
 
 const TO_LINEAR = new Float64Array(1025).map((_, i) => {
   const c = i / 1024;
@@ -109,6 +116,10 @@ interface EdgeStats {
   edgeClipped: number;
   blackClipped: number;
   outer: boolean;
+  /** Where the edge lies along n from where the square's corners put it (median over the profiles), px. */
+  shiftPx: number;
+  /** Distance along n between the edge's 25 % and 75 % levels of its mean rise (linear light), px. */
+  riseIqPx: number;
 }
 
 const CLIP_HI = 250;
@@ -213,6 +224,17 @@ function targetEdges(q: QualityInput, corners: Corners): EdgeStats[] {
         g2 += g * d * d;
       }
       const varPx2 = g0 > 0.5 ? Math.max(0, g2 / g0) : NaN;
+      // the mean rise's 25 % and 75 % levels (darkness falling from 0.75 to 0.25 from black to white)
+      const crossing = (lv: number) => {
+        for (let bi = nb - 1; bi > 0; bi--) {
+          if (!cnt[bi] || !cnt[bi - 1]) continue;
+          const a = sum[bi - 1]! / cnt[bi - 1]!;
+          const b = sum[bi]! / cnt[bi]!;
+          if (a >= lv && b < lv) return -R + (bi - 1 + (a - lv) / (a - b)) * step;
+        }
+        return NaN;
+      };
+      const riseIqPx = crossing(0.25) - crossing(0.75);
       const sd = Math.sqrt(Number.isFinite(varPx2) ? varPx2 : 1);
       let white = 0;
       let whiteN = 0;
@@ -234,7 +256,7 @@ function targetEdges(q: QualityInput, corners: Corners): EdgeStats[] {
       const fsA = samples.map((x) => x.f);
       const ds = samples.map((x) => x.d0);
       const edgeSdPx = robustSd(quadraticResiduals(fsA, ds));
-      out.push({ n: samples[0]!.n, varPx2, lengthPx, edgeSdPx, loLin: loM, hiLin: hiM, whiteClipped: white / whiteN, edgeClipped: edge / samples.length, blackClipped: black / blackN, outer });
+      out.push({ n: samples[0]!.n, varPx2, lengthPx, edgeSdPx, loLin: loM, hiLin: hiM, whiteClipped: white / whiteN, edgeClipped: edge / samples.length, blackClipped: black / blackN, outer, shiftPx: median(ds), riseIqPx });
     }
   }
   return out;
@@ -611,6 +633,8 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
     measured.motion = { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) };
   }
   const good = edges.filter((e) => Number.isFinite(e.varPx2));
+  let thinningPx = NaN;
+  let riseIqPx = NaN;
   const k = q.pattern.units === 'in' ? 25.4 : 1;
   const smallestMm = Math.min(...q.pattern.families.map((fm) => fm.holeDiameter * k));
   const sCentre = homographyScale(H, S / 2, S / 2); // px per mm at the target
@@ -631,6 +655,13 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
     const hiLin = median(good.map((e) => e.hiLin));
     const loLin = median(good.map((e) => e.loLin));
     measured.targetContrast = loLin > 0 ? round(hiLin / loLin, 10) : null;
+    // the stroke thinner than printed: its outer and inner edges both moved into the black (the corners' own
+    // placement, centreline or outer edge, cancels in the mean), over the edges' rise
+    const shift = (o: boolean) => median(good.filter((e) => e.outer === o).map((e) => e.shiftPx));
+    if (good.filter((e) => e.outer).length >= 2 && good.filter((e) => !e.outer).length >= 2) {
+      thinningPx = -(shift(true) + shift(false)) / 2;
+      riseIqPx = median(good.map((e) => e.riseIqPx).filter(Number.isFinite));
+    }
     measured.whiteLevel = round(255 * (hiLin <= 0.0031308 ? 12.92 * hiLin : 1.055 * hiLin ** (1 / 2.4) - 0.055), 10);
   }
 
@@ -638,10 +669,13 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const m = measured;
   if (m.defocusSigmaPx !== null && m.defocusSigmaPx > LIMITS.defocusSigmaPx) issues.push(issue('blurred', `The target's edges are spread over ${m.edgeSpreadPx!.toFixed(1)} px (out of focus by σ ${m.defocusSigmaPx.toFixed(1)} px; a sharp photo stays under ${LIMITS.defocusSigmaPx} px).`));
   if (m.motion && m.motion.lengthPx > LIMITS.motionPx) issues.push(issue('motion-blur', `The photo is smeared by ${m.motion.lengthPx.toFixed(0)} px along ${m.motion.directionDeg.toFixed(0)}° from the photo's horizontal: the camera moved while it was taken.`));
-  const burnt = !!m.clipped && m.clipped.targetWhite >= LIMITS.whiteClipShare && m.targetContrast !== null && m.targetContrast !== undefined && m.targetContrast < LIMITS.printContrast;
-  if (m.clipped && (burnt || m.clipped.holesSurround > LIMITS.holesClipShare)) {
+  const whiteClipped = !!m.clipped && m.clipped.targetWhite >= LIMITS.whiteClipShare;
+  const flat = whiteClipped && m.targetContrast !== null && m.targetContrast !== undefined && m.targetContrast < LIMITS.printContrast;
+  const thinned = whiteClipped && thinningPx > LIMITS.strokeThinning * riseIqPx;
+  if (m.clipped && (flat || thinned || m.clipped.holesSurround > LIMITS.holesClipShare)) {
     const parts = [];
-    if (burnt) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and reads only ${m.targetContrast!.toFixed(0)} times its black, where a print gives ${LIMITS.printContrast} or more`);
+    if (flat) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and reads only ${m.targetContrast!.toFixed(0)} times its black, where a print gives ${LIMITS.printContrast} or more`);
+    else if (thinned) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and its black frame reads ${thinningPx.toFixed(2)} px thinner than printed at each edge, ${Math.round((100 * thinningPx) / riseIqPx)} % of the edge's rise`);
     if (m.clipped.holesSurround > LIMITS.holesClipShare) parts.push(`${Math.round(100 * m.clipped.holesSurround)} % of the bed around the holes is burnt out`);
     issues.push(issue('overexposed', `Over-exposed: ${parts.join('; ')}.`));
   }
