@@ -9,6 +9,7 @@ import { useMutation } from '@tanstack/react-query';
 import { useMemo, useState } from 'react';
 import { api, errorText } from '@/components/api';
 import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
+import { MAP_EDGE_WORDS } from '@/lib/report/words';
 
 /** `firstFamily`: the bed family id the accessory's first pin (its origin) enters. */
 export interface FitAccessory { id: string; name: string; pinCount: number; firstFamily: string }
@@ -66,7 +67,8 @@ function FitMap({ positions, cells, turn, bed, onPick }: { positions: FitPositio
         if (c.status === 'binds') return <rect key={p.label} x={x - r} y={y - r} width={2 * r} height={2 * r} fill="var(--fail)" className="cursor-pointer" onClick={() => onPick(p.label)} data-status="binds"><title>{title}</title></rect>;
         return <circle key={p.label} cx={x} cy={y} r={r} fill="none" stroke="var(--idle)" strokeWidth={r / 4}><title>{title}</title></circle>;
       })}
-      <text x={0} y={bed.height + m * 0.8} fontSize={m * 0.7} fill="currentColor">operator side</text>
+      <text x={0} y={-m * 0.2} fontSize={m * 0.7} fill="currentColor">{MAP_EDGE_WORDS.back}</text>
+      <text x={0} y={bed.height + m * 0.8} fontSize={m * 0.7} fill="currentColor">{MAP_EDGE_WORDS.front}</text>
     </svg>
   );
 }

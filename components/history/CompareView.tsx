@@ -20,7 +20,7 @@ import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { autoExaggeration } from '@/lib/report/map-scale';
 import { comparisonHeadline } from '@/lib/report/headline';
-import { arrowScaleWords } from '@/lib/report/words';
+import { arrowScaleWords, MAP_EDGE_WORDS } from '@/lib/report/words';
 import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 import { ExaggerationSelect } from '@/components/report/ExaggerationSelect';
 import { formatUtc } from '@/lib/dates';
@@ -79,7 +79,7 @@ export function CompareView({ a, b, unit: initialUnit }: { a: string; b: string;
         </div>
         <BedMap widthMm={geometry.widthMm} heightMm={geometry.heightMm} originX={geometry.originX} originY={geometry.originY}
           panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))} items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit}
-          label={`Change map of ${items.length} positions from before to after, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}.`} />
+          label={`Change map of ${items.length} positions from before to after, ${MAP_EDGE_WORDS.orientation}; ${arrowScaleWords(exaggeration)}.`} />
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="pm-h">
         <h2 id="pm-h" className="text-xl font-bold">Panel moves</h2>

@@ -12,6 +12,7 @@ import { memo, useCallback, useMemo, useRef, useState, type PointerEvent, type R
 import type { Pattern } from '@/lib/geometry/contract';
 import { positionLabel } from '@/lib/geometry/labels';
 import { holeKey, type LintResult } from '@/lib/patterns/lint';
+import { MAP_EDGE_WORDS } from '@/lib/report/words';
 
 type Pointed = { label: string; x: number; y: number; family: number; col: number; row: number; flagged: boolean };
 
@@ -110,8 +111,8 @@ export function PatternDrawing({ pattern, lint, title = 'Drawing of the bed patt
         {pointed && (
           <circle cx={pointed.x} cy={H - pointed.y} r={ring} fill="none" stroke="var(--focus)" strokeWidth={3} vectorEffect="non-scaling-stroke" />
         )}
-        <text x={W / 2} y={H + pad * 0.7} textAnchor="middle" fontSize={pad * 0.5} fontWeight={700} fill="var(--ink)">FRONT — you stand here</text>
-        <text x={W / 2} y={-pad * 0.3} textAnchor="middle" fontSize={pad * 0.4} fill="var(--muted)">back</text>
+        <text x={W / 2} y={H + pad * 0.7} textAnchor="middle" fontSize={pad * 0.5} fontWeight={700} fill="var(--ink)">{MAP_EDGE_WORDS.front}</text>
+        <text x={W / 2} y={-pad * 0.3} textAnchor="middle" fontSize={pad * 0.4} fill="var(--muted)">{MAP_EDGE_WORDS.back}</text>
         <g stroke="var(--ink)" strokeWidth={2} vectorEffect="non-scaling-stroke" fill="none">
           <path d={`M 0 ${H} l ${pad * 0.8} 0 M 0 ${H} l 0 ${-pad * 0.8}`} vectorEffect="non-scaling-stroke" />
         </g>

@@ -9,7 +9,7 @@ import { POSITION_MARKS } from '@/lib/report/palette';
 import type { MapItem } from '@/lib/report/map-items';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { niceFactor } from '@/lib/report/map';
-import { arrowScaleWords } from '@/lib/report/words';
+import { arrowScaleWords, MAP_EDGE_WORDS } from '@/lib/report/words';
 import { MarkShape, markVar } from './Mark';
 
 export interface MapPanel { id: string; x: number; y: number; width: number; height: number; note?: string }
@@ -58,7 +58,7 @@ export function BedMap(p: BedMapProps) {
         ))}
       </defs>
       <rect x={X(p.originX)} y={Y(p.originY + p.heightMm)} width={p.widthMm} height={p.heightMm} fill="none" stroke="var(--ink)" strokeWidth={line * 1.5} />
-      <text x={X(p.originX + p.widthMm / 2)} y={margin * 0.7} fontSize={font} textAnchor="middle" fill="var(--muted)">back of bed</text>
+      <text x={X(p.originX + p.widthMm / 2)} y={margin * 0.7} fontSize={font} textAnchor="middle" fill="var(--muted)">{MAP_EDGE_WORDS.back}</text>
       {p.panels.map((q) => (
         <rect key={q.id} x={X(q.x)} y={Y(q.y + q.height)} width={q.width} height={q.height} fill="none" stroke="var(--map-panel)" strokeWidth={line} strokeDasharray={`${line * 6} ${line * 3}`} />
       ))}
@@ -87,7 +87,7 @@ export function BedMap(p: BedMapProps) {
           {q.note && <tspan fontSize={font * 0.75} dx={font * 0.5}>{q.note}</tspan>}
         </text>
       ))}
-      <text x={X(p.originX + p.widthMm / 2)} y={fy - margin * 0.25} fontSize={font} textAnchor="middle" fill="var(--ink)" fontWeight={700}>front of bed (you stand here)</text>
+      <text x={X(p.originX + p.widthMm / 2)} y={fy - margin * 0.25} fontSize={font} textAnchor="middle" fill="var(--ink)" fontWeight={700}>{MAP_EDGE_WORDS.front}</text>
       <g transform={`translate(${margin} ${fy + footer * 0.35})`}>
         <line x1={0} y1={0} x2={barLen} y2={0} stroke="var(--ink)" strokeWidth={line * 2} markerEnd="url(#gp-arrow-in)" />
         <line x1={0} y1={-font * 0.4} x2={0} y2={font * 0.4} stroke="var(--ink)" strokeWidth={line * 2} />

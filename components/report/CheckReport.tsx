@@ -16,7 +16,7 @@ import { MARK_ORDER } from '@/lib/report/palette';
 import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 import { mapGeometry, markRadiusMm, nearestSpacing, withOutline } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
-import { arrowScaleWords, hasFormView, MARK_WORD, positionMark, type MapView } from '@/lib/report/words';
+import { arrowScaleWords, hasFormView, MAP_EDGE_WORDS, MARK_WORD, positionMark, type MapView } from '@/lib/report/words';
 import { reportMapItems } from '@/lib/report/map-items';
 import { ZoomStage } from '@/components/review/ZoomStage';
 import { CommentsPanel } from '@/components/comments/Comments';
@@ -135,7 +135,7 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
           panels={geometry.panels.map((q) => ({ ...q, note: panelNote.get(q.id) }))}
           items={items} spacingMm={spacing} markRadiusMm={markRadiusMm(geometry, spacing)} exaggeration={exaggeration} unit={unit}
           selected={selected} onSelect={setSelected}
-          label={`Map of ${report.positions.length} positions seen from above, front of the bed at the bottom; ${arrowScaleWords(exaggeration)}, each showing a position's deviation${shown === 'form' ? ' hole to hole' : ''}.`}
+          label={`Map of ${report.positions.length} positions seen from above, ${MAP_EDGE_WORDS.orientation}; ${arrowScaleWords(exaggeration)}, each showing a position's deviation${shown === 'form' ? ' hole to hole' : ''}.`}
         />
         {selected && <p className="font-bold" aria-live="polite">{items.find((i) => i.key === selected)?.title}</p>}
       </section>

@@ -9,7 +9,7 @@ import type { Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { MARKS, markSvg, POSITION_MARKS, type Mark } from '@/lib/report/palette';
-import { arrowScaleWords, MARK_WORD, positionMark, reportCounts } from '@/lib/report/words';
+import { arrowScaleWords, MAP_EDGE_WORDS, MARK_WORD, positionMark, reportCounts } from '@/lib/report/words';
 import { escapeHtml } from './html';
 
 const GROUND = '#f7f7f2';
@@ -25,18 +25,23 @@ export function renderDeviationMapSvg(report: Report, opts: MapImageOptions = {}
   const W = Math.max(200, Math.min(2400, Math.round(opts.widthPx ?? 640)));
   const pad = 10;
   const legendH = 22;
+  // a line above the map and one below it for the names of the bed's edges
+  const edgeH = 12;
+  const top = pad + edgeH;
   const scale = (W - 2 * pad) / g.widthMm;
   const drawH = g.heightMm * scale;
-  const H = Math.ceil(drawH + 2 * pad + legendH);
+  const H = Math.ceil(drawH + 2 * pad + 2 * edgeH + legendH);
   const X = (xMm: number) => pad + (xMm - g.originX) * scale;
-  const Y = (yMm: number) => pad + drawH - (yMm - g.originY) * scale;
+  const Y = (yMm: number) => top + drawH - (yMm - g.originY) * scale;
   const f = (v: number) => v.toFixed(2);
   const exaggeration = reportArrowScale(report);
   const r = Math.max(1, markRadiusMm(g, nearestSpacing(report.positions)) * scale);
   const parts: string[] = [
     `<svg xmlns="http://www.w3.org/2000/svg" width="${W}" height="${H}" viewBox="0 0 ${W} ${H}" font-family="Helvetica, Arial, sans-serif">`,
     `<rect x="0" y="0" width="${W}" height="${H}" fill="#ffffff"/>`,
-    `<rect x="${f(pad)}" y="${f(pad)}" width="${f(g.widthMm * scale)}" height="${f(drawH)}" fill="${GROUND}" stroke="#1a2120" stroke-width="1"/>`,
+    `<rect x="${f(pad)}" y="${f(top)}" width="${f(g.widthMm * scale)}" height="${f(drawH)}" fill="${GROUND}" stroke="#1a2120" stroke-width="1"/>`,
+    `<text x="${f(W / 2)}" y="${f(top - 3)}" font-size="10" text-anchor="middle" fill="#616b69">${escapeHtml(MAP_EDGE_WORDS.back)}</text>`,
+    `<text x="${f(W / 2)}" y="${f(top + drawH + 11)}" font-size="10" text-anchor="middle" font-weight="bold" fill="#1a2120">${escapeHtml(MAP_EDGE_WORDS.front)}</text>`,
   ];
   for (const q of g.panels) {
     parts.push(`<rect x="${f(X(q.x))}" y="${f(Y(q.y + q.height))}" width="${f(q.width * scale)}" height="${f(q.height * scale)}" fill="none" stroke="#616b69" stroke-width="0.7"/>`);
@@ -62,7 +67,7 @@ export function renderDeviationMapSvg(report: Report, opts: MapImageOptions = {}
     parts.push(`<text x="${lx + 11}" y="${ly}" font-size="10" fill="#1a2120">${escapeHtml(label)}</text>`);
     lx += 18 + label.length * 5.6;
   }
-  parts.push(`<text x="${f(lx)}" y="${ly}" font-size="10" fill="#1a2120">${escapeHtml(arrowScaleWords(exaggeration))} · operator side at the bottom</text>`);
+  parts.push(`<text x="${f(lx)}" y="${ly}" font-size="10" fill="#1a2120">${escapeHtml(arrowScaleWords(exaggeration))}</text>`);
   parts.push('</svg>');
   return parts.join('\n');
 }

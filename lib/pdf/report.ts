@@ -18,7 +18,7 @@ import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/report/palette';
 import { formatAngle, formatLength, formatPpm, scaleOver } from '@/lib/report/units';
-import { arrowScaleWords, BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, outOfSightWords, positionMark, reportCounts, viewCounts, viewDeviation, viewMark, type MapView } from '@/lib/report/words';
+import { arrowScaleWords, BED_VERDICT_MARK, MAP_EDGE_WORDS, BED_VERDICT_WORD, figureCards, hasFormView, MAP_VIEW_MEANING, MAP_VIEW_WORD, MARK_WORD, outOfSightWords, positionMark, reportCounts, viewCounts, viewDeviation, viewMark, type MapView } from '@/lib/report/words';
 import { drawable, wrapText } from './text';
 import { photoNote } from '@/lib/report/photo-note';
 import { methodNote, methodNoteLines, type FitFamily } from '@/lib/report/method-note';
@@ -164,9 +164,10 @@ function drawMap(f: Flow, report: Report, exaggeration: number, view: MapView, m
   const scale = mapScale(f, report, maxHeightPt);
   const drawW = g.widthMm * scale;
   const drawH = g.heightMm * scale;
-  f.ensure(drawH + 40);
+  // room above the map for the name of the bed's back edge
+  f.ensure(drawH + 46);
   const x0 = f.left + (boxW - drawW) / 2;
-  const y0 = f.y - 8 - drawH;
+  const y0 = f.y - 14 - drawH;
   const px = (xMm: number) => x0 + (xMm - g.originX) * scale;
   const py = (yMm: number) => y0 + (yMm - g.originY) * scale;
   const page = f.page;
@@ -202,7 +203,13 @@ function drawMap(f: Flow, report: Report, exaggeration: number, view: MapView, m
     }
     drawMark(page, mark, cx, cy, r, MAP_GROUND);
   }
-  page.drawText('operator side (front)', { x: x0, y: y0 - 9, size: 6.5, font: f.regular, color: MUTED });
+  // the bed's edges named as on every map: the back above it, the front (the operator's side) below
+  const edge = (words: string, y: number) => {
+    const s = drawable(f.regular, words);
+    page.drawText(s, { x: x0 + (drawW - f.regular.widthOfTextAtSize(s, 6.5)) / 2, y, size: 6.5, font: f.regular, color: MUTED });
+  };
+  edge(MAP_EDGE_WORDS.back, y0 + drawH + 2);
+  edge(MAP_EDGE_WORDS.front, y0 - 9);
   f.y = y0 - 12;
   // Legend: every mark a position can have, its name and count, then the arrow scale.
   f.y -= 10;

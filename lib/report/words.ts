@@ -98,6 +98,18 @@ export function figureCards(c: ReportCounts, rms: string, largest: string): [str
   ];
 }
 
+/**
+ * The words naming the bed's edges on every drawing of the bed (the report's map on the web, the shared page and
+ * the comparison, the PDF's maps, the mail's map image, the accessory fit and the pattern drawing): the bed seen
+ * from above, its front (the operator's side, Y = 0) at the bottom and its back at the top. `orientation` says
+ * the same in a sentence's words, for a map's label.
+ */
+export const MAP_EDGE_WORDS = {
+  front: 'front of bed (you stand here)',
+  back: 'back of bed',
+  orientation: 'front of the bed at the bottom',
+} as const;
+
 /** The arrow exaggeration as every legend prints it. */
 export const arrowScaleWords = (factor: number): string => `arrows × ${factor.toLocaleString('en')}`;
 

@@ -31,7 +31,7 @@ import { makeScene } from '@/lib/geometry/synthetic';
 import { patternToMm } from '@/lib/geometry/units';
 import { withOutline } from '@/lib/report/map';
 import { hexToRgb01, MARKS, POSITION_MARKS, type Mark } from '@/lib/report/palette';
-import { BED_VERDICT_MARK, BED_VERDICT_WORD, MARK_WORD } from '@/lib/report/words';
+import { BED_VERDICT_MARK, BED_VERDICT_WORD, MAP_EDGE_WORDS, MARK_WORD } from '@/lib/report/words';
 import type { Actor } from '@/lib/services/actor';
 import { finishedCheck } from '@/tests/services/share-fixtures';
 import { call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
@@ -109,9 +109,10 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const url = new URL((sent.json as { link: { url: string } }).link.url);
     const token = url.pathname.split('/').pop()!;
     const data = (await call(sharedGet, { params: { token }, path: `/api/shared/${token}` })).json as SharedReportData;
-    const shared = readHtml(render(createElement('div', null,
+    const sharedHtml = render(createElement('div', null,
       createElement(SharedVerdict, { bedName: data.bedName, checkTitle: data.checkTitle, checkedAt: data.checkedAt, report: data.report, unit: 'mm' }),
-      createElement(SharedReport, { data, token, unit: 'mm' }))));
+      createElement(SharedReport, { data, token, unit: 'mm' })));
+    const shared = readHtml(sharedHtml);
 
     // --- as PDF, through its route
     const res = await pdfGet(new Request(`http://gridproof.test/api/checks/${checkId}/report.pdf`, { headers: { host: 'gridproof.test', cookie } }), { params: Promise.resolve({ id: checkId }) });
@@ -219,6 +220,18 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
       // each position's filled mark, one legend swatch, and the verdict's mark beside its word
       expect(ofColour(MARKS[m].colour), m).toBe(want.counts[m] + 1 + (m === verdictMark ? 1 : 0));
     }
+
+    // the bed's edges named in the same words beside every map: the page's, the shared page's, each of the
+    // PDF's maps (whole bed and hole to hole) and the mail's image
+    const textsOf = (html: string) => [...html.matchAll(/<text[^>]*>([^<]*)<\/text>/g)].map((m) => unescape(m[1]!));
+    const pdfMaps = pages.flatMap((p) => p.texts.map((x) => x.text));
+    for (const words of [MAP_EDGE_WORDS.back, MAP_EDGE_WORDS.front]) {
+      expect(textsOf(webHtml)).toContain(words);
+      expect(textsOf(sharedHtml)).toContain(words);
+      expect(textsOf(svg)).toContain(words);
+      expect(pdfMaps.filter((s) => s === drawable(helvetica, words))).toHaveLength(2);
+    }
+    for (const s of [unescape(webHtml), unescape(sharedHtml), svg, pdfText]) expect(s).not.toMatch(/operator side/i);
   });
 
   it("writes the same headline and figures in inches on all four for a reader who works in inches", async () => {

@@ -46,7 +46,8 @@ describe('deviation map image', () => {
     expect(meta.format).toBe('png');
     expect(meta.width).toBe(640);
     const bed = report.pattern as unknown as { bed: { width: number; height: number } };
-    // Drawn height = (640 − 2·10 px padding) × bed aspect, plus padding and the legend strip (42 px).
-    expect(meta.height).toBe(Math.ceil(((640 - 20) * bed.bed.height) / bed.bed.width + 20 + 22));
+    // Drawn height = (640 − 2·10 px padding) × bed aspect, plus padding, a 12 px line above and below the map for
+    // the names of the bed's edges, and the legend strip (66 px).
+    expect(meta.height).toBe(Math.ceil(((640 - 20) * bed.bed.height) / bed.bed.width + 20 + 24 + 22));
   });
 });
