@@ -6,6 +6,7 @@
  * camera's focal length, sheet thickness and measured distances) → positions → hole to hole → panels and seams →
  * lattice terms and camera → warnings and summary.
  */
+import { familyOffsetVarMm2 } from './bedfit';
 import type { MeasuredDistance, Pattern, Points, Report } from './contract';
 import { prepareInput } from './stages/input';
 import { firstMatch } from './stages/first-match';
@@ -82,8 +83,13 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const verdict = judgeShape(shape, options.maxScaleSigma ?? MAX_SCALE_SIGMA, options.maxSquarenessSigmaDeg ?? MAX_SQUARENESS_SIGMA_DEG);
 
   // Positions, hole to hole, panels.
-  const { positions, hidden, notExpected } = placePositions(inp, model, assignment, inFit, verdict.shapeOnly, verdict.observed ? shape.cov : null, centreSigmaPx);
-  const shapeCheck = holeToHole(inp, model, assignment, inFit, positions, verdict.shapeOnly, verdict.observed ? shape.sigma : null, centreSigmaPx);
+  const familyVarMm2 = familyOffsetVarMm2(model);
+  // each family's common offset against the one with the most matches (mm, lattice frame), where the fit had one
+  const familyOffsets = model.familyParam.some((p) => p >= 0)
+    ? lat.families.map((f, i) => ({ family: f.id, dx: model.familyDx[i] ?? 0, dy: model.familyDy[i] ?? 0 }))
+    : [];
+  const { positions, hidden, notExpected } = placePositions(inp, model, assignment, inFit, verdict.shapeOnly, verdict.observed ? shape.cov : null, centreSigmaPx, familyVarMm2);
+  const shapeCheck = holeToHole(inp, model, assignment, inFit, positions, verdict.shapeOnly, verdict.observed ? shape.sigma : null, centreSigmaPx, familyVarMm2);
   const panels = panelReport(lat, model, positions);
   const seams = seamReport(lat, model);
 
@@ -100,6 +106,7 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
       scaleSigmaParts: { corners: shape.parts.cornersScale, fit: shape.parts.fitScale }, diameterRatio: first.kappa, residualSigmaPx: model.sigmaPx,
       centreSigmaPx, inFit: fitCount, squareSidePx: shape.squareSidePx, cornerSigmaPx: shape.cornerSigmaPx, squareResidualPx: shape.squareResidualPx,
       hidden: hidden.reduce((a, b) => a + b, 0),
+      ...(familyOffsets.length ? { familyOffsetsMm: familyOffsets.map((o, i) => ({ ...o, sigmaMm: Math.sqrt(familyVarMm2[i] ?? 0) })) } : {}),
     },
   };
 }

@@ -21,6 +21,30 @@ export function distortPx(lens: Lens, u: number, v: number): [number, number] {
   return [lens.cx + lens.fPx * x * d, lens.cy + lens.fPx * y * d];
 }
 
+/** Points along a disc's rim whose image polygon gives the centroid of its image. */
+const RIM_POINTS = 24;
+
+/**
+ * Centroid of the image of a disc of radius `radiusMm` about plane point (x, y) mm, px, through `map` (plane mm →
+ * image px): the area centroid of the image polygon of its rim (Green's theorem). Not the image of the centre when
+ * the map bends (perspective, lens); it is what a centroid or an ellipse fit of the disc's image measures.
+ */
+export function discImageCentroidPx(map: (x: number, y: number) => readonly [number, number], x: number, y: number, radiusMm: number): [number, number] {
+  const [u0, v0] = map(x, y);
+  let a = 0, cx = 0, cy = 0;
+  let [pu, pv] = map(x + radiusMm, y);
+  pu -= u0; pv -= v0;
+  for (let i = 1; i <= RIM_POINTS; i++) {
+    const t = (2 * Math.PI * i) / RIM_POINTS;
+    let [qu, qv] = map(x + radiusMm * Math.cos(t), y + radiusMm * Math.sin(t));
+    qu -= u0; qv -= v0;
+    const c = pu * qv - qu * pv;
+    a += c; cx += (pu + qu) * c; cy += (pv + qv) * c;
+    pu = qu; pv = qv;
+  }
+  return a === 0 ? [u0, v0] : [u0 + cx / (3 * a), v0 + cy / (3 * a)];
+}
+
 /** Removes radial distortion from an observed image point (fixed-point iteration), px → px. */
 export function undistortPx(lens: Lens, u: number, v: number, iterations = 8): [number, number] {
   const xd = (u - lens.cx) / lens.fPx, yd = (v - lens.cy) / lens.fPx;

@@ -437,6 +437,11 @@ export const ReportSchema = z.object({
     squareResidualPx: finite,
     /** Positions under the reference sheet. */
     hidden: z.number().int(),
+    /**
+     * Each hole family's common offset in the fit against the family with the most matches (mm, lattice frame), when
+     * more than one family shares a panel: a family set off, or one whose holes look shifted (a lit wall).
+     */
+    familyOffsetsMm: z.array(z.object({ family: z.string(), dx: finite, dy: finite, /** Per-axis 1σ it leaves in each of the family's positions, mm. */ sigmaMm: finite })).optional(),
   }).optional(),
   /** The photo's quality as the first stage measured it (photo analyses only). */
   photo: z.object({ quality: PhotoQualitySchema }).optional(),

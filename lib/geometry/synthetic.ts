@@ -6,7 +6,7 @@
  * Invented data, for testing the method only.
  */
 import { composeAffine } from './affine';
-import { lookAt, projectBedPoint, type Camera } from './camera';
+import { discImageCentroidPx, lookAt, projectBedPoint, type Camera } from './camera';
 import type { Pattern, Points } from './contract';
 import { buildLattice } from './lattice';
 import { mulberry32, normalFrom } from './random';
@@ -141,7 +141,9 @@ export function makeScene(spec: SceneSpec): Scene {
     if (!p || p[0] < 0 || p[1] < 0 || p[0] >= W || p[1] >= H) return;
     const p2 = projectBedPoint(camera, x + fam.holeDiameter, y)!;
     const dPx = Math.hypot(p2[0] - p[0], p2[1] - p[1]) * (1 + 0.03 * gauss());
-    holes.push({ x: p[0] + noise * gauss(), y: p[1] + noise * gauss(), diameterPx: dPx });
+    // a detector measures the centroid of the hole's image, which perspective and the lens move off the centre's image
+    const c = discImageCentroidPx((bx, by) => projectBedPoint(camera, bx, by) ?? [NaN, NaN], x, y, fam.holeDiameter / 2);
+    holes.push({ x: c[0] + noise * gauss(), y: c[1] + noise * gauss(), diameterPx: dPx });
     detPos.push(i);
     seen[i] = 1;
   });

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { loadCv } from './opencv';
-import { distortPx, focalFromHomography, lookAt, projectBedPoint, undistortPx, type Lens } from '@/lib/geometry/camera';
+import { discImageCentroidPx, distortPx, focalFromHomography, lookAt, projectBedPoint, undistortPx, type Lens } from '@/lib/geometry/camera';
 import { homographyDlt, type Pt } from '@/lib/geometry/homography';
+import { applyH, mat3Inv, type Mat3 } from '@/lib/geometry/linalg';
 
 describe('Brown–Conrady lens model', () => {
   it("maps ideal pixels to distorted ones as OpenCV's undistort does", () => {
@@ -63,5 +64,27 @@ describe('pinhole projection', () => {
     const top = { ...lookAt([600, 500, 1400], [600, 500, 0]), fPx: f, cx: 2000, cy: 1500, k1: 0, k2: 0 };
     const h2 = homographyDlt(plane, plane.map((p) => projectBedPoint(top, p[0], p[1])!));
     expect(focalFromHomography(h2, 2000, 1500)).toBeNull();
+  });
+
+  it("puts a circle's image centroid at the centre of its image ellipse, off the image of its centre", () => {
+    // Hartley & Zisserman (2004) result 2.13: under x' = Hx a conic C maps to H⁻ᵀ C H⁻¹; an ellipse's centre is the
+    // pole of the line at infinity, C⁻¹ (0, 0, 1)ᵀ, and its area centroid (it is symmetric about it).
+    const cam = { ...lookAt([900, -600, 900], [400, 300, 0]), fPx: 2500, cx: 2000, cy: 1500, k1: 0, k2: 0 };
+    const plane: Pt[] = [[0, 0], [800, 0], [800, 600], [0, 600], [400, 300]];
+    const H = homographyDlt(plane, plane.map((p) => projectBedPoint(cam, p[0], p[1])!)) as Mat3;
+    const [x0, y0, R] = [650, 520, 15];
+    // the circle (x − x0)² + (y − y0)² = R² as a symmetric 3 × 3 conic, mapped into the image
+    const C = [1, 0, -x0, 0, 1, -y0, -x0, -y0, x0 * x0 + y0 * y0 - R * R];
+    const Hi = mat3Inv(H);
+    const mul = (a: number[], b: number[]) => [0, 1, 2].flatMap((i) => [0, 1, 2].map((j) => a[3 * i]! * b[j]! + a[3 * i + 1]! * b[3 + j]! + a[3 * i + 2]! * b[6 + j]!));
+    const HiT = [Hi[0], Hi[3], Hi[6], Hi[1], Hi[4], Hi[7], Hi[2], Hi[5], Hi[8]];
+    const Ci = mat3Inv(mul(mul(HiT, C), Hi) as Mat3);
+    const centre = [Ci[2] / Ci[8], Ci[5] / Ci[8]];
+    const got = discImageCentroidPx((x, y) => applyH(H, x, y), x0, y0, R);
+    const ofCentre = applyH(H, x0, y0);
+    // a real shift, which the polygon of rim points finds to a small part of it
+    const shift = Math.hypot(centre[0]! - ofCentre[0], centre[1]! - ofCentre[1]);
+    expect(shift).toBeGreaterThan(0.05);
+    expect(Math.hypot(got[0] - centre[0]!, got[1] - centre[1]!)).toBeLessThan(0.02 * shift);
   });
 });

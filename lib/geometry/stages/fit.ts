@@ -41,9 +41,9 @@ export function fitLensAndBed(
   const lens0: Lens = { fPx: image.startFocalPx, cx: image.width / 2, cy: image.height / 2, k1: 0, k2: 0 };
   const runFit = (a: Assignment, warm?: BedModel) => {
     const p = matchedPairs(inp, a);
-    const nominal = new Float64Array(2 * p.idx.length), observed = new Float64Array(2 * p.idx.length), panel = new Int32Array(p.idx.length), w = new Float64Array(p.idx.length);
-    p.idx.forEach((i, k) => { const pos = lat.positions[a.posOf[i]!]!; nominal[2 * k] = pos.x; nominal[2 * k + 1] = pos.y; observed[2 * k] = det.u[i]!; observed[2 * k + 1] = det.v[i]!; panel[k] = pos.panel; w[k] = det.conf[i]!; });
-    return { model: fitBed({ nominal, observed, panel, n: p.idx.length, panels: lat.panels, lens: lens0, H0: start.bedToImage, fitDistortion, weights: w, warm }), idx: p.idx };
+    const nominal = new Float64Array(2 * p.idx.length), observed = new Float64Array(2 * p.idx.length), panel = new Int32Array(p.idx.length), family = new Int32Array(p.idx.length), radiusMm = new Float64Array(p.idx.length), w = new Float64Array(p.idx.length);
+    p.idx.forEach((i, k) => { const pos = lat.positions[a.posOf[i]!]!; nominal[2 * k] = pos.x; nominal[2 * k + 1] = pos.y; observed[2 * k] = det.u[i]!; observed[2 * k + 1] = det.v[i]!; panel[k] = pos.panel; family[k] = pos.family; radiusMm[k] = lat.families[pos.family]!.family.holeDiameter / 2; w[k] = det.conf[i]!; });
+    return { model: fitBed({ nominal, observed, panel, family, radiusMm, n: p.idx.length, panels: lat.panels, lens: lens0, H0: start.bedToImage, fitDistortion, weights: w, warm }), idx: p.idx };
   };
   // Where a position is expected in the lattice frame (mm): its nominal point moved by its panel's fitted offset.
   const expectedAt = (m: BedModel) => (pos: number): [number, number] => {

@@ -5,7 +5,7 @@
  * (mm) the square's shape terms, with the stretch or shear the form affine found, make at any nominal position.
  */
 import { decomposeAffine, type Mat2 } from '../affine';
-import { mmPerPxAt, toLattice, type BedModel } from '../bedfit';
+import { holeToLattice, mmPerPxAt, type BedModel } from '../bedfit';
 import type { Report, ReportShapeCheck } from '../contract';
 import type { Assignment } from '../correspond';
 import { formFit, positionForm, shapeCheck } from '../form';
@@ -18,15 +18,15 @@ import type { AnalysisInput } from './input';
  */
 export function holeToHole(
   inp: AnalysisInput, model: BedModel, assignment: Assignment, inFit: Uint8Array, positions: Report['positions'],
-  shapeOnly: Mat2, shapeSigma: { scaleX: number; scaleY: number; squarenessRad: number } | null, centreSigmaPx: number,
+  shapeOnly: Mat2, shapeSigma: { scaleX: number; scaleY: number; squarenessRad: number } | null, centreSigmaPx: number, familyVarMm2: Float64Array,
 ): ReportShapeCheck {
   const { detections: det, lattice: lat } = inp;
   const formAt = positions.flatMap((p, pos) => (p.measured ? [pos] : []));
   const detAt = (pos: number) => assignment.detOf[pos]!;
   const form = formFit(
     formAt.flatMap((pos) => [lat.positions[pos]!.x, lat.positions[pos]!.y]),
-    formAt.flatMap((pos) => toLattice(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)),
-    formAt.map((pos) => centreSigmaPx * mmPerPxAt(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)),
+    formAt.flatMap((pos) => holeToLattice(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!, lat.families[lat.positions[pos]!.family]!.family.holeDiameter / 2)),
+    formAt.map((pos) => Math.sqrt((centreSigmaPx * mmPerPxAt(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)) ** 2 + (familyVarMm2[lat.positions[pos]!.family] ?? 0))),
     formAt.map((pos) => inFit[detAt(pos)]!),
   );
   formAt.forEach((pos, k) => { positions[pos]!.form = positionForm(form, k, positions[pos]!.toleranceMm); });

@@ -7,7 +7,7 @@
  * the lattice within 5 % and 2°).
  */
 import { decomposeAffine, type Mat2 } from '../affine';
-import { toLattice, mmPerPxAt, type BedModel } from '../bedfit';
+import { holeToLattice, mmPerPxAt, type BedModel } from '../bedfit';
 import { MeasuredDistancesSchema, type MeasuredDistance, type Report } from '../contract';
 import type { Assignment } from '../correspond';
 import { applyDistances } from '../distances';
@@ -43,7 +43,7 @@ export function shapeWithDistances(
   const det = inp.detections;
   return applyDistances(shape, given, inp.lattice, (pos) => {
     const d = assignment.detOf[pos]!;
-    return d < 0 ? null : { xyMm: toLattice(model, det.u[d]!, det.v[d]!), sigmaMm: centreSigmaPx * mmPerPxAt(model, det.u[d]!, det.v[d]!) };
+    return d < 0 ? null : { xyMm: holeToLattice(model, det.u[d]!, det.v[d]!, inp.lattice.families[inp.lattice.positions[pos]!.family]!.family.holeDiameter / 2), sigmaMm: centreSigmaPx * mmPerPxAt(model, det.u[d]!, det.v[d]!) };
   });
 }
 

@@ -8,7 +8,7 @@
  * `outOfView` when outside the photo; those are not expected to be seen, and never in or out.
  */
 import type { Mat2 } from '../affine';
-import { mmPerPxAt, predictPx, toLattice, type BedModel } from '../bedfit';
+import { mmPerPxAt, predictPx, holeToLattice, type BedModel } from '../bedfit';
 import type { HiddenReason, Report } from '../contract';
 import type { Assignment } from '../correspond';
 import { shapeDisplacementVar } from '../shape';
@@ -30,9 +30,11 @@ export interface PlacedPositions {
  * @param shapeOnly lattice frame → true frame (shape only)
  * @param shapeCov covariance of (scale X, scale Y, squareness rad), or null when the shape is not observed
  * @param centreSigmaPx 1σ of a detected centre, px
+ * @param familyVarMm2 per-axis variance that its family's common offset leaves in a position, mm², by family
+ *   (familyOffsetVarMm2)
  */
 export function placePositions(
-  inp: AnalysisInput, model: BedModel, assignment: Assignment, inFit: Uint8Array, shapeOnly: Mat2, shapeCov: readonly number[] | null, centreSigmaPx: number,
+  inp: AnalysisInput, model: BedModel, assignment: Assignment, inFit: Uint8Array, shapeOnly: Mat2, shapeCov: readonly number[] | null, centreSigmaPx: number, familyVarMm2: Float64Array,
 ): PlacedPositions {
   const { detections: det, lattice: lat, square } = inp;
   const { width: W, height: H } = inp.image;
@@ -44,7 +46,7 @@ export function placePositions(
   for (let i = 0; i < det.n; i++) {
     const pos = assignment.posOf[i]!;
     if (pos < 0) continue;
-    const [x, y] = toLattice(model, det.u[i]!, det.v[i]!);
+    const [x, y] = holeToLattice(model, det.u[i]!, det.v[i]!, lat.families[lat.positions[pos]!.family]!.family.holeDiameter / 2);
     mXY[2 * pos] = Ls[0] * x + Ls[1] * y; mXY[2 * pos + 1] = Ls[2] * x + Ls[3] * y;
     if (inFit[i]) { const q = lat.positions[pos]!; fitX.push(q.x, q.y); fitY.push(mXY[2 * pos]!, mXY[2 * pos + 1]!); fitW.push(1); }
   }
@@ -84,7 +86,7 @@ export function placePositions(
     const s = mmPerPxAt(model, det.u[d]!, det.v[d]!);
     const ex = q.x - cxm, ey = q.y - cym;
     const shapeVar = shapeCov ? shapeDisplacementVar(shapeCov, ex, ey) : 0;
-    const u = Math.sqrt((centreSigmaPx * s) ** 2 + shapeVar);
+    const u = Math.sqrt((centreSigmaPx * s) ** 2 + (familyVarMm2[q.family] ?? 0) + shapeVar);
     return { ...base, measured: { x, y }, deviation: { dx, dy, r }, uncertaintyMm: u, verdict: positionVerdict(r, u, fam.toleranceMm) };
   });
   return { positions, hidden, notExpected };
