@@ -2,7 +2,8 @@
  * Calibration of photo mode's stated uncertainty (`npm run bench:vision -- --part calibration`, JSON): seeded scenes
  * rendered once and developed through every camera pipeline (lib/vision/render synthesizeCameras), photo → report
  * with analyzeImage, and against the renderer's truth:
- * - RMS of error/σ of scale X, scale Y, squareness and positions (honest: 0.7–1.4);
+ * - RMS of error/σ of scale X, scale Y, squareness and positions (honest: 0.7–1.4), and the stated 1σ of each
+ *   (median and largest);
  * - per pipeline the stated scale 1σ and the actual scale error (ppm), and one scene's spread across pipelines;
  * - where the scale error comes from: the reference alone (its detected corners taken onto the bed through the
  *   true camera, each side's length against the printed one) and the rest (the lattice fit and lens);
@@ -79,14 +80,14 @@ function referenceTerms(corners: readonly (readonly [number, number])[], truth: 
   return { x: t0[0]!, y: t0[1]!, q: t0[2]!, sigma: { x: v[0]!, y: v[1]!, q: v[2]! } };
 }
 
-/** Sum of squared error/σ over the measured positions, after the one rigid motion between report and truth. */
-function positionZ(report: Report, truth: Truth): { sumZ2: number; n: number } {
+/** Sum of squared error/σ over the measured positions, after the one rigid motion between report and truth; their σ (mm). */
+function positionZ(report: Report, truth: Truth): { sumZ2: number; n: number; sigmaMm: number[] } {
   const rows = report.positions.flatMap((p) => {
     const t = truth.holes.find((h) => h.family === p.family && h.col === p.col && h.row === p.row);
     return p.measured && p.uncertaintyMm && t?.visible ? [{ m: p.measured, u: p.uncertaintyMm, t: t.bed }] : [];
   });
   const n = rows.length;
-  if (n < 3) return { sumZ2: 0, n: 0 };
+  if (n < 3) return { sumZ2: 0, n: 0, sigmaMm: [] };
   const mx = rows.reduce((s, r) => s + r.m.x, 0) / n, my = rows.reduce((s, r) => s + r.m.y, 0) / n;
   const tx = rows.reduce((s, r) => s + r.t.x, 0) / n, ty = rows.reduce((s, r) => s + r.t.y, 0) / n;
   let sc = 0, ss = 0;
@@ -97,7 +98,7 @@ function positionZ(report: Report, truth: Truth): { sumZ2: number; n: number } {
     const px = r.t.x - tx, py = r.t.y - ty;
     z2 += ((c * px - s * py + mx - r.m.x) ** 2 + (s * px + c * py + my - r.m.y) ** 2) / r.u ** 2;
   }
-  return { sumZ2: z2, n: 2 * n };
+  return { sumZ2: z2, n: 2 * n, sigmaMm: rows.map((r) => r.u) };
 }
 
 const rms = (a: number[]) => { const f = a.filter(Number.isFinite); return f.length ? +Math.sqrt(f.reduce((s, v) => s + v * v, 0) / f.length).toFixed(3) : null; };
@@ -109,6 +110,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
   // the reference alone: its error on the bed (true camera) over its corners' stated covariance propagated there
   const zr = { scaleX: [] as number[], scaleY: [] as number[], squareness: [] as number[] };
   let pz2 = 0, pn = 0;
+  const stated = { scalePpm: [] as number[], squarenessDeg: [] as number[], positionMm: [] as number[] };
   const per = Object.fromEntries(CAMERA_PIPELINES.map((c) => [c, { stated: [] as number[], err: [] as number[], reference: [] as number[], rest: [] as number[], biasPx: [] as number[], statedCorners: [] as number[], statedFit: [] as number[] }]));
   const spread = { x: [] as number[], y: [] as number[], sq: [] as number[] };
   const failures: string[] = [];
@@ -135,6 +137,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
       z.scaleX.push(ex / u.scaleX); z.scaleY.push(ey / u.scaleY); z.squareness.push(eq / u.squarenessDeg);
       const p = positionZ(res.report, truth);
       pz2 += p.sumZ2; pn += p.n;
+      stated.scalePpm.push(u.scaleX * 1e6, u.scaleY * 1e6); stated.squarenessDeg.push(u.squarenessDeg); stated.positionMm.push(...p.sigmaMm);
       const ref = referenceTerms(res.points.reference.corners, truth, res.points.reference.cornerCovPx2);
       if (ref.sigma) { zr.scaleX.push(ref.x / ref.sigma.x); zr.scaleY.push(ref.y / ref.sigma.y); zr.squareness.push(ref.q / ref.sigma.q); }
       const P = per[cam]!;
@@ -153,6 +156,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
   return {
     style, scenes, photos: z.scaleX.length, failures,
     rmsErrorOverSigma: { scaleX: rms(z.scaleX), scaleY: rms(z.scaleY), squareness: rms(z.squareness), positions: pn ? +Math.sqrt(pz2 / pn).toFixed(3) : null },
+    stated1Sigma: Object.fromEntries(Object.entries(stated).map(([k, v]) => [k, { median: +med(v).toPrecision(3), max: +Math.max(...v).toPrecision(3) }])),
     referenceAloneRmsErrorOverSigma: { scaleX: rms(zr.scaleX), scaleY: rms(zr.scaleY), squareness: rms(zr.squareness) },
     perPipeline: Object.fromEntries(CAMERA_PIPELINES.map((c) => {
       const P = per[c]!;
@@ -169,7 +173,7 @@ async function calibrate(style: 'frame' | 'plain', scenes: number) {
 }
 
 /** The calibration part: `scenes` framed-target scenes and `plainScenes` plain-square scenes, each × 3 pipelines. */
-export async function calibrationPart(scenes = 12, plainScenes = 4): Promise<Record<string, unknown>> {
+export async function calibrationPart(scenes = 30, plainScenes = 4): Promise<Record<string, unknown>> {
   mkdirSync(CACHE, { recursive: true });
   const t0 = performance.now();
   const frame = await calibrate('frame', scenes);
