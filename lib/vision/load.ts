@@ -136,6 +136,16 @@ function mixGrey16(src: Uint16Array, grey: Float32Array, px: number, ch: number,
   for (let i = 0, j = 0; i < px; i++, j += ch) grey[i] = a * src[j]! + b * src[j + 1]! + c * src[j + 2]!;
 }
 
+/** Median grey level (0–255) of an 8-bit image, from a histogram of every `stride`-th px. */
+export function medianLevel(data: Uint8Array, stride: number): number {
+  const hist = new Uint32Array(256);
+  for (let i = 0; i < data.length; i += stride) hist[data[i]!]!++;
+  let acc = 0;
+  const half = hist.reduce((x, y) => x + y, 0) / 2;
+  for (let v = 0; v < 256; v++) if ((acc += hist[v]!) >= half) return v;
+  return 255;
+}
+
 /** Box-averaged reduction by an integer factor, to 8 bit (for the candidate passes). */
 export function reduce(grey: Float32Array, w: number, h: number, factor: number): { data: Uint8Array; width: number; height: number } {
   const W = Math.floor(w / factor);
