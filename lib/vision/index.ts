@@ -9,7 +9,7 @@ import { VisionInputError } from './errors';
 import { homographyFrom4, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { findHoles, type CentreMethod, type FamilySize, type HoleDetection, type PartialHole } from './holes';
 import { findSheet, signedDistanceToOutline, type SheetOutline } from './sheet';
-import { DEFAULT_MAX_PIXELS, loadPhoto, reduce } from './load';
+import { DEFAULT_MAX_PIXELS, loadPhoto, medianLevel, reduce } from './load';
 import { measureQuality } from './quality';
 import { findSquare, type Corners } from './square';
 import { targetCornersMm } from './target';
@@ -30,15 +30,6 @@ export interface HiddenHole {
   diameterPx: number;
   by: HiddenReason;
   family?: string;
-}
-
-function medianOf(a: Uint8Array): number {
-  const hist = new Uint32Array(256);
-  for (let i = 0; i < a.length; i += 7) hist[a[i]!]!++;
-  let acc = 0;
-  const half = hist.reduce((x, y) => x + y, 0) / 2;
-  for (let v = 0; v < 256; v++) if ((acc += hist[v]!) >= half) return v;
-  return 255;
 }
 
 /** Fewest holes the fit can work with. */
@@ -171,7 +162,7 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   // Holes seen in part are not measured: their rim, with a blur margin, meets the sheet or the photo's border, or is
   // cut over a long arc by something lying over it.
   // (only around a square found in the photo: corners marked by hand may lie on anything)
-  const sheet = square.source === 'detected' ? findSheet(grey, w, h, H, S, medianOf(small.data)) : null;
+  const sheet = square.source === 'detected' ? findSheet(grey, w, h, H, S, medianLevel(small.data, 7)) : null;
   const dets: typeof found = [];
   const hidden: HiddenHole[] = [];
   const reasonOf = (x: number, y: number, diameterPx: number, planeMm: [number, number], gapDeg: number): HiddenReason | null => {

@@ -38,6 +38,7 @@ import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { sampleGrey, type Corners } from './square';
 import { FRAME_FRACTION, targetCornersMm } from './target';
+import { medianLevel } from './load';
 
 /** Default 35 mm-equivalent focal length of a phone's main camera when EXIF does not say (common practice, 24–28 mm). */
 export const ASSUMED_FOCAL_35MM = 27;
@@ -304,17 +305,7 @@ async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: n
   const S = q.referenceMm;
   const k = q.pattern.units === 'in' ? 25.4 : 1;
   const fams = q.pattern.families.map((f) => f.holeDiameter * k);
-  const hist = new Uint32Array(256);
-  for (let i = 0; i < small.data.length; i += 5) hist[small.data[i]!]!++;
-  let acc = 0;
-  let med = 255;
-  const half = hist.reduce((a, b) => a + b, 0) / 2;
-  for (let v = 0; v < 256; v++)
-    if ((acc += hist[v]!) >= half) {
-      med = v;
-      break;
-    }
-  const thr = 0.55 * med;
+  const thr = 0.55 * medianLevel(small.data, 5);
   const bin = new Uint8Array(small.data.length);
   for (let i = 0; i < bin.length; i++) bin[i] = small.data[i]! < thr ? 255 : 0;
   const { cv } = await getCv();
