@@ -111,7 +111,8 @@ export function ReportView({ report: stored, detail }: { report: Report; detail:
             <button key={u} type="button" className={`btn ${unit === u ? '' : 'btn-quiet'}`} aria-pressed={unit === u} onClick={() => setUnit(u)}>{u === 'mm' ? 'mm' : 'inch'}</button>
           ))}
         </fieldset>
-        <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=csv&units=${unit}`} download data-testid="export-csv">CSV</a>
+        <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=csv&units=${unit}`} download data-testid="export-csv">Positions CSV</a>
+        {report.panels.length > 0 && <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=panels-csv&units=${unit}`} download data-testid="export-panels-csv">Panels CSV</a>}
         <a className="btn btn-quiet" href={`/api/checks/${id}/export?format=json`} download>JSON</a>
         <button type="button" className="btn btn-quiet" onClick={() => window.print()}>Print</button>
         {detail.can.review && <Link className="btn btn-quiet" href={`/checks/${id}/review`} data-testid="open-review">Review detections</Link>}

@@ -5,6 +5,7 @@
  * Bed frame: origin front-left, +X right, +Y away from the operator.
  */
 import type { Report } from '@/lib/geometry/contract';
+import { panelStates } from './headline';
 import { hiddenWords } from './hidden';
 import { csvLength, type LengthUnit } from './units';
 import { formatUtcDay } from '@/lib/dates';
@@ -41,11 +42,23 @@ export function positionsCsv(report: Report, unit: LengthUnit): string {
   return toCsv([header, ...rows]);
 }
 
-/** The panels of a report as CSV: offsets, turn and the correcting move, lengths in `unit`. */
+/**
+ * The panels of a report as CSV, one row a panel, lengths in `unit`: its offset (dx, dy) and turn (degrees,
+ * counter-clockwise seen from above) with their 1σ, the holes it was placed from, the move that puts it back (the
+ * negative of the offset and turn, about its centre), its state (lib/report/headline.ts panelStates: reseat,
+ * in-place, not-placed) and the core's correction in words.
+ */
 export function panelsCsv(report: Report, unit: LengthUnit): string {
   const u = unit;
-  const header = ['panel', `dx_${u}`, `dy_${u}`, 'rotation_deg', `uncertainty_1sigma_${u}`, 'positions', 'correction'];
-  return toCsv([header, ...report.panels.map((p) => [p.id, csvLength(p.dx, u), csvLength(p.dy, u), p.rotationDeg.toFixed(4), csvLength(p.uncertaintyMm, u), p.positions, p.correction])]);
+  const states = panelStates(report);
+  const deg = (v: number | undefined) => (v === undefined ? '' : v.toFixed(4));
+  const header = ['panel', `dx_${u}`, `dy_${u}`, 'rotation_deg', `uncertainty_1sigma_${u}`, 'rotation_uncertainty_1sigma_deg', 'positions',
+    `move_x_${u}`, `move_y_${u}`, 'turn_deg', 'verdict', 'correction'];
+  const rows = report.panels.map((p) => [
+    p.id, csvLength(p.dx, u), csvLength(p.dy, u), deg(p.rotationDeg), csvLength(p.uncertaintyMm, u), deg(p.rotationUncertaintyDeg), p.positions,
+    csvLength(-p.dx, u), csvLength(-p.dy, u), deg(-p.rotationDeg), states.get(p.id) ?? '', p.correction,
+  ]);
+  return toCsv([header, ...rows]);
 }
 
 /** A file name for an export: `gridproof-<bed or check>-<yyyy-mm-dd>.<ext>`, safe on every file system. */

@@ -13,21 +13,32 @@ import { formatLength, type LengthUnit } from './units';
 import { reportCounts } from './words';
 
 /**
- * Panels that sit off and should be reseated: their corners move more than half the tightest tolerance and more
- * than twice the panel's 1σ. Needs the panels' outline (report.pattern.panels); without it a panel's corners are
- * taken to move as its centre, the least they can move, so a panel turned more than shifted may be missed.
+ * Where each panel stands (by its id): `reseat` when it sits off, its corners moving more than half the tightest
+ * tolerance and more than twice the panel's 1σ; `not-placed` when too few of its holes were seen to place it (its
+ * 1σ as large as the panel); `in-place` otherwise, and for the whole bed as its own single panel. Needs the panels'
+ * outline (report.pattern.panels); without it a panel's corners are taken to move as its centre, the least they
+ * can move, so a panel turned more than shifted may be missed.
  */
-export function panelsToReseat(report: Pick<Report, 'positions' | 'panels' | 'pattern'>): string[] {
+export function panelStates(report: Pick<Report, 'positions' | 'panels' | 'pattern'>): Map<string, PanelState> {
   const outline = report.pattern.panels ?? [];
   const k = report.pattern.units === 'in' ? 25.4 : 1;
   const minTol = Math.min(...report.positions.map((p) => p.toleranceMm));
-  return report.panels.filter((q) => {
+  return new Map(report.panels.map((q): [string, PanelState] => {
     const o = outline.find((p) => p.id === q.id);
     const [w, h] = o ? [o.width * k, o.height * k] : [0, 0];
-    if ((o && q.uncertaintyMm >= Math.hypot(w, h)) || (!o && outline.length === 0 && report.panels.length === 1 && q.id === 'bed')) return false;
+    if (o && q.uncertaintyMm >= Math.hypot(w, h)) return [q.id, 'not-placed'];
+    if (!o && outline.length === 0 && report.panels.length === 1 && q.id === 'bed') return [q.id, 'in-place'];
     const s = panelCornerShift(w, h, q.dx, q.dy, (q.rotationDeg * Math.PI) / 180);
-    return s > 0.5 * minTol && s > 2 * q.uncertaintyMm;
-  }).map((q) => q.id);
+    return [q.id, s > 0.5 * minTol && s > 2 * q.uncertaintyMm ? 'reseat' : 'in-place'];
+  }));
+}
+
+export type PanelState = 'reseat' | 'in-place' | 'not-placed';
+
+/** The panels that sit off and should be reseated (panelStates), in the report's order. */
+export function panelsToReseat(report: Pick<Report, 'positions' | 'panels' | 'pattern'>): string[] {
+  const states = panelStates(report);
+  return report.panels.filter((q) => states.get(q.id) === 'reseat').map((q) => q.id);
 }
 
 /** Writes a length in `unit` for the core's sentences. */

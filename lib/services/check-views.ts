@@ -10,7 +10,7 @@
  *   camera serial), kept in storage so it is made once. A photo no copy can be made of (cut short, damaged,
  *   more than `PREVIEW_MAX_PIXELS`) answers 422 `photo_unreadable` with the reason, which is kept on the photo
  *   row so the detail says the photo is not available, and why.
- * - `exportCheck`: the report as CSV or JSON, lengths in the chosen unit.
+ * - `exportCheck`: the positions or the panels as CSV, lengths in the chosen unit, or the report as JSON.
  */
 import sharp from 'sharp';
 import type { Db } from '@/db/client';
@@ -22,7 +22,7 @@ import { patternToMm, type PatternMm } from '@/lib/geometry';
 import { parseStoredJson } from '@/lib/stored-json';
 import { PatternSchema, PointsSchema, ReportSchema, type Points, type Report } from '@/lib/geometry/contract';
 import { AppError, notFound } from '@/lib/http/errors';
-import { exportFileName, positionsCsv } from '@/lib/report/csv';
+import { exportFileName, panelsCsv, positionsCsv } from '@/lib/report/csv';
 import type { LengthUnit } from '@/lib/report/units';
 import { authorize, can, type Actor } from '@/lib/services/actor';
 import { BlobNotFoundError, type Storage } from '@/lib/storage';
@@ -175,8 +175,12 @@ export async function getDisplayPhoto(db: Db, storage: Storage, actor: Actor, id
   return { bytes: await displayCopy(db, storage, photo, size), etag: `"${photo.sha256.slice(0, 32)}-${size}"` };
 }
 
-/** `GET /api/checks/{id}/export?format=csv|json&units=mm|in` */
-export async function exportCheck(db: Db, actor: Actor, id: string, format: 'csv' | 'json', unit: LengthUnit): Promise<{ body: string; contentType: string; fileName: string }> {
+/** What a check exports as: its positions as CSV, its panels as CSV, or the report JSON. */
+export const EXPORT_FORMATS = ['csv', 'panels-csv', 'json'] as const;
+export type ExportFormat = (typeof EXPORT_FORMATS)[number];
+
+/** `GET /api/checks/{id}/export?format=csv|panels-csv|json&units=mm|in` */
+export async function exportCheck(db: Db, actor: Actor, id: string, format: ExportFormat, unit: LengthUnit): Promise<{ body: string; contentType: string; fileName: string }> {
   authorize(actor, 'workshop:read');
   const row = await getCheck(db, actor.workshopId, id);
   if (!row) throw notFound('check');
@@ -185,6 +189,8 @@ export async function exportCheck(db: Db, actor: Actor, id: string, format: 'csv
   const bed = await getBed(db, actor.workshopId, row.bedId);
   const stem = `${bed?.name ?? 'bed'}-${row.title ?? row.id.slice(0, 8)}`;
   const date = new Date(row.finishedAt ?? row.createdAt);
-  if (format === 'csv') return { body: positionsCsv(report, unit), contentType: 'text/csv; charset=utf-8; header=present', fileName: exportFileName(stem, date, 'csv') };
+  const csv = 'text/csv; charset=utf-8; header=present';
+  if (format === 'csv') return { body: positionsCsv(report, unit), contentType: csv, fileName: exportFileName(stem, date, 'csv') };
+  if (format === 'panels-csv') return { body: panelsCsv(report, unit), contentType: csv, fileName: exportFileName(`${stem}-panels`, date, 'csv') };
   return { body: JSON.stringify(report, null, 2), contentType: 'application/json; charset=utf-8', fileName: exportFileName(stem, date, 'json') };
 }

@@ -17,7 +17,7 @@ import { makeScene } from '@/lib/geometry/synthetic';
 import { createBed } from '@/lib/services/beds';
 import type { Actor } from '@/lib/services/actor';
 import { addMember, call, newOwner, useFreshDatabase, type WebTestDb, sessionCookie } from '@/tests/web/helpers';
-import { SMALL_PATTERN } from '@/tests/checks/fixtures';
+import { SMALL_PATTERN, twoPanelDogBed } from '@/tests/checks/fixtures';
 
 let t: WebTestDb;
 let owner: Actor;
@@ -105,5 +105,45 @@ describe('check read routes', () => {
     const js = await call(exportGet, { cookie: reviewerCookie, params: { id: checkId }, path: `/api/checks/${checkId}/export?format=json` });
     expect(js.status).toBe(200);
     expect(js.json).toMatchObject({ version: 1, units: 'mm', summary: { matched: report.summary.matched } });
+  });
+  it('exports the panels as CSV, one row a panel in the asked unit, with the move that puts each back', async () => {
+    // two panels, each shifted by up to 0.6 mm: the scene's own truth is what the CSV must carry
+    const pattern = twoPanelDogBed('two-panel export bed', { heightMm: 600, originYMm: 60, rows: 6, toleranceMm: 0.3 });
+    const scene = makeScene({ pattern, seed: 7, panelShiftMm: 0.6, centreNoisePx: 0.05, cornerNoisePx: 0.05, missingFraction: 0, spuriousFraction: 0 });
+    const report = analyzePoints(scene.points, pattern);
+    await t.db.update(checks).set({ status: 'done', reportJson: JSON.stringify(report) }).where(eq(checks.id, checkId));
+    const res = await exportGet(new Request(`http://gridproof.test/api/checks/${checkId}/export?format=panels-csv&units=in`, { headers: { cookie: reviewerCookie, host: 'gridproof.test' } }), { params: Promise.resolve({ id: checkId }) });
+    expect(res.status).toBe(200);
+    expect(res.headers.get('content-type')).toMatch(/^text\/csv/);
+    expect(res.headers.get('content-disposition')).toMatch(/^attachment; filename="gridproof-router-bed-.*-panels-\d{4}-\d{2}-\d{2}\.csv"$/);
+    const lines = (await res.text()).split('\r\n');
+    expect(lines[0]).toBe('panel,dx_in,dy_in,rotation_deg,uncertainty_1sigma_in,rotation_uncertainty_1sigma_deg,positions,move_x_in,move_y_in,turn_deg,verdict,correction');
+    expect(lines).toHaveLength(2 + 1 + 1); // header, L, R, and the final CRLF's empty line (RFC 4180)
+    const rows = new Map(lines.slice(1, 3).map((l) => { const c = l.split(','); return [c[0]!, c] as const; }));
+    const num = (id: string, k: number) => Number(rows.get(id)![k]);
+    // what one photo observes whatever the datum: the offset of R from L, within 0.1 mm of the truth, in
+    // inches of 25.4 mm (the international inch)
+    for (const [k, truth] of [[1, scene.truth.panelDx], [2, scene.truth.panelDy]] as const) {
+      expect(Math.abs((num('R', k) - num('L', k)) - (truth[1]! - truth[0]!) / 25.4)).toBeLessThan(0.1 / 25.4);
+    }
+    for (const id of ['L', 'R']) {
+      // the move back is the offset reversed, the turn the rotation reversed
+      expect(num(id, 7)).toBeCloseTo(-num(id, 1), 5);
+      expect(num(id, 8)).toBeCloseTo(-num(id, 2), 5);
+      expect(num(id, 9)).toBeCloseTo(-num(id, 3), 4);
+      // placed from the holes seen on it: at most its 5 × 6, fewer where the reference square covers some
+      expect(num(id, 6)).toBe(report.positions.filter((p) => p.panel === id && p.measured).length);
+      expect(num(id, 6)).toBeLessThanOrEqual(30);
+      expect(['reseat', 'in-place', 'not-placed']).toContain(rows.get(id)![10]);
+    }
+    // in the reader's own unit when none is asked for (a new member works in mm), and hidden from another workshop
+    const mm = await exportGet(new Request(`http://gridproof.test/api/checks/${checkId}/export?format=panels-csv`, { headers: { cookie: reviewerCookie, host: 'gridproof.test' } }), { params: Promise.resolve({ id: checkId }) });
+    expect(mm.status).toBe(200);
+    const mmLines = (await mm.text()).split('\r\n');
+    expect(mmLines[0]).toMatch(/^panel,dx_mm,dy_mm,/);
+    // the same offsets, 25.4 mm to the inch, to the inch column's last place
+    expect(Number(mmLines.find((l) => l.startsWith('R,'))!.split(',')[1]) / 25.4).toBeCloseTo(num('R', 1), 4);
+    const other = await call(exportGet, { cookie: otherCookie, params: { id: checkId }, path: `/api/checks/${checkId}/export?format=panels-csv` });
+    expect(other.status).toBe(404);
   });
 });

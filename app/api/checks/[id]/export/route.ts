@@ -1,13 +1,14 @@
 import { z } from 'zod';
 import { route } from '@/lib/http/route';
-import { exportCheck } from '@/lib/services/check-views';
+import { EXPORT_FORMATS, exportCheck } from '@/lib/services/check-views';
 
 const Params = z.object({ id: z.string().min(1).max(64) });
-const Query = z.object({ format: z.enum(['csv', 'json']).default('csv'), units: z.enum(['mm', 'in']).optional() });
+const Query = z.object({ format: z.enum(EXPORT_FORMATS).default('csv'), units: z.enum(['mm', 'in']).optional() });
 
 /**
- * GET /api/checks/{id}/export?format=csv|json&units=mm|in → the report as a download. CSV lengths are in
- * `units` (default: the user's choice); JSON is the measurement core's report as is (mm).
+ * GET /api/checks/{id}/export?format=csv|panels-csv|json&units=mm|in → the report as a download: its positions
+ * (`csv`) or its panels (`panels-csv`) as CSV, lengths in `units` (default: the user's choice), or the measurement
+ * core's report as is (`json`, mm).
  */
 export const GET = route({ params: Params, query: Query }, async ({ db, actor, params, query }) => {
   const out = await exportCheck(db, actor, params.id, query.format, query.units ?? actor.user.units);
