@@ -6,6 +6,7 @@
  */
 import { type BrowserContext, type Page } from 'playwright-core';
 import { launchChromium, type LaunchedChromium } from './chromium';
+import { signInThroughForm } from './session';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { Client, E2E_PASSWORD, e2eEmail } from './client';
@@ -25,14 +26,6 @@ afterAll(async () => {
 async function freshPage(): Promise<Page> {
   await ctx.clearCookies();
   return ctx.newPage();
-}
-
-async function signIn(page: Page, email: string, password: string) {
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
 }
 
 describe('in the browser', () => {
@@ -57,7 +50,7 @@ describe('in the browser', () => {
     await page.goto(`${baseUrl}/`);
     await page.waitForURL(`${baseUrl}/sign-in`);
 
-    await signIn(page, email, E2E_PASSWORD);
+    await signInThroughForm(page, { email, password: E2E_PASSWORD });
     await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toContain('Quayside Frames');
     await page.close();
   });
@@ -76,7 +69,7 @@ describe('in the browser', () => {
   it('gives a reviewer no bed form, and the server refuses a bed posted from the page', async () => {
     const reviewer = DEMO_LOGINS.find((l) => l.role === 'reviewer')!;
     const page = await freshPage();
-    await signIn(page, reviewer.email, DEMO_PASSWORD);
+    await signInThroughForm(page, { email: reviewer.email, password: DEMO_PASSWORD });
     await expect.poll(() => page.getByRole('list', { name: 'Beds' }).isVisible()).toBe(true);
     expect(await page.getByRole('form', { name: 'Add a bed' }).count()).toBe(0);
     const status = await page.evaluate(async () => {
@@ -96,7 +89,7 @@ describe('in the browser', () => {
     const email = e2eEmail('outsider');
     const api = new Client();
     expect((await api.req('POST', '/api/auth/sign-up', { email, password: E2E_PASSWORD, name: 'Outsider', workshopName: 'Other Yard' })).status).toBe(201);
-    await signIn(page, email, E2E_PASSWORD);
+    await signInThroughForm(page, { email, password: E2E_PASSWORD });
     const res = await page.goto(`${baseUrl}/beds/${bedId}`);
     expect(res?.status()).toBe(404);
     expect(await page.getByRole('heading', { name: 'Not found' }).isVisible()).toBe(true);

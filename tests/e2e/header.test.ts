@@ -8,6 +8,7 @@ import { type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { launchChromium, type LaunchedChromium } from './chromium';
+import { signInThroughForm } from './session';
 
 const baseUrl = inject('baseUrl');
 const LINKS = ['Beds', 'Members', 'Accessories', 'Photo guide', 'Outbox'];
@@ -26,11 +27,7 @@ async function signedInPage(width: number, height: number): Promise<Page> {
   const page = await ctx.newPage();
   await page.setViewportSize({ width, height });
   const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(owner.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
+  await signInThroughForm(page, { email: owner.email, password: DEMO_PASSWORD });
   return page;
 }
 

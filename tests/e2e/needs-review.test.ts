@@ -18,6 +18,7 @@ import type { Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { launchChromium, type LaunchedChromium } from './chromium';
+import { signInThroughForm } from './session';
 import { Client } from './client';
 
 const baseUrl = inject('baseUrl');
@@ -67,11 +68,7 @@ async function signedIn(role: 'owner' | 'reviewer'): Promise<Page> {
   await browser!.ctx.clearCookies();
   const page = await browser!.ctx.newPage();
   const who = DEMO_LOGINS.find((l) => l.role === role)!;
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(who.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
+  await signInThroughForm(page, { email: who.email, password: DEMO_PASSWORD });
   return page;
 }
 

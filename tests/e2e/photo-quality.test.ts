@@ -7,50 +7,21 @@
  * (lib/vision/render/degrade.ts: gain in linear light, clipped at white), so its verdict must name over-exposure,
  * and it is still measured. Measured by a real worker process.
  */
-import { execFileSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import type { BrowserContext, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import sharp from 'sharp';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { describe, expect, inject, it } from 'vitest';
 import { PatternSchema } from '@/lib/geometry/contract';
-import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { degrade } from '@/lib/vision/render/degrade';
-import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
-import { launchChromium, type LaunchedChromium } from './chromium';
+import { demoLogin, renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
 
-const ROOT = fileURLToPath(new URL('../..', import.meta.url));
-const SHOTS = join(ROOT, 'test-results');
 const baseUrl = inject('baseUrl');
-const dataDir = inject('dataDir');
-let browser: LaunchedChromium | undefined;
-let ctx: BrowserContext;
-let worker: WorkerProc;
-let work: string;
-
-beforeAll(async () => {
-  work = mkdtempSync(join(tmpdir(), 'gridproof-quality-'));
-  mkdirSync(SHOTS, { recursive: true });
-  worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
-  browser = await launchChromium({ width: 390, height: 844 });
-  ctx = browser.ctx;
-});
-afterAll(async () => {
-  await browser?.close();
-  if (worker) await stopWorker(worker);
-  rmSync(work, { recursive: true, force: true });
-});
+const env = setUpMeasuringBrowser('quality', { width: 390, height: 844 });
 
 async function signIn(page: Page) {
-  const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
-  await ctx.clearCookies();
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(owner.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
+  await env.ctx.clearCookies();
+  await signInThroughForm(page, demoLogin('owner'));
 }
 
 const shot = (page: Page, name: string) => page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
@@ -100,21 +71,20 @@ async function uploadAndFollow(page: Page, bedId: string, photo: string, width: 
 
 describe('photo check in the browser', () => {
   it('checks the photo on the upload page, then shows the verdict and the prediction, and a report note for an over-exposed photo', async () => {
-    const page = await ctx.newPage();
+    const page = await env.ctx.newPage();
     await signIn(page);
     const made = await page.request.post(`${baseUrl}/api/beds`, { data: { name: 'Photo check bed', preset: { preset: 'm6-50', bedWidthMm: 600, bedHeightMm: 400 } } });
     expect(made.status()).toBe(201);
     const bedId = ((await made.json()) as { bed: { id: string } }).bed.id;
     const pattern = PatternSchema.parse(((await (await page.request.get(`${baseUrl}/api/beds/${bedId}`)).json()) as { pattern: unknown }).pattern);
-    writeFileSync(join(work, 'pattern.json'), JSON.stringify(pattern));
-    const synth = JSON.parse(execFileSync('npm', ['run', '-s', 'synth', '--', '--pattern', join(work, 'pattern.json'), '--seed', '31', '--out', work, '--target-mm', '150', '--tilt', '3'], { cwd: ROOT, encoding: 'utf8' }).trim().split('\n').pop()!) as { photo: string };
-    const rendered = readFileSync(synth.photo);
+    writeFileSync(join(env.work, 'pattern.json'), JSON.stringify(pattern));
+    const rendered = readFileSync(renderPhoto(join(env.work, 'pattern.json'), env.work, ['--seed', '31', '--target-mm', '150', '--tilt', '3']));
     const { width, height } = await sharp(rendered).metadata();
     // a phone's EXIF: upright, a 26 mm-equivalent lens
-    const good = join(work, 'good.jpg');
+    const good = join(env.work, 'good.jpg');
     await sharp(rendered).withExif({ IFD0: { Make: 'Gridproof renderer', Orientation: '1' }, IFD2: { FocalLength: '5.4', FocalLengthIn35mmFilm: '26' } }).jpeg({ quality: 92 }).toFile(good);
     // the same photo exposed 1.9 times too long (no EXIF left, as after an edit)
-    const bright = join(work, 'bright.jpg');
+    const bright = join(env.work, 'bright.jpg');
     writeFileSync(bright, (await degrade(rendered, { gain: 1.9 })).jpeg);
 
     const results: Record<string, unknown> = {};

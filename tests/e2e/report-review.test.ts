@@ -7,63 +7,35 @@
  * the check re-fitted (the server's record of who edited is checked), and the two checks are compared from
  * the bed's history. Screenshots of the report at 390 px and 1280 px go to test-results/.
  */
-import { execFileSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { setTimeout as delay } from 'node:timers/promises';
-import { type BrowserContext, type Page } from 'playwright-core';
-import { launchChromium, type LaunchedChromium } from './chromium';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { presetById } from '@/lib/geometry';
 import type { Report } from '@/lib/geometry/contract';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
-import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
 import { Client } from './client';
+import { renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
 
-const ROOT = fileURLToPath(new URL('../..', import.meta.url));
-const SHOTS = join(ROOT, 'test-results');
 const baseUrl = inject('baseUrl');
-const dataDir = inject('dataDir');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
-let browser: LaunchedChromium | undefined;
-let work: string;
-let ctx: BrowserContext;
-let worker: WorkerProc;
+const env = setUpMeasuringBrowser('report', { width: 1280, height: 900 });
 const api = new Client(baseUrl);
 
 beforeAll(async () => {
-  work = mkdtempSync(join(tmpdir(), 'gridproof-report-'));
-  mkdirSync(SHOTS, { recursive: true });
-  worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
-  browser = await launchChromium({ width: 1280, height: 900 });
-  ctx = browser.ctx;
   const r = await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD });
   expect(r.status).toBe(200);
 });
-afterAll(async () => {
-  await browser?.close();
-  if (worker) await stopWorker(worker);
-  rmSync(work, { recursive: true, force: true });
-});
 
-async function signIn(page: Page) {
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(owner.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
-}
+const signIn = (page: Page) => signInThroughForm(page, { email: owner.email, password: DEMO_PASSWORD });
 
 /** Renders a photo of `patternPath`, uploads it with a 150 mm square, waits for the worker, returns the check id. */
 async function checkFromPhoto(bedId: string, patternPath: string, name: string, flags: string[]): Promise<string> {
-  const out = join(work, name);
-  const line = execFileSync('npm', ['run', '-s', 'synth', '--', '--pattern', patternPath, '--out', out, '--target-mm', '150', ...flags], { cwd: ROOT, encoding: 'utf8' }).trim().split('\n').pop()!;
-  const photo = (JSON.parse(line) as { photo: string }).photo;
+  const photo = renderPhoto(patternPath, join(env.work, name), ['--target-mm', '150', ...flags]);
   expect(statSync(photo).size).toBeGreaterThan(10_000);
   // through the browser's own request context (its session cookie), as the upload page sends it
-  const res = await ctx.request.post(`${baseUrl}/api/beds/${bedId}/checks`, {
+  const res = await env.ctx.request.post(`${baseUrl}/api/beds/${bedId}/checks`, {
     multipart: { photo: { name: `${name}.jpg`, mimeType: 'image/jpeg', buffer: readFileSync(photo) }, referenceMm: '150', title: name },
   });
   expect(res.status(), await res.text()).toBe(202);
@@ -96,12 +68,12 @@ describe('report, review and comparison in the browser', () => {
   it('filters the report to positions out, edits a detection and re-fits, and compares two checks', async () => {
     // A 600 × 400 mm bed of M6 inserts on 50 mm in two 200 mm strips (the core's preset).
     const pattern = presetById('m6-50')!.size({ bedWidthMm: 600, bedHeightMm: 400, stripWidthMm: 200 });
-    const patternPath = join(work, 'pattern.json');
+    const patternPath = join(env.work, 'pattern.json');
     writeFileSync(patternPath, JSON.stringify(pattern));
     const bed = await api.req('POST', '/api/beds', { name: 'Report test bed', pattern });
     expect(bed.status).toBe(201);
     const bedId = (bed.json as { bed: { id: string } }).bed.id;
-    const page = await ctx.newPage();
+    const page = await env.ctx.newPage();
     await signIn(page);
     const before = await checkFromPhoto(bedId, patternPath, 'before', ['--seed', '21', '--misplaced', '4', '--misplaced-mm', '1.2', '--panel-offset', '0.12']);
     const after = await checkFromPhoto(bedId, patternPath, 'after', ['--seed', '22', '--misplaced', '0', '--panel-offset', '0']);

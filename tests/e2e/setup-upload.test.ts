@@ -5,50 +5,21 @@
  * go through its stages to the report, measured by a real worker process on the e2e server's database.
  * Screenshots at phone (390 px) and desktop (1280 px) width go to test-results/ for review.
  */
-import { execFileSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { type BrowserContext, type Page } from 'playwright-core';
-import { launchChromium, type LaunchedChromium } from './chromium';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { describe, expect, inject, it } from 'vitest';
 import sharp from 'sharp';
 import { PatternSchema } from '@/lib/geometry/contract';
-import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
-import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
+import { demoLogin, renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
 
-const ROOT = fileURLToPath(new URL('../..', import.meta.url));
-const SHOTS = join(ROOT, 'test-results');
 const baseUrl = inject('baseUrl');
-const dataDir = inject('dataDir');
-let browser: LaunchedChromium | undefined;
-let work: string;
-let ctx: BrowserContext;
-let worker: WorkerProc;
-
-beforeAll(async () => {
-  work = mkdtempSync(join(tmpdir(), 'gridproof-upload-'));
-  mkdirSync(SHOTS, { recursive: true });
-  // The worker that measures the upload, on the e2e server's database and storage.
-  worker = spawnWorker({ DATABASE_URL: `file:${join(dataDir, 'e2e.db')}`, STORAGE_DIR: join(dataDir, 'storage'), WORKER_POLL_MS: '200' });
-  browser = await launchChromium({ width: 390, height: 844 });
-  ctx = browser.ctx;
-});
-afterAll(async () => {
-  await browser?.close();
-  if (worker) await stopWorker(worker);
-  rmSync(work, { recursive: true, force: true });
-});
+// The worker that measures the upload, on the e2e server's database and storage.
+const env = setUpMeasuringBrowser('upload', { width: 390, height: 844 });
 
 async function signInAsDemoOwner(page: Page) {
-  const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
-  await ctx.clearCookies();
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(owner.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
+  await env.ctx.clearCookies();
+  await signInThroughForm(page, demoLogin('owner'));
 }
 
 async function shoot(page: Page, name: string) {
@@ -63,7 +34,7 @@ async function shoot(page: Page, name: string) {
 
 describe('bed setup, upload and check status in the browser', () => {
   it('sets up a bed from a preset, uploads a rendered photo and follows the check to its report', async () => {
-    const page = await ctx.newPage();
+    const page = await env.ctx.newPage();
     await signInAsDemoOwner(page);
 
     // 1. A bed from the "M6 inserts on 50 mm" preset, sized to a 600 × 400 mm bed in two 200 mm strips.
@@ -104,12 +75,12 @@ describe('bed setup, upload and check status in the browser', () => {
     const pattern = PatternSchema.parse(((await bed.json()) as { pattern: unknown }).pattern);
     expect(pattern.families[0]!.count).toEqual({ x: 12, y: 8 });
     expect(pattern.panels).toHaveLength(2);
-    writeFileSync(join(work, 'pattern.json'), JSON.stringify(pattern));
-    const synth = JSON.parse(execFileSync('npm', ['run', '-s', 'synth', '--', '--pattern', join(work, 'pattern.json'), '--seed', '11', '--out', work, '--target-mm', '150'], { cwd: ROOT, encoding: 'utf8' }).trim().split('\n').pop()!) as { photo: string };
-    const photoBytes = statSync(synth.photo).size;
+    writeFileSync(join(env.work, 'pattern.json'), JSON.stringify(pattern));
+    const photo = renderPhoto(join(env.work, 'pattern.json'), env.work, ['--seed', '11', '--target-mm', '150']);
+    const photoBytes = statSync(photo).size;
 
     await page.goto(`${baseUrl}/beds/${bedId}/upload`);
-    await page.getByTestId('photo-input').setInputFiles(synth.photo);
+    await page.getByTestId('photo-input').setInputFiles(photo);
     await expect.poll(() => page.getByTestId('photo-preview').isVisible()).toBe(true);
     // The form refuses a square of 0 before sending anything.
     await page.getByTestId('reference-size').fill('0');
@@ -125,7 +96,7 @@ describe('bed setup, upload and check status in the browser', () => {
     await page.getByTestId('distance-0-sigma').fill('0.5');
 
     // Throttle the upload so the XMLHttpRequest progress events are seen between 0 and 100 %.
-    const cdp = await ctx.newCDPSession(page);
+    const cdp = await env.ctx.newCDPSession(page);
     await cdp.send('Network.enable');
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: Math.max(64 * 1024, photoBytes / 3) });
     await page.getByTestId('upload-submit').click();
@@ -189,13 +160,13 @@ describe('bed setup, upload and check status in the browser', () => {
   });
 
   it('says why a photo could not be measured and offers another photo or marking the corners', async () => {
-    const page = await ctx.newPage();
+    const page = await env.ctx.newPage();
     await signInAsDemoOwner(page);
     const made = await page.request.post(`${baseUrl}/api/beds`, { data: { name: 'Bare bed', preset: { preset: 'm6-50', bedWidthMm: 600, bedHeightMm: 400 } } });
     expect(made.status()).toBe(201);
     const bedId = ((await made.json()) as { bed: { id: string } }).bed.id;
     // A photo of nothing: an even grey frame, no reference square and no holes in it.
-    const blank = join(work, 'blank.jpg');
+    const blank = join(env.work, 'blank.jpg');
     await sharp({ create: { width: 1200, height: 900, channels: 3, background: { r: 128, g: 124, b: 118 } } }).jpeg({ quality: 85 }).toFile(blank);
 
     await page.goto(`${baseUrl}/beds/${bedId}/upload`);

@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import { eq } from 'drizzle-orm';
 import { type BrowserContext, type Page } from 'playwright-core';
 import { launchChromium, type LaunchedChromium } from './chromium';
+import { signInThroughForm } from './session';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { openDb } from '@/db/client';
@@ -53,11 +54,7 @@ beforeAll(async () => {
   browser = await launchChromium({ width: 1280, height: 900 });
   ctx = browser.ctx;
   page = await ctx.newPage();
-  await page.goto(`${baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(owner.email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(`${baseUrl}/`);
+  await signInThroughForm(page, { email: owner.email, password: DEMO_PASSWORD });
 });
 afterAll(async () => {
   await browser?.close();
