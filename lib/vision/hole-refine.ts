@@ -34,9 +34,9 @@ export interface Refined {
 }
 
 /** Grey (0–255) of the photo at a bed-plane point, mm. */
-type PlaneSampler = (x: number, y: number) => number;
+export type PlaneSampler = (x: number, y: number) => number;
 
-function planeSampler(grey: Float32Array, w: number, h: number, H: Mat3): PlaneSampler {
+export function planeSampler(grey: Float32Array, w: number, h: number, H: Mat3): PlaneSampler {
   const [h0, h1, h2, h3, h4, h5, h6, h7, h8] = H as [number, number, number, number, number, number, number, number, number];
   return (x, y) => {
     const iw = 1 / (h6 * x + h7 * y + h8);

@@ -11,7 +11,8 @@
  */
 import { applyH, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { findCandidates, nearestFamily, type FamilySize, type HoleCandidate } from './hole-candidates';
-import { refineHole, type CentreMethod } from './hole-refine';
+import { fitBlurredRim, radialProfile } from './blurred-rim';
+import { planeSampler, refineHole, type CentreMethod, type Refined } from './hole-refine';
 
 export type { CentreMethod } from './hole-refine';
 export type { FamilySize } from './hole-candidates';
@@ -73,15 +74,43 @@ function measureCandidate(grey: Float32Array, w: number, h: number, H: Mat3, c: 
     if (onPartial && r.contrast >= 10) partial(r.cx, r.cy, r.diameterMm * homographyScale(H, r.cx, r.cy));
     return null;
   }
-  const { fam, err } = nearestFamily(families, r.diameterMm);
   const s = homographyScale(H, r.cx, r.cy);
-  // the camera's tone curve and sharpening move a dark/light edge by up to EDGE_BIAS_PX on each side: a size
-  // tolerance of that many px beside the relative one, which matters for holes a few px across
-  const allow = fam ? tol + (2 * EDGE_BIAS_PX) / (s * fam.diameterMm) : 0;
-  if (!fam || err > allow) return null;
+  const size = familySize(families, r.diameterMm, s, tol) ?? blurImpliedSize(grey, w, h, H, r, c.fam, families, s, tol);
+  if (!size) return null;
+  const { fam, err, allow, diameterMm } = size;
   const p = applyH(H, r.cx, r.cy);
   const conf = Math.min(1, Math.max(0, (r.contrast - 10) / 40)) * Math.max(0, 1 - r.roundness / 0.08) * Math.max(0, 1 - err / (allow * 1.5)) * r.coverage;
-  return { x: p[0], y: p[1], diameterPx: r.diameterMm * s, diameterMm: r.diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast, rimGapDeg: r.rimGapDeg };
+  return { x: p[0], y: p[1], diameterPx: diameterMm * s, diameterMm, confidence: Math.round(conf * 1000) / 1000, family: fam.id, planeMm: [r.cx, r.cy], contrast: r.contrast, rimGapDeg: r.rimGapDeg };
+}
+
+/** A diameter's family when it is within the size gate: the relative tolerance beside the camera's edge bias. */
+type SizeMatch = { fam: FamilySize; err: number; allow: number; diameterMm: number };
+
+/**
+ * The family whose size a measured diameter (mm; s px per mm there) matches: within `tol` of it, and 2 ×
+ * EDGE_BIAS_PX beside (the camera's tone curve and sharpening move a dark/light edge by up to that much on each
+ * side, which matters for holes a few px across); null when none.
+ */
+function familySize(families: FamilySize[], diameterMm: number, s: number, tol: number): SizeMatch | null {
+  const { fam, err } = nearestFamily(families, diameterMm);
+  if (!fam) return null;
+  const allow = tol + (2 * EDGE_BIAS_PX) / (s * fam.diameterMm);
+  return err > allow ? null : { fam, err, allow, diameterMm };
+}
+
+/**
+ * The size gate for a rim that blur has closed in (blurred-rim.ts): a hole read smaller than its candidate's
+ * family, whose radial profile is that of a disc blurred by σ ≥ 1 px, judged by the diameter that fit implies.
+ * The model must fit the profile to a tenth of the hole's depth.
+ */
+function blurImpliedSize(grey: Float32Array, w: number, h: number, H: Mat3, r: Refined, candidate: FamilySize, families: FamilySize[], s: number, tol: number): SizeMatch | null {
+  if (r.diameterMm >= candidate.diameterMm) return null;
+  const rPx = (candidate.diameterMm / 2) * s;
+  const step = 0.5;
+  const profile = radialProfile(planeSampler(grey, w, h, H), r.cx, r.cy, 1 / s, 1.3 * rPx + 10, step);
+  const fit = fitBlurredRim(profile, step, rPx);
+  if (!fit || fit.sigmaPx < 1 || fit.rms > 0.1 * fit.depth) return null;
+  return familySize(families, (2 * fit.rPx) / s, s, tol);
 }
 
 /** One detection per hole: of any that overlap (centres closer than half the smaller diameter), the most confident. */

@@ -36,7 +36,7 @@ import { ISSUE_ADVICE } from './advice';
 import { cutTargetMark } from './cut-target';
 import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
-import { sampleGrey, type Corners } from './square';
+import { sampleGrey, toLinear as lin, type Corners } from './square';
 import { FRAME_FRACTION, targetCornersMm } from './target';
 import { medianLevel } from './load';
 
@@ -64,17 +64,6 @@ export const ASSUMED_FOCAL_35MM = 27;
  *   third against the near side on a phone lens), the target or the bed beyond the frame.
  */
 export const LIMITS = { defocusSigmaPx: 1.5, motionPx: 6, whiteClipShare: 0.5, printContrast: 16, strokeThinning: 0.45, holesClipShare: 0.25, whiteLevel: 120, targetSidePx: 200, holeDiameterPx: 10, tiltDeg: 20 } as const;
-
-const TO_LINEAR = new Float64Array(1025).map((_, i) => {
-  const c = i / 1024;
-  return c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4;
-});
-/** sRGB-encoded grey (0–255) → linear light (0–1). */
-function lin(v: number): number {
-  const x = (v < 0 ? 0 : v > 255 ? 255 : v) * (1024 / 255);
-  const i = Math.min(1023, Math.floor(x));
-  return TO_LINEAR[i]! + (TO_LINEAR[i + 1]! - TO_LINEAR[i]!) * (x - i);
-}
 
 function median(a: number[]): number {
   if (!a.length) return NaN;

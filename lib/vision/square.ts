@@ -112,7 +112,7 @@ const LINEAR = new Float64Array(1025).map((_, i) => {
   const c = i / 1024;
   return c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4;
 });
-function toLinear(v: number): number {
+export function toLinear(v: number): number {
   const x = (v < 0 ? 0 : v > 255 ? 255 : v) * (1024 / 255);
   const i = Math.min(1023, Math.floor(x));
   return LINEAR[i]! + (LINEAR[i + 1]! - LINEAR[i]!) * (x - i);
