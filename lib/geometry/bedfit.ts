@@ -376,12 +376,14 @@ function addPriorNormalEquations(t: Float64Array, layout: ParamLayout, fitK: boo
  * IRLS: Huber weights at this many robust σ of the residuals for the first round, then Tukey's biweight at
  * `TUKEY_C` σ (its usual constant for 95 % efficiency at the normal, Beaton & Tukey 1974). Huber's pull is bounded
  * but not zero: three holes 0.8 mm (some 200 σ) off put 30 ppm into the scale of exact rendered data; the biweight
- * gives them none, once Huber has brought the fit near.
+ * gives them none, once Huber has brought the fit near. A warm start is near already: the biweight from the start.
  */
 const HUBER_K = 2;
 const TUKEY_C = 4.685;
-/** IRLS rounds (each a Levenberg–Marquardt run, then new weights). */
-const IRLS_ROUNDS = 3;
+/** Least residual σ the robust weights are scaled by, px. */
+const MIN_SIGMA_PX = 1e-3;
+/** IRLS rounds (each a Levenberg–Marquardt run, then new weights), from a cold and from a warm start. */
+const IRLS_ROUNDS = 3, IRLS_ROUNDS_WARM = 2;
 
 /**
  * Fits the model to the matches: Levenberg–Marquardt (levenberg-marquardt.ts) inside IRLS (Huber, then Tukey), then
@@ -399,7 +401,8 @@ export function fitBed(inp: BedFitInput): BedModel {
   const prior = inp.weights ?? new Float64Array(n).fill(1);
   const w = Float64Array.from(prior);
   const res = new Float64Array(2 * n);
-  // Each match's centroid shift (px), from the parameters of the round before: it changes with them only to second order.
+  // Each match's centroid shift (px), from the parameters of the round before (the first two rounds of a cold start,
+  // which fit the lens, else the start): it changes with them only to second order.
   const shift = new Float64Array(2 * n);
   const updateShifts = (t: Float64Array) => {
     if (!inp.radiusMm) return;
@@ -440,16 +443,24 @@ export function fitBed(inp: BedFitInput): BedModel {
     return { jtj, jtr };
   };
 
-  // IRLS: Huber weights at 2 σ, then the biweight.
-  for (let outer = 0; outer < IRLS_ROUNDS; outer++) {
-    updateShifts(theta);
-    levenbergMarquardt({ n: np, cost, normalEquations }, theta, { maxIterations: outer === 0 && !inp.warm ? 25 : 10, lambda: 1e-4, minRelativeGain: 1e-7 });
+  // IRLS: Huber weights at 2 σ, then the biweight (from the start when warm).
+  const reweight = (huber: boolean) => {
     residuals(theta);
-    const sigma = Math.max(madSigma(res), 1e-6);
+    // a thousandth of a pixel at least: below any detector's precision, so that parameters not yet converged to the
+    // last digit (exact data) cannot make their matches outliers
+    const sigma = Math.max(madSigma(res), MIN_SIGMA_PX);
     for (let k = 0; k < n; k++) {
       const rk = Math.hypot(res[2 * k]!, res[2 * k + 1]!);
-      w[k] = prior[k]! * (outer === 0 ? huberWeight(rk, HUBER_K * sigma) : tukeyWeight(rk, TUKEY_C * sigma));
+      w[k] = prior[k]! * (huber ? huberWeight(rk, HUBER_K * sigma) : tukeyWeight(rk, TUKEY_C * sigma));
     }
+  };
+  const warm = !!inp.warm;
+  updateShifts(theta);
+  if (warm) reweight(false);
+  for (let outer = 0; outer < (warm ? IRLS_ROUNDS_WARM : IRLS_ROUNDS); outer++) {
+    if (outer === 1 && !warm) updateShifts(theta);
+    levenbergMarquardt({ n: np, cost, normalEquations }, theta, { maxIterations: outer === 0 && !warm ? 25 : 10, lambda: 1e-4, minRelativeGain: 1e-7 });
+    reweight(outer === 0 && !warm);
   }
 
   // Covariance: A = JᵀWJ with the priors, and the matches' part of the sandwich's middle.

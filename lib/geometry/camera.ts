@@ -22,7 +22,7 @@ export function distortPx(lens: Lens, u: number, v: number): [number, number] {
 }
 
 /** Points along a disc's rim whose image polygon gives the centroid of its image. */
-const RIM_POINTS = 24;
+const RIM_POINTS = 12;
 
 /**
  * Centroid of the image of a disc of radius `radiusMm` about plane point (x, y) mm, px, through `map` (plane mm →

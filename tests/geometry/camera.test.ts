@@ -82,9 +82,10 @@ describe('pinhole projection', () => {
     const centre = [Ci[2] / Ci[8], Ci[5] / Ci[8]];
     const got = discImageCentroidPx((x, y) => applyH(H, x, y), x0, y0, R);
     const ofCentre = applyH(H, x0, y0);
-    // a real shift, which the polygon of rim points finds to a small part of it
+    // a real shift, which the polygon of rim points finds to a small part of it (5 % of the 0.05 px a 20 mm hole
+    // shows at 0.38 mm/px is a quarter of the smallest centre scatter seen in rendered photos, 0.01 px)
     const shift = Math.hypot(centre[0]! - ofCentre[0], centre[1]! - ofCentre[1]);
     expect(shift).toBeGreaterThan(0.05);
-    expect(Math.hypot(got[0] - centre[0]!, got[1] - centre[1]!)).toBeLessThan(0.02 * shift);
+    expect(Math.hypot(got[0] - centre[0]!, got[1] - centre[1]!)).toBeLessThan(0.05 * shift);
   });
 });
