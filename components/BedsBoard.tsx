@@ -6,7 +6,7 @@ import { useState } from 'react';
 import type { BedDto } from '@/lib/services/beds';
 import { api, errorText, fieldError } from './api';
 import { Verdict } from './Verdict';
-import { formatUtcDay } from '@/lib/dates';
+import { formatUtc } from '@/lib/dates';
 
 export type PresetOption = { id: string; name: string; description: string };
 
@@ -44,7 +44,7 @@ export function BedsBoard({ initialBeds, canCreate, presets }: { initialBeds: Be
                   </span>
                 )}
                 <span className="text-sm text-muted">
-                  {b.checkCount === 0 ? 'No check yet' : `${b.checkCount} check${b.checkCount === 1 ? '' : 's'}, last ${formatUtcDay(b.lastCheck!.createdAt)}`}
+                  {b.checkCount === 0 ? 'No check yet' : `${b.checkCount} check${b.checkCount === 1 ? '' : 's'}, last ${formatUtc(b.lastCheck!.createdAt)}`}
                 </span>
               </Link>
             </li>

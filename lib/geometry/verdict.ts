@@ -49,8 +49,8 @@ export function shapeSentence(c: ReportShapeCheck, len: LengthWriter = mmWriter)
   const allowed = `${len(c.toleranceMm)} allowed`;
   if (c.worstMm === null || c.uncertaintyMm === null) return `Overall size and squareness: not measured, the reference could not observe them; ${SETTLE}.`;
   const fig = `${len(c.worstMm, { suffix: false })} ± ${len(bandRadiusMm(c.uncertaintyMm))} (95 %)`;
-  if (c.verdict === 'in') return `Overall size and squareness: within tolerance, they move no position by more than ${fig} (${allowed}).`;
-  if (c.verdict === 'out') return `Overall size and squareness: out, they move positions by up to ${fig} (${allowed}); a fixture spanning the whole bed will not drop in.`;
+  if (c.verdict === 'in') return `Overall size and squareness: within tolerance, they move no position by more than ${fig} against ${allowed}.`;
+  if (c.verdict === 'out') return `Overall size and squareness: out, they move positions by up to ${fig} against ${allowed}; a fixture spanning the whole bed will not drop in.`;
   return `Overall size and squareness: this reference cannot judge them to the tolerance (up to ${fig} against ${allowed}); ${SETTLE}.`;
 }
 

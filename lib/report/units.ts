@@ -54,15 +54,17 @@ export const ANGLE_DECIMALS = 3;
 
 /**
  * An angle in degrees, as every surface (web, PDF, mail) writes one: "0.012°"; `signed` "+0.012°" / "−0.012°" (a
- * real minus sign); with its uncertainty `sigmaDeg` "+0.012° ± 0.003°", each with its degree sign; `suffix: false`
- * leaves the sign out where a column heading carries it.
+ * real minus sign); with its uncertainty `sigmaDeg` "+0.012° ± 0.003°", each with its degree sign, and one below
+ * the resolution "± < 0.001°" (never "± 0.000°"); `suffix: false` leaves the sign out where a column heading carries it.
  */
 export function formatAngle(deg: number, opts: { signed?: boolean; sigmaDeg?: number | null; suffix?: boolean } = {}): string {
   const rounded = Number(deg.toFixed(ANGLE_DECIMALS));
   const sign = rounded < 0 ? '−' : opts.signed && rounded > 0 ? '+' : '';
   const unit = opts.suffix === false ? '' : '°';
   const value = `${sign}${Math.abs(rounded).toFixed(ANGLE_DECIMALS)}${unit}`;
-  return opts.sigmaDeg === null || opts.sigmaDeg === undefined ? value : `${value} ± ${Math.abs(opts.sigmaDeg).toFixed(ANGLE_DECIMALS)}${unit}`;
+  if (opts.sigmaDeg === null || opts.sigmaDeg === undefined) return value;
+  const sigma = Number(Math.abs(opts.sigmaDeg).toFixed(ANGLE_DECIMALS));
+  return `${value} ± ${sigma === 0 ? `< ${(10 ** -ANGLE_DECIMALS).toFixed(ANGLE_DECIMALS)}` : sigma.toFixed(ANGLE_DECIMALS)}${unit}`;
 }
 
 /** What a scale deviation means over a length: (scale − 1) × length, in the display unit. */

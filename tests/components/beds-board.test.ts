@@ -27,9 +27,9 @@ function renderIn(tz: string): string {
 }
 
 describe('BedsBoard', () => {
-  it('renders the same text on a server in UTC and a browser in Auckland, and says the day in UTC', () => {
+  it('renders the same text on a server in UTC and a browser in Auckland, and says the time in UTC', () => {
     const server = renderIn('UTC');
     expect(renderIn('Pacific/Auckland')).toBe(server);
-    expect(server).toContain('1 check, last 2026-12-09');
+    expect(server).toContain('1 check, last 2026-12-09 23:30 UTC');
   });
 });

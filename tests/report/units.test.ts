@@ -46,6 +46,8 @@ describe('display units', () => {
     expect(formatAngle(-0.0004, { signed: true })).toBe('0.000°');
     expect(formatAngle(0.0123, { signed: true, sigmaDeg: 0.0009 })).toBe('+0.012° ± 0.001°');
     expect(formatAngle(0.5, { sigmaDeg: null })).toBe('0.500°');
+    // an uncertainty below the resolution is said to be below it, not zero
+    expect(formatAngle(-2.95, { sigmaDeg: 0.0002 })).toBe('−2.950° ± < 0.001°');
     // under a column heading that names the degree
     expect(formatAngle(-0.25, { signed: true, suffix: false })).toBe('−0.250');
   });

@@ -72,7 +72,10 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
         </section>
 
         <section className="panel flex flex-col gap-3" aria-label="Checks">
-          <h2 className="text-xl font-bold">Checks</h2>
+          <div className="flex flex-wrap items-baseline justify-between gap-3">
+            <h2 className="text-xl font-bold">Checks</h2>
+            {checks.length > 1 && <Link href={`/beds/${bed.id}/history`} className="btn btn-quiet">History and comparison</Link>}
+          </div>
           {checks.length === 0 ? (
             <p>No checks yet. Lay the reference square on the bed with the machine off, take one photo from straight above, and upload it with “Check from a photo”.</p>
           ) : (
