@@ -90,7 +90,7 @@ export function CommentsPanel({ checkId, meId, isOwner, positionLabels = [], can
         <form className="flex flex-col gap-3" onSubmit={submit} aria-label="Add a comment">
           <label className="field">
             <span>Position (optional)</span>
-            <input className="input font-mono" value={position} onChange={(e) => setPosition(e.target.value)} list={`${listId}-labels`} placeholder="e.g. dog B3" maxLength={60} />
+            <input className="input font-mono" value={position} onChange={(e) => setPosition(e.target.value)} list={`${listId}-labels`} placeholder={`e.g. ${positionLabels[0] ?? 'dog B3'}`} maxLength={60} />
             <datalist id={`${listId}-labels`}>{positionLabels.map((l) => <option key={l} value={l} />)}</datalist>
             {fieldError(add.error, 'positionLabel') && <small className="field-error">{fieldError(add.error, 'positionLabel')}</small>}
           </label>

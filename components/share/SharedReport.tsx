@@ -14,7 +14,7 @@ import { LatticeFigures } from '@/components/report/LatticeFigures';
 import { PanelsTable } from '@/components/report/PanelsTable';
 import { PositionsTable, positionRows } from '@/components/report/PositionsTable';
 import { CommentList, type CommentItem } from '@/components/comments/Comments';
-import type { Report } from '@/lib/geometry/contract';
+import { MM_PER_IN, type Report } from '@/lib/geometry/contract';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import type { LengthUnit } from '@/lib/report/units';
@@ -34,6 +34,9 @@ export interface SharedReportData {
   fits: FitFamily[] | null;
   comments: CommentItem[];
 }
+
+/** The bed's width or depth in mm from the outline the report carries (pattern units), or null without one. */
+const bedMm = (r: Report, side: 'width' | 'height'): number | null => (r.pattern.bed ? r.pattern.bed[side] * (r.pattern.units === 'in' ? MM_PER_IN : 1) : null);
 
 /** The shared report's body in `unit`, the unit of the page's headline (its switch reloads the page in the other). */
 export function SharedReport({ data, token, unit }: { data: SharedReportData; token: string; unit: LengthUnit }) {
@@ -73,7 +76,7 @@ export function SharedReport({ data, token, unit }: { data: SharedReportData; to
       </section>
       <section className="panel flex flex-col gap-3" aria-labelledby="shared-lattice-h">
         <h2 id="shared-lattice-h" className="text-xl font-bold">Scale and squareness</h2>
-        <LatticeFigures report={r} unit={unit} bedWidthMm={null} bedHeightMm={null} />
+        <LatticeFigures report={r} unit={unit} bedWidthMm={bedMm(r, 'width')} bedHeightMm={bedMm(r, 'height')} />
         <DistancesTable report={r} unit={unit} />
       </section>
       <MethodNote families={data.fits} unit={unit} />

@@ -6,6 +6,7 @@
  * progress bar while XMLHttpRequest sends it to POST /api/beds/{bedId}/checks, and on to the check's page.
  */
 import { useRouter } from 'next/navigation';
+import Link from 'next/link';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import { useDropzone } from 'react-dropzone';
 import { DistancesFields } from './DistancesFields';
@@ -36,6 +37,8 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
   const [message, setMessage] = useState<string | null>(null);
   const [progress, setProgress] = useState<UploadProgress | null>(null);
   const [phase, setPhase] = useState<'idle' | 'sending' | 'queued'>('idle');
+  /** The check the server returned for a photo already checked with the same details (not measured again). */
+  const [reused, setReused] = useState<string | null>(null);
   const upload = useRef<XhrUpload | null>(null);
   const cameraRef = useRef<HTMLInputElement>(null);
 
@@ -48,6 +51,7 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
     setFile(f);
     setErrors((e) => { const { photo: _p, ...rest } = e; return rest; });
     setMessage(null);
+    setReused(null);
   };
 
   const { getRootProps, getInputProps, isDragActive, fileRejections } = useDropzone({
@@ -64,6 +68,7 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
 
   const submit = async () => {
     setMessage(null);
+    setReused(null);
     const parsed = UploadFormSchema.safeParse({ bedId, size, units, title: title || undefined });
     const fieldErrors: Record<string, string> = {};
     if (!parsed.success) for (const i of parsed.error.issues) fieldErrors[String(i.path[0] ?? '_')] ??= i.message;
@@ -86,7 +91,13 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
     upload.current = u;
     try {
       const { status, body } = await u.promise;
-      const b = body as { check?: { id?: string }; error?: { message?: string; fields?: Record<string, string> } } | null;
+      const b = body as { check?: { id?: string }; reused?: boolean; error?: { message?: string; fields?: Record<string, string> } } | null;
+      if (status === 202 && b?.check?.id && b.reused) {
+        setPhase('idle');
+        setProgress(null);
+        setReused(b.check.id);
+        return;
+      }
       if (status === 202 && b?.check?.id) {
         setPhase('queued');
         router.push(`/checks/${b.check.id}`);
@@ -187,6 +198,11 @@ export function UploadForm({ beds, bedId: initialBed, userUnits, maxBytes }: { b
           </div>
         )}
         {message && <p role="alert" className="field-error">{message}</p>}
+        {reused && (
+          <p role="status" data-testid="upload-reused">
+            This photo was already checked against this pattern with the same reference size and distances, so it is not measured again. <Link href={`/checks/${reused}`} className="underline">Open that check</Link>, or change the photo or its details.
+          </p>
+        )}
         <div className="flex flex-wrap gap-3">
           <button type="submit" className="btn text-lg" disabled={phase !== 'idle'} data-testid="upload-submit">Upload and check</button>
           {phase === 'sending' && <button type="button" className="btn btn-danger" onClick={() => upload.current?.abort()}>Stop</button>}

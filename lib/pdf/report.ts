@@ -294,7 +294,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
     ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => len(mm, 2))),
     ...(lat.shapeCheck && lat.shapeCheck.worstMm !== null && lat.shapeCheck.uncertaintyMm !== null
-      ? [`Overall size and squareness move a position by up to ${len(lat.shapeCheck.worstMm)} ± ${len(bandRadiusMm(lat.shapeCheck.uncertaintyMm))} (95 %) against ${len(lat.shapeCheck.toleranceMm)} allowed: ${lat.shapeCheck.verdict === 'in' ? 'within tolerance' : lat.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.`]
+      ? [`Overall size and squareness move a position by up to ${formatLength(lat.shapeCheck.worstMm, unit)} ± ${formatLength(bandRadiusMm(lat.shapeCheck.uncertaintyMm), unit)} (95 %) against ${formatLength(lat.shapeCheck.toleranceMm, unit)} allowed: ${lat.shapeCheck.verdict === 'in' ? 'within tolerance' : lat.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.`]
       : []),
     ...(s.formOut !== undefined ? [`Hole to hole (the lattice's own size and squareness taken out): ${s.formOut} out, ${s.formMarginal ?? 0} marginal.`] : []),
     `Lens model: focal length ${report.camera.focalPx.toFixed(0)} px, k1 ${report.camera.k1.toExponential(2)}, k2 ${report.camera.k2.toExponential(2)}.`,

@@ -223,9 +223,9 @@ export function landPins(pins: ResolvedPin[], byKey: Map<string, ReportPosition>
     const hole = byKey.get(`${f.id}|${col}|${row}`);
     const tol = Math.min(1, 0.05 * Math.min(f.pitch.x, f.pitch.y));
     if (!hole || Math.hypot(hole.nominal.x - x, hole.nominal.y - y) > tol) {
-      return { ok: false, reason: 'off-lattice', pin: p.index, message: `${p.label} does not land on a ${f.label ?? f.kind} hole of the bed there.` };
+      return { ok: false, reason: 'off-lattice', pin: p.index, message: `Pin “${p.label}” does not land on a ${f.label ?? f.kind} hole of the bed there.` };
     }
-    if (!hole.measured) return { ok: false, reason: 'unseen', pin: p.index, message: `${p.label} lands on ${hole.label}, which the photo did not show.` };
+    if (!hole.measured) return { ok: false, reason: 'unseen', pin: p.index, message: `Pin “${p.label}” lands on ${hole.label}, which the photo did not show: pick another origin, or map every position and turn to see where it fits.` };
     holes.push(hole);
   }
   return { ok: true, holes };
