@@ -173,7 +173,10 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const lat = stored.lattice;
     expect(lat.squarenessDeg).not.toBeNull();
     for (const [deg, sigma] of [[lat.squarenessDeg!, lat.uncertainty.squarenessDeg!], [lat.rotationDeg, lat.uncertainty.rotationDeg!]] as const) {
-      const shown = unescape(webHtml).match(new RegExp(`${deg < 0 ? '−' : '\\+?'}${Math.abs(deg).toFixed(3).replace('.', '\\.')}° ± ${sigma.toFixed(3).replace('.', '\\.')}°`))?.[0];
+      // a figure that rounds to zero has no sign; a σ below 0.001° is said to be below it
+      const value = `${Number(deg.toFixed(3)) < 0 ? '−' : Number(deg.toFixed(3)) > 0 ? '\\+?' : ''}${Math.abs(deg).toFixed(3).replace('.', '\\.')}`;
+      const pm = Number(sigma.toFixed(3)) === 0 ? '< 0\\.001' : sigma.toFixed(3).replace('.', '\\.');
+      const shown = unescape(webHtml).match(new RegExp(`${value}° ± ${pm}°`))?.[0];
       expect(shown, `${deg}° ± ${sigma}° on the page`).toBeDefined();
       expect(pdfText).toContain(drawable(helvetica, shown!));
     }
