@@ -5,24 +5,18 @@
  * third of the holes were detected (as after a bad exposure), and the reason is lib/checks/review.ts's, stored
  * as the worker stores it.
  */
-import { join } from 'node:path';
-import { eq } from 'drizzle-orm';
-import sharp from 'sharp';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { openDb } from '@/db/client';
-import { checks } from '@/db/schema';
 import { needsReview } from '@/lib/checks/review';
 import { analyzePoints } from '@/lib/geometry';
 import type { Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { launchChromium, type LaunchedChromium } from './chromium';
-import { signInThroughForm } from './session';
+import { checkWithStoredReport, signInThroughForm } from './session';
 import { Client } from './client';
 
 const baseUrl = inject('baseUrl');
-const dataDir = inject('dataDir');
 /** 20 mm dog holes at 96 mm pitch (common practice). */
 const PATTERN: Pattern = {
   version: 1, name: 'review dog table', units: 'mm', bed: { width: 1000, height: 620 },
@@ -37,27 +31,15 @@ beforeAll(async () => {
   const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
   const api = new Client(baseUrl);
   expect((await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD })).status).toBe(200);
-  const bed = await api.req('POST', '/api/beds', { name: 'Review dog table', pattern: PATTERN });
-  expect(bed.status, bed.text).toBe(201);
-  const bedId = (bed.json as { bed: { id: string } }).bed.id;
-  const jpeg = await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 90, g: 100, b: 110 } } }).jpeg().toBuffer();
-  const form = new FormData();
-  form.append('photo', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), 'dim.jpg');
-  form.append('referenceMm', '150');
-  const up = await fetch(`${baseUrl}/api/beds/${bedId}/checks`, { method: 'POST', headers: { cookie: api.cookie }, body: form });
-  expect(up.status).toBe(202);
-  checkId = ((await up.json()) as { check: { id: string } }).check.id;
   const scene = makeScene({ pattern: PATTERN, seed: 21, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 430, y: 250, angleDeg: 4 } });
   const points = { ...scene.points, holes: scene.points.holes.filter((_, i) => i % 3 === 0) };
   const report = analyzePoints(points, PATTERN);
   reason = needsReview(report)!;
   expect(reason).toMatch(/^Only \d+ of \d+ positions were matched/);
-  const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
-  await db.update(checks).set({
+  checkId = await checkWithStoredReport(api, { name: 'Review dog table', pattern: PATTERN }, {
     status: 'needs-review', stage: reason, progress: 1, reportJson: JSON.stringify(report), detectionsJson: JSON.stringify(points),
     verdict: report.summary.verdict, finishedAt: Date.now(),
-  }).where(eq(checks.id, checkId));
-  db.$client.close();
+  });
   browser = await launchChromium({ width: 1280, height: 900 });
 });
 afterAll(async () => {

@@ -14,15 +14,10 @@ import sharp from 'sharp';
 import { describe, expect, inject, it } from 'vitest';
 import { PatternSchema } from '@/lib/geometry/contract';
 import { degrade } from '@/lib/vision/render/degrade';
-import { demoLogin, renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
+import { presetBed, renderPhoto, SHOTS, setUpMeasuringBrowser } from './session';
 
 const baseUrl = inject('baseUrl');
 const env = setUpMeasuringBrowser('quality', { width: 390, height: 844 });
-
-async function signIn(page: Page) {
-  await env.ctx.clearCookies();
-  await signInThroughForm(page, demoLogin('owner'));
-}
 
 const shot = (page: Page, name: string) => page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
 
@@ -71,11 +66,8 @@ async function uploadAndFollow(page: Page, bedId: string, photo: string, width: 
 
 describe('photo check in the browser', () => {
   it('checks the photo on the upload page, then shows the verdict and the prediction, and a report note for an over-exposed photo', async () => {
-    const page = await env.ctx.newPage();
-    await signIn(page);
-    const made = await page.request.post(`${baseUrl}/api/beds`, { data: { name: 'Photo check bed', preset: { preset: 'm6-50', bedWidthMm: 600, bedHeightMm: 400 } } });
-    expect(made.status()).toBe(201);
-    const bedId = ((await made.json()) as { bed: { id: string } }).bed.id;
+    const page = await env.ownerPage();
+    const bedId = await presetBed(page, 'Photo check bed');
     const pattern = PatternSchema.parse(((await (await page.request.get(`${baseUrl}/api/beds/${bedId}`)).json()) as { pattern: unknown }).pattern);
     writeFileSync(join(env.work, 'pattern.json'), JSON.stringify(pattern));
     const rendered = readFileSync(renderPhoto(join(env.work, 'pattern.json'), env.work, ['--seed', '31', '--target-mm', '150', '--tilt', '3']));

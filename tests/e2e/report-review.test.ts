@@ -16,7 +16,7 @@ import { presetById } from '@/lib/geometry';
 import type { Report } from '@/lib/geometry/contract';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { Client } from './client';
-import { renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
+import { renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser, shootWidths } from './session';
 
 const baseUrl = inject('baseUrl');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
@@ -55,15 +55,6 @@ async function waitSettled(id: string): Promise<string> {
   }
 }
 
-async function shoot(page: Page, name: string) {
-  for (const width of [390, 1280]) {
-    await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
-    await page.waitForTimeout(300);
-    await page.screenshot({ path: join(SHOTS, `${name}-${width}.png`), fullPage: true });
-  }
-  await page.setViewportSize({ width: 1280, height: 900 });
-}
-
 describe('report, review and comparison in the browser', () => {
   it('filters the report to positions out, edits a detection and re-fits, and compares two checks', async () => {
     // A 600 × 400 mm bed of M6 inserts on 50 mm in two 200 mm strips (the core's preset).
@@ -85,7 +76,7 @@ describe('report, review and comparison in the browser', () => {
     await page.getByTestId('check-report').waitFor();
     expect((await page.getByTestId('verdict-sentence').textContent())!.trim()).toBe(report.summary.sentence);
     await page.waitForTimeout(500);
-    await shoot(page, 'report');
+    await shootWidths(page, 'report', 1280);
     const rows = page.getByTestId('positions-table').locator('tbody tr');
     expect(await rows.count()).toBe(report.positions.length);
     await page.getByTestId('filter-verdict').selectOption('out');
@@ -128,7 +119,7 @@ describe('report, review and comparison in the browser', () => {
     await expect.poll(vb).toBeLessThan(fullWidth * 0.5);
     await page.getByRole('button', { name: 'Whole photo' }).click();
     await expect.poll(vb).toBe(fullWidth);
-    await shoot(page, 'review');
+    await shootWidths(page, 'review', 1280);
     await page.getByTestId('mode-remove').click();
     const matched = page.locator('[data-testid="review-editor"] svg g[data-mark]:not([data-mark="unmatched"]):not([data-mark="missing"])');
     await expect.poll(() => matched.count()).toBeGreaterThan(10);
@@ -156,7 +147,7 @@ describe('report, review and comparison in the browser', () => {
     await page.locator('.recharts-line').first().waitFor();
     // the trend's lines are drawn in the marks' colours (defined, not empty)
     expect(await page.locator('.recharts-line-curve').first().evaluate((el) => getComputedStyle(el).stroke)).toMatch(/^rgb/);
-    await shoot(page, 'history');
+    await shootWidths(page, 'history', 1280);
     const boxes = page.getByTestId('history-row').locator('input[type="checkbox"]');
     await expect.poll(() => boxes.count()).toBe(2);
     await boxes.nth(0).check();
@@ -167,7 +158,7 @@ describe('report, review and comparison in the browser', () => {
     const cmp = (await api.req('GET', `/api/checks/${before}/compare/${after}`)).json as { comparison: { summary: { sentence: string }; panels: { significant: boolean }[] } };
     expect((await page.getByTestId('compare-sentence').textContent())!.trim()).toBe(cmp.comparison.summary.sentence);
     expect(await page.getByTestId('panel-moves').locator('tbody tr').count()).toBe(cmp.comparison.panels.length);
-    await shoot(page, 'compare');
+    await shootWidths(page, 'compare', 1280);
     expect(readFileSync(join(SHOTS, 'report-390.png')).length).toBeGreaterThan(1000);
     expect(readFileSync(join(SHOTS, 'report-1280.png')).length).toBeGreaterThan(1000);
   });

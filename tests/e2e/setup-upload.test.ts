@@ -7,35 +7,18 @@
  */
 import { readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import type { Page } from 'playwright-core';
 import { describe, expect, inject, it } from 'vitest';
 import sharp from 'sharp';
 import { PatternSchema } from '@/lib/geometry/contract';
-import { demoLogin, renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser } from './session';
+import { presetBed, renderPhoto, SHOTS, setUpMeasuringBrowser, shootWidths } from './session';
 
 const baseUrl = inject('baseUrl');
 // The worker that measures the upload, on the e2e server's database and storage.
 const env = setUpMeasuringBrowser('upload', { width: 390, height: 844 });
 
-async function signInAsDemoOwner(page: Page) {
-  await env.ctx.clearCookies();
-  await signInThroughForm(page, demoLogin('owner'));
-}
-
-async function shoot(page: Page, name: string) {
-  await page.evaluate(() => window.scrollTo(0, 0));
-  for (const width of [390, 1280]) {
-    await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
-    await page.waitForTimeout(150);
-    await page.screenshot({ path: join(SHOTS, `${name}-${width}.png`), fullPage: true });
-  }
-  await page.setViewportSize({ width: 390, height: 844 });
-}
-
 describe('bed setup, upload and check status in the browser', () => {
   it('sets up a bed from a preset, uploads a rendered photo and follows the check to its report', async () => {
-    const page = await env.ctx.newPage();
-    await signInAsDemoOwner(page);
+    const page = await env.ownerPage();
 
     // 1. A bed from the "M6 inserts on 50 mm" preset, sized to a 600 × 400 mm bed in two 200 mm strips.
     await page.goto(`${baseUrl}/beds/new`);
@@ -63,7 +46,7 @@ describe('bed setup, upload and check status in the browser', () => {
     expect(await drawing.locator('circle[data-bad="1"]').count()).toBeGreaterThan(0);
     await diameter.fill('6');
     await expect.poll(() => page.getByTestId('pattern-findings').textContent()).toContain('No mistakes found');
-    await shoot(page, 'bed-setup');
+    await shootWidths(page, 'bed-setup', 390);
 
     await page.getByTestId('pattern-save').filter({ visible: true }).click();
     await page.waitForURL((u) => /^\/beds\/[^/]+$/.test(u.pathname) && u.pathname !== "/beds/new");
@@ -142,7 +125,7 @@ describe('bed setup, upload and check status in the browser', () => {
     expect(given).toEqual([expect.objectContaining({ from: 'insert A1', to: 'insert L1', mm: 550, used: true })]);
     await expect.poll(() => page.getByTestId('distances-table').textContent()).toContain('insert L1');
     await page.waitForTimeout(500);
-    await shoot(page, 'check-report');
+    await shootWidths(page, 'check-report', 390);
     console.log(JSON.stringify({ e2eUpload: { photoBytes, throttledUploadMs: uploadMs, uploadToSettledMs: settleMs, progressSeen: [...seen].sort((a, b) => a - b), stages: [...stages], status: view.status } }));
     // The screenshots were written.
     expect(readFileSync(join(SHOTS, 'check-report-390.png')).length).toBeGreaterThan(1000);
@@ -160,11 +143,8 @@ describe('bed setup, upload and check status in the browser', () => {
   });
 
   it('says why a photo could not be measured and offers another photo or marking the corners', async () => {
-    const page = await env.ctx.newPage();
-    await signInAsDemoOwner(page);
-    const made = await page.request.post(`${baseUrl}/api/beds`, { data: { name: 'Bare bed', preset: { preset: 'm6-50', bedWidthMm: 600, bedHeightMm: 400 } } });
-    expect(made.status()).toBe(201);
-    const bedId = ((await made.json()) as { bed: { id: string } }).bed.id;
+    const page = await env.ownerPage();
+    const bedId = await presetBed(page, 'Bare bed');
     // A photo of nothing: an even grey frame, no reference square and no holes in it.
     const blank = join(env.work, 'blank.jpg');
     await sharp({ create: { width: 1200, height: 900, channels: 3, background: { r: 128, g: 124, b: 118 } } }).jpeg({ quality: 85 }).toFile(blank);
@@ -185,6 +165,6 @@ describe('bed setup, upload and check status in the browser', () => {
     const view = ((await (await page.request.get(`${baseUrl}/api/checks/${checkId}`)).json()) as { check: { status: string; error?: string } }).check;
     expect(view.status).toBe('failed');
     expect(view.error && text.includes(view.error)).toBe(true);
-    await shoot(page, 'check-failed');
+    await shootWidths(page, 'check-failed', 390);
   });
 });

@@ -5,15 +5,10 @@
  * outbox (the demo runs with it) showing the report mail sent to a helper. The check's report is the
  * measurement core's own, of a synthetic photo of the bed, written into the app's database file.
  */
-import { join } from 'node:path';
-import { eq } from 'drizzle-orm';
 import { type BrowserContext, type Page } from 'playwright-core';
 import { launchChromium, type LaunchedChromium } from './chromium';
-import { signInThroughForm } from './session';
-import sharp from 'sharp';
+import { checkWithStoredReport, signInThroughForm } from './session';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { openDb } from '@/db/client';
-import { checks } from '@/db/schema';
 import { analyzePoints } from '@/lib/geometry';
 import type { Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
@@ -21,7 +16,6 @@ import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { Client } from './client';
 
 const baseUrl = inject('baseUrl');
-const dataDir = inject('dataDir');
 const owner = DEMO_LOGINS.find((l) => l.role === 'owner')!;
 /** M8 inserts at 100 mm pitch (a common insert grid, common practice). */
 const PATTERN: Pattern = {
@@ -37,19 +31,9 @@ let checkId: string;
 
 beforeAll(async () => {
   expect((await api.req('POST', '/api/auth/sign-in', { email: owner.email, password: DEMO_PASSWORD })).status).toBe(200);
-  const bed = await api.req('POST', '/api/beds', { name: 'Fixture plate', pattern: PATTERN });
-  const bedId = (bed.json as { bed: { id: string } }).bed.id;
-  const jpeg = await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 90, g: 90, b: 90 } } }).jpeg().toBuffer();
-  const form = new FormData();
-  form.append('photo', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), 'plate.jpg');
-  form.append('referenceMm', '150');
-  const up = await fetch(`${baseUrl}/api/beds/${bedId}/checks`, { method: 'POST', headers: { cookie: api.cookie }, body: form });
-  checkId = ((await up.json()) as { check: { id: string } }).check.id;
   const scene = makeScene({ pattern: PATTERN, seed: 5, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 640, y: 250, angleDeg: 3 } });
   const report = analyzePoints(scene.points, PATTERN);
-  const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
-  await db.update(checks).set({ status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() }).where(eq(checks.id, checkId));
-  db.$client.close();
+  checkId = await checkWithStoredReport(api, { name: 'Fixture plate', pattern: PATTERN }, { status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() });
 
   browser = await launchChromium({ width: 1280, height: 900 });
   ctx = browser.ctx;
