@@ -151,20 +151,15 @@ export function PositionsTable({ rows, unit, selected, onSelect, initialVerdict 
             {Object.entries(VERDICT_FILTERS).map(([k, v]) => <option key={k} value={k}>{v}</option>)}
           </select>
         </label>
-        <label className="field">
-          <span>Family</span>
-          <select className="input" value={get('family')} onChange={(e) => set('family', e.target.value)}>
-            <option value="">All families</option>
-            {families.map((f) => <option key={f} value={f}>{f}</option>)}
-          </select>
-        </label>
-        <label className="field">
-          <span>Panel</span>
-          <select className="input" value={get('panel')} onChange={(e) => set('panel', e.target.value)}>
-            <option value="">All panels</option>
-            {panels.map((f) => <option key={f} value={f}>{f}</option>)}
-          </select>
-        </label>
+        {([['family', 'Family', 'All families', families], ['panel', 'Panel', 'All panels', panels]] as const).map(([id, label, all, values]) => (
+          <label key={id} className="field">
+            <span>{label}</span>
+            <select className="input" value={get(id)} onChange={(e) => set(id, e.target.value)}>
+              <option value="">{all}</option>
+              {values.map((f) => <option key={f} value={f}>{f}</option>)}
+            </select>
+          </label>
+        ))}
         <label className="field">
           <span>Find a position</span>
           <input className="input" type="search" placeholder="e.g. C7" value={get('label')} onChange={(e) => set('label', e.target.value)} />
