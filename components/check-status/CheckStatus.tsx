@@ -63,7 +63,7 @@ export function CheckStatus({ checkId, initial, canUpload, canReview }: { checkI
   }
 
   if (view.status === 'failed') {
-    const advice = failureAdvice(view.error);
+    const advice = failureAdvice(view.error, view.hasDetections);
     return (
       <section className="panel flex flex-col gap-4 border-2 border-fail" role="alert" data-testid="check-failed">
         <h2 className="text-2xl font-bold text-fail">{words}</h2>

@@ -18,6 +18,8 @@ export interface CheckStatusView {
   finishedAt: number | null;
   /** The photo-quality verdict, once measured (before the holes). */
   quality?: PhotoQuality;
+  /** True once the check has detections that review can edit (its corners and holes). */
+  hasDetections?: boolean;
 }
 
 const STAGE_WORDS: Record<string, string> = {
@@ -57,17 +59,18 @@ export function pollInterval(view: Pick<CheckStatusView, 'status'> | undefined, 
 /**
  * What to try after a failure, by what went wrong (the worker's messages: lib/vision/index.ts, lib/geometry/stages,
  * lib/checks/run-analysis.ts):
- * - the reference square not found, or its corners wrong: mark the corners by hand, or another photo;
+ * - the reference square not found, or its corners wrong: another photo, or mark the corners by hand in review —
+ *   which needs detections to edit (`hasDetections`: a re-fit's; a photo whose first analysis failed has none);
  * - too few holes found (the square was found): the holes are looked for at the sizes the bed's pattern gives, so
  *   check the pattern, then another photo (sharp, clean, even light); marking the square's corners cannot help;
  * - holes found but too few matched the pattern: the pattern (pitch, origin), the square's corners (they set the
  *   scale the holes are matched at), or another photo;
  * - anything else (an unreadable file, a limit): another photo.
  */
-export function failureAdvice(error: string | undefined): { markCorners: boolean; checkPattern: boolean; anotherPhoto: boolean } {
+export function failureAdvice(error: string | undefined, hasDetections = false): { markCorners: boolean; checkPattern: boolean; anotherPhoto: boolean } {
   const e = (error ?? '').toLowerCase();
   const holesFound = /\bonly \d+ holes? (was|were) found\b/.test(e);
   const holesMatched = /\bholes? (matched|could be matched)\b/.test(e);
   const square = !holesFound && !holesMatched && /reference square|corners/.test(e);
-  return { markCorners: square || holesMatched, checkPattern: holesFound || holesMatched, anotherPhoto: true };
+  return { markCorners: hasDetections && (square || holesMatched), checkPattern: holesFound || holesMatched, anotherPhoto: true };
 }

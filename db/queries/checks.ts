@@ -132,6 +132,8 @@ export interface CheckStatusView {
   finishedAt: number | null;
   /** The photo-quality verdict, once the worker has measured it (before the holes). */
   quality?: PhotoQuality;
+  /** True once detections are stored (an analysis got through the vision), so review can edit them. */
+  hasDetections: boolean;
 }
 
 export function checkStatusView(row: CheckRow): CheckStatusView {
@@ -147,6 +149,7 @@ export function checkStatusView(row: CheckRow): CheckStatusView {
     createdAt: row.createdAt,
     finishedAt: row.finishedAt,
     ...(quality ? { quality } : {}),
+    hasDetections: row.detectionsJson !== null,
   };
 }
 

@@ -30,14 +30,17 @@ describe('failureAdvice', () => {
     // the pattern says 40 mm holes: the square is found, no hole of that size is
     const e = await failure(jpeg, bed(40), truth.target.sizeMm);
     expect(e.code).toBe('too-few-holes');
-    expect(failureAdvice(e.message)).toEqual({ checkPattern: true, anotherPhoto: true, markCorners: false });
+    expect(failureAdvice(e.message, true)).toEqual({ checkPattern: true, anotherPhoto: true, markCorners: false });
   }, 60_000);
 
-  it('offers to mark the corners by hand when the square was not found', async () => {
+  it('offers another photo when the square was not found, and marking the corners only once there are detections to edit', async () => {
     const blank = await sharp({ create: { width: 1600, height: 1200, channels: 3, background: { r: 120, g: 110, b: 95 } } }).jpeg().toBuffer();
     const e = await failure(blank, bed(6), 250);
     expect(e.code).toBe('no-square');
-    expect(failureAdvice(e.message)).toEqual({ checkPattern: false, anotherPhoto: true, markCorners: true });
+    // a first analysis that failed stored no detections: review has nothing to edit
+    expect(failureAdvice(e.message)).toEqual({ checkPattern: false, anotherPhoto: true, markCorners: false });
+    // a re-fit's photo has them: its corners can be moved in review
+    expect(failureAdvice(e.message, true)).toEqual({ checkPattern: false, anotherPhoto: true, markCorners: true });
   }, 60_000);
 
   it('offers the pattern, the corners and another photo when holes were found but too few fit the pattern', () => {
@@ -46,7 +49,8 @@ describe('failureAdvice', () => {
     let message = '';
     try { analyzePoints({ ...points, holes: points.holes.slice(0, 5) }, pattern); } catch (e) { message = (e as Error).message; }
     expect(message).toMatch(/holes/);
-    expect(failureAdvice(message)).toEqual({ checkPattern: true, anotherPhoto: true, markCorners: true });
+    expect(failureAdvice(message, true)).toEqual({ checkPattern: true, anotherPhoto: true, markCorners: true });
+    expect(failureAdvice(message, false).markCorners).toBe(false);
   });
 
   it('offers only another photo for a file that is not a photo', async () => {
