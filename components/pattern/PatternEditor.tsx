@@ -13,6 +13,7 @@ import { useMutation } from '@tanstack/react-query';
 import { useRouter } from 'next/navigation';
 import { useMemo, useState, type ReactNode } from 'react';
 import { api, errorText, ApiError } from '@/components/api';
+import { HOLE_KIND_NAME } from '@/lib/geometry/labels';
 import { HOLE_KINDS, MM_PER_IN, PatternSchema, type ClearanceClass, type Family, type FitSpec, type HoleKind, type Pattern, type Rect } from '@/lib/geometry/contract';
 import { FASTENERS } from '@/lib/geometry/fits';
 import { PRESETS } from '@/lib/geometry/presets';
@@ -24,7 +25,6 @@ import { PatternDrawing } from './PatternDrawing';
 type Units = 'mm' | 'in';
 type PresetRef = { preset: string; bedWidthMm: number; bedHeightMm: number; stripWidthMm?: number };
 
-const KIND_NAMES: Record<HoleKind, string> = { 'threaded-insert': 'Threaded insert', 'dog-hole': 'Dog hole', 'pin-hole': 'Pin hole', other: 'Other hole' };
 const CLASS_NAMES: Record<ClearanceClass, string> = { fine: 'fine (ISO 273)', medium: 'medium (ISO 273)', coarse: 'coarse (ISO 273)', close: 'close (ASME B18.2.8)', normal: 'normal (ASME B18.2.8)', loose: 'loose (ASME B18.2.8)' };
 const METRIC_CLASSES: ClearanceClass[] = ['fine', 'medium', 'coarse'];
 const INCH_CLASSES: ClearanceClass[] = ['close', 'normal', 'loose'];
@@ -318,7 +318,7 @@ function FamilyCard({ index, family: f, units, bed, canRemove, onChange, onRemov
       <legend className="px-1 text-lg font-bold">Family {index + 1}: {f.label ?? f.id}</legend>
       <div className="grid grid-cols-2 gap-3">
         <TextField label="Id" value={f.id} onChange={(id) => onChange((g) => ({ ...g, id }))} />
-        <SelectField<HoleKind> label="Kind" value={f.kind} options={HOLE_KINDS.map((k) => ({ value: k, label: KIND_NAMES[k] }))} onChange={(kind) => onChange((g) => ({ ...g, kind }))} />
+        <SelectField<HoleKind> label="Kind" value={f.kind} options={HOLE_KINDS.map((k) => ({ value: k, label: HOLE_KIND_NAME[k] }))} onChange={(kind) => onChange((g) => ({ ...g, kind }))} />
         <NumField label="Hole diameter" unit={units} value={f.holeDiameter} min={0} testId={`family-${index}-diameter`} onChange={(holeDiameter) => onChange((g) => ({ ...g, holeDiameter }))} />
         <TextField label="Word in labels" value={f.label ?? ''} onChange={(label) => onChange((g) => { const { label: _l, ...rest } = g; return label.trim() ? { ...rest, label } : rest; })} />
         <NumField label="Pitch X" unit={units} value={f.pitch.x} min={0} testId={`family-${index}-pitch-x`} onChange={(x) => onChange((g) => ({ ...g, pitch: { ...g.pitch, x } }))} />

@@ -27,6 +27,9 @@ export function columnIndex(letters: string): number {
 
 const KIND_WORD: Record<HoleKind, string> = { 'threaded-insert': 'insert', 'dog-hole': 'dog', 'pin-hole': 'pin', other: 'hole' };
 
+/** The name of each kind of hole, as the bed's pages and its editor write it. */
+export const HOLE_KIND_NAME: Record<HoleKind, string> = { 'threaded-insert': 'Threaded insert', 'dog-hole': 'Dog hole', 'pin-hole': 'Pin hole', other: 'Other hole' };
+
 /** The word used for a family in labels: its own `label` or one from its kind. */
 export function familyWord(f: { kind: HoleKind; label?: string }): string {
   return f.label ?? KIND_WORD[f.kind];

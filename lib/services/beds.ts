@@ -8,7 +8,7 @@ import type { Db } from '@/db/client';
 import { recordAudit } from '@/db/queries/audit';
 import * as q from '@/db/queries/beds';
 import { insertPatternRevision, listPatternRevisions } from '@/db/queries/patterns';
-import { PatternSchema, type Pattern } from '@/lib/geometry/contract';
+import { PatternSchema, type HoleKind, type Pattern } from '@/lib/geometry/contract';
 import { parseStoredJson } from '@/lib/stored-json';
 import { invalidInput, notFound } from '@/lib/http/errors';
 import { authorize, type Actor } from './actor';
@@ -58,7 +58,7 @@ export type PatternSummary = {
   bed: { width: number; height: number };
   positions: number;
   panels: number;
-  families: { id: string; kind: string; label: string; holeDiameter: number; pitch: { x: number; y: number }; count: { x: number; y: number }; positions: number; fit: string }[];
+  families: { id: string; kind: HoleKind; label: string; holeDiameter: number; pitch: { x: number; y: number }; count: { x: number; y: number }; positions: number; fit: string }[];
 };
 
 function describeFit(fit: Pattern['families'][number]['fit']): string {

@@ -10,6 +10,7 @@ import { can } from '@/lib/services/actor';
 import { getBed } from '@/lib/services/beds';
 import { orNotFound } from '@/lib/http/not-found';
 import { formatUtc } from '@/lib/dates';
+import { HOLE_KIND_NAME } from '@/lib/geometry/labels';
 
 export const metadata: Metadata = { title: 'Bed' };
 
@@ -56,7 +57,7 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
                   <tbody className="font-mono text-base">
                     {p.families.map((f) => (
                       <tr key={f.id} className="border-b border-line">
-                        <td className="py-2 pr-4">{f.label}</td><td className="pr-4">{f.kind}</td><td className="pr-4">{f.holeDiameter}</td>
+                        <td className="py-2 pr-4">{f.label}</td><td className="pr-4">{HOLE_KIND_NAME[f.kind]}</td><td className="pr-4">{f.holeDiameter}</td>
                         <td className="pr-4">{f.pitch.x} × {f.pitch.y}</td><td className="pr-4">{f.count.x} × {f.count.y}</td><td>{f.fit}</td>
                       </tr>
                     ))}
