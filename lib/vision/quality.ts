@@ -6,7 +6,8 @@
  * - blur as the variance of the line spread along each edge normal n, in linear light: nᵀΣn with
  *   Σ = σ²·I + (L²/12)·d dᵀ (defocus σ, a straight motion of length L along d; a box of length L has variance L²/12);
  *   the holes' darkness second moments minus a disc's (r²/4 through the target's perspective) give the anisotropic
- *   part of Σ, hence L and d; the target's edges then give σ;
+ *   part of Σ, hence L and d (or, with fewer than 5 holes sampled, the orientation mark's less a square's:
+ *   mark-spread.ts); the target's edges then give σ;
  * - exposure: shares of clipped samples on the target's white, right at its black edge, on its black, on the bed
  *   around the holes; the white's level;
  * - the target's side and the holes' diameter in px, the camera's tilt from the target's homography (EXIF focal
@@ -34,6 +35,7 @@
 import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
 import { ISSUE_ADVICE } from './advice';
 import { cutTargetMark } from './cut-target';
+import { markSpread } from './mark-spread';
 import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
 import { sampleGrey, toLinear as lin, type Corners } from './square';
@@ -600,14 +602,14 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const holes = cands.map((c) => holeMoments(q, H, Hi, c)).filter((x): x is HoleStats => x !== null);
   measured.holesSampled = holes.length;
 
-  // motion: the anisotropic part of the point spread, from the holes (L²/24 = its magnitude)
+  // motion: the anisotropic part of the point spread (L²/24 = its magnitude), the median over the sampled holes, or
+  // when too few are sampled (smeared past the candidate pass, or too small), from the target's orientation mark
   let L = 0;
   let d: [number, number] = [1, 0];
-  if (holes.length >= 5) {
-    const a = median(holes.map((x) => x.dev[0]));
-    const b = median(holes.map((x) => x.dev[1]));
-    const mag = Math.hypot(a, b);
-    L = Math.sqrt(24 * mag);
+  const spread: [number, number] | null = holes.length >= 5 ? [median(holes.map((x) => x.dev[0])), median(holes.map((x) => x.dev[1]))] : markSpread(q.grey, w, h, H, S);
+  if (spread) {
+    const [a, b] = spread;
+    L = Math.sqrt(24 * Math.hypot(a, b));
     const th = 0.5 * Math.atan2(b, a);
     d = [Math.cos(th), Math.sin(th)];
     measured.motion = { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) };
