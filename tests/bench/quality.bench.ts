@@ -31,6 +31,11 @@ const load = (f: string): Pattern => PatternSchema.parse(JSON.parse(readFileSync
 const SMALL = load('bed-small.json');
 const LARGE = load('bed-large.json');
 const SMALL_BASE: Partial<SceneOptions> = { width: 1200, height: 900, supersample: 3 };
+/** M6 bores (6 mm) at 100 mm on a 1200 × 900 mm bed: about 8 px across in a 1600 × 1200 photo. */
+const M6: Pattern = PatternSchema.parse({
+  version: 1, name: 'M6 at 100 mm', units: 'mm', bed: { width: 1200, height: 900 },
+  families: [{ id: 'insert', kind: 'threaded-insert', holeDiameter: 6, origin: { x: 50, y: 50 }, pitch: { x: 100, y: 100 }, count: { x: 12, y: 9 }, fit: { fastener: 'M6', clearance: 'medium' } }],
+});
 
 const median = (v: number[]) => { const s = [...v].sort((a, b) => a - b); return s.length ? s[Math.floor(s.length / 2)]! : NaN; };
 const rms = (v: number[]) => Math.sqrt(v.reduce((a, x) => a + x * x, 0) / v.length);
@@ -119,6 +124,8 @@ function cases(big: { jpeg: Buffer; truth: Truth }): Case[] {
   for (const [i, s] of [2, 3, 4].entries()) S(`defocus σ ${s} px`, { seed: 711 + i, blurPx: s, tiltDeg: 3 + 2 * i }, ['blurred']);
   S('defocus σ 2.5 px, plywood', { seed: 714, blurPx: 2.5, material: 'plywood' }, ['blurred']);
   for (const [i, [len, ang]] of ([[8, 20], [14, 135], [20, 80], [11, 0]] as const).entries()) S(`motion ${len} px at ${ang}°`, { seed: 721 + i }, ['motion-blur'], { motionBlurPx: len, motionAngleDeg: ang });
+  // a smear that wipes out small bores: the holes cannot be sampled, the target's mark still is
+  c.push({ name: 'motion 8 px at 120°, 1600 × 1200, M6 bores', pattern: M6, options: { width: 1600, height: 1200, supersample: 2, seed: 772 }, degrade: { motionBlurPx: 8, motionAngleDeg: 120 }, expect: ['motion-blur'] });
   S('over-exposed ×1.9', { seed: 731 }, ['overexposed'], { gain: 1.9 });
   S('over-exposed ×2.2, 7° tilt', { seed: 732, tiltDeg: 7 }, ['overexposed'], { gain: 2.2 });
   S('over-exposed ×1.9, phone camera', { seed: 734, camera: 'phone' }, ['overexposed'], { gain: 1.9 });
