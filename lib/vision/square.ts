@@ -9,7 +9,7 @@
  * image coordinates; corner 0 is the one by the orientation mark, or for a plain square the one nearest the
  * photo's bottom-left.
  */
-import { getCv, type CvMat } from './cv';
+import { getCv, type CV, type CvMat } from './cv';
 import { forEachContour, withContourMats } from './contours';
 import { applyH, homographyFrom4 } from '@/lib/geometry/homography';
 import { DEFAULT_BIAS_PRIOR, fitSquareEdges, type SquareEdgeFit } from './edgefit';
@@ -178,115 +178,158 @@ function meet(A: { n: [number, number]; c: number }, B: { n: [number, number]; c
 /** Per side of a quad, the lines through its first half (from corner s) and its second half (to corner s + 1). */
 export type SideLines = { a: EdgeLine; b: EdgeLine }[];
 
+/** Spacing of the samples across a side, px. */
+const PROFILE_STEP_PX = 0.25;
+
+/**
+ * Where a profile across an edge (linear light, sampled every `step` px from −`reach` px, rising from dark to light)
+ * has its edge, px from the profile's centre; null when it has no clear step. Found by area, not by a level
+ * crossing: around the steepest rise, the dark length from the window's start equals the integral of the
+ * normalised darkness (exact for a blurred or pixel-averaged step, whatever its sub-pixel phase).
+ */
+function edgeInProfile(prof: Float64Array, reach: number, step: number): number | null {
+  const nProf = prof.length;
+  let best = -1;
+  let bestG = 0;
+  for (let j = 2; j < nProf - 2; j++) {
+    const g = prof[j + 2]! + prof[j + 1]! - prof[j - 1]! - prof[j - 2]!;
+    if (g > bestG) {
+      bestG = g;
+      best = j;
+    }
+  }
+  if (best < 3 || best > nProf - 4) return null;
+  // the dark and the light plateau around the step
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let j = Math.max(0, best - 12); j <= best; j++) lo = Math.min(lo, prof[j]!);
+  for (let j = best; j <= Math.min(nProf - 1, best + 12); j++) hi = Math.max(hi, prof[j]!);
+  if (hi - lo < 1e-3) return null;
+  const jA = Math.max(0, best - 12);
+  const jB = Math.min(nProf - 1, best + 12);
+  let dark = 0;
+  for (let j = jA; j < jB; j++) {
+    const u0 = Math.min(1, Math.max(0, (hi - prof[j]!) / (hi - lo)));
+    const u1 = Math.min(1, Math.max(0, (hi - prof[j + 1]!) / (hi - lo)));
+    dark += (u0 + u1) * 0.5 * step;
+  }
+  return -reach + jA * step + dark;
+}
+
+/**
+ * Edge points (image px) along side a → b (px): at 12–200 stations from 6 % to 94 % of the side, the edge on a
+ * linear-light profile along `out` (unit, px; dark → light) within ±`reach` px; with each point's station (fraction
+ * of the side).
+ */
+function edgePointsAlongSide(grey: Float32Array, w: number, h: number, a: readonly [number, number], b: readonly [number, number], out: readonly [number, number], reach: number): { pts: [number, number][]; fs: number[] } {
+  const len = Math.hypot(b[0] - a[0], b[1] - a[1]);
+  const pts: [number, number][] = [];
+  const fs: number[] = [];
+  const nSamples = Math.max(12, Math.min(200, Math.floor(len / 2)));
+  const step = PROFILE_STEP_PX;
+  const prof = new Float64Array(Math.floor((2 * reach) / step) + 1);
+  for (let k = 0; k < nSamples; k++) {
+    const f = 0.06 + (0.88 * k) / (nSamples - 1);
+    const px = a[0] + (b[0] - a[0]) * f;
+    const py = a[1] + (b[1] - a[1]) * f;
+    for (let j = 0; j < prof.length; j++) {
+      const d = -reach + j * step;
+      prof[j] = sampleLinear(grey, w, h, px + out[0] * d, py + out[1] * d);
+    }
+    const d = edgeInProfile(prof, reach, step);
+    if (d === null) continue;
+    pts.push([px + out[0] * d, py + out[1] * d]);
+    fs.push(f);
+  }
+  return { pts, fs };
+}
+
+/** Line through edge points (px) with outliers beyond 3 MAD (a dust speck on the edge) rejected and refitted; null under 6 points. */
+function robustEdgeLine(sel: [number, number][]): { L: EdgeLine; keep: [number, number][] } | null {
+  if (sel.length < 6) return null;
+  let L = fitLine(sel);
+  const res = sel.map((p) => Math.abs(L.n[0] * p[0] + L.n[1] * p[1] - L.c));
+  const sorted = [...res].sort((x, y) => x - y);
+  const mad = sorted[Math.floor(sorted.length / 2)]! * 1.4826 + 0.02;
+  const keep = sel.filter((_, i) => res[i]! < 3 * mad);
+  if (keep.length >= 6) L = fitLine(keep);
+  return { L, keep: keep.length >= 6 ? keep : sel };
+}
+
+/** One side of a quad measured: lines through its two halves, the inlying edge points (px) and the side's frame. */
+interface MeasuredSide {
+  lines: { a: EdgeLine; b: EdgeLine };
+  kept: [number, number][];
+  frame: SideFrame;
+}
+
+/**
+ * Measures side s (corner s → s + 1) of quad `q` (px). `negativeArea`: the quad's shoelace area is negative (then
+ * the outward normal is left of the tangent); `darkInside` as for refineCorners. Null when a half has too few points.
+ */
+function measureSide(grey: Float32Array, w: number, h: number, q: Corners, s: number, negativeArea: boolean, darkInside: boolean, reach: number): MeasuredSide | null {
+  const a = q[s]!;
+  const b = q[(s + 1) % 4]!;
+  const len = Math.hypot(b[0] - a[0], b[1] - a[1]);
+  const t: [number, number] = [(b[0] - a[0]) / len, (b[1] - a[1]) / len];
+  // the profile runs from dark to light, so inward for a light quad in a dark frame
+  const o: [number, number] = negativeArea ? [-t[1], t[0]] : [t[1], -t[0]];
+  const out: [number, number] = darkInside ? o : [-o[0], -o[1]];
+  const { pts, fs } = edgePointsAlongSide(grey, w, h, a, b, out, reach);
+  const Ra = robustEdgeLine(pts.filter((_, i) => fs[i]! < 0.5));
+  const Rb = robustEdgeLine(pts.filter((_, i) => fs[i]! >= 0.5));
+  if (!Ra || !Rb) return null;
+  return { lines: { a: Ra.L, b: Rb.L }, kept: [...Ra.keep, ...Rb.keep], frame: { a, t, o } };
+}
+
+/** A quad refined on the full image (px): corners, edge RMS (px), the half-side lines, side curves, edge points and side frames. */
+export interface RefinedQuad {
+  corners: Corners;
+  rms: number;
+  sides: SideLines;
+  curves: SideCurve[];
+  points: [number, number][][];
+  frames: SideFrame[];
+}
+
 /**
  * Refines a quadrilateral's corners on the full-resolution grey image: along each side, edge points where the
- * intensity profile across the side steps from dark to light (located by the area under the normalised darkness), a robust line
- * fit per side, corners at the intersections of neighbouring sides. `reachPx` bounds the search across a side.
- * `darkInside` (default true): the quad is dark and its surround light (a square's outer edge); false for the
- * inner edge of a frame (light inside, dark stroke outside).
+ * intensity profile across the side steps from dark to light (located by the area under the normalised darkness),
+ * a robust line fit per half side and the corners where neighbouring half lines meet (twice, the second pass within
+ * half the reach); the final corners where the sides' quadratic curves through all inliers meet (a lens bends a
+ * straight side into nearly a parabola). `reachPx` bounds the search across a side. `darkInside` (default true):
+ * the quad is dark and its surround light (a square's outer edge); false for the inner edge of a frame (light
+ * inside, dark stroke outside). Image px throughout.
  */
-export function refineCorners(grey: Float32Array, w: number, h: number, quad: Corners, reachPx: number, darkInside = true): { corners: Corners; rms: number; sides: SideLines; curves: SideCurve[]; points: [number, number][][]; frames: SideFrame[] } | null {
+export function refineCorners(grey: Float32Array, w: number, h: number, quad: Corners, reachPx: number, darkInside = true): RefinedQuad | null {
   let q = quad;
   let rms = 0;
-  const area = shoelace(q);
-  let halves: SideLines = [];
-  let kept: [number, number][][] = [];
-  let frames: SideFrame[] = [];
+  const negativeArea = shoelace(q) < 0;
+  let sides: MeasuredSide[] = [];
   for (let iter = 0; iter < 2; iter++) {
-    // per side: lines through its first and its second half (a lens's bend of the side then hardly moves a
-    // corner), for the next pass's sampling; the final corners come from quadratic curves through all inliers
-    halves = [];
-    kept = [];
-    frames = [];
+    const reach = iter === 0 ? reachPx : Math.max(3, reachPx / 2);
+    sides = [];
     let rr = 0;
     for (let s = 0; s < 4; s++) {
-      const a = q[s]!;
-      const b = q[(s + 1) % 4]!;
-      const len = Math.hypot(b[0] - a[0], b[1] - a[1]);
-      const t: [number, number] = [(b[0] - a[0]) / len, (b[1] - a[1]) / len];
-      // outward normal: right of the tangent for a positive shoelace area, left for a negative one; the profile
-      // runs from dark to light, so inward for a light quad in a dark frame
-      const o: [number, number] = area < 0 ? [-t[1], t[0]] : [t[1], -t[0]];
-      const out: [number, number] = darkInside ? o : [-o[0], -o[1]];
-      const pts: [number, number][] = [];
-      const fs: number[] = [];
-      const nSamples = Math.max(12, Math.min(200, Math.floor(len / 2)));
-      const reach = iter === 0 ? reachPx : Math.max(3, reachPx / 2);
-      const step = 0.25;
-      const nProf = Math.floor((2 * reach) / step) + 1;
-      const prof = new Float64Array(nProf);
-      for (let k = 0; k < nSamples; k++) {
-        const f = 0.06 + (0.88 * k) / (nSamples - 1);
-        const px = a[0] + (b[0] - a[0]) * f;
-        const py = a[1] + (b[1] - a[1]) * f;
-        for (let j = 0; j < nProf; j++) {
-          const d = -reach + j * step;
-          prof[j] = sampleLinear(grey, w, h, px + out[0] * d, py + out[1] * d);
-        }
-        let best = -1;
-        let bestG = 0;
-        for (let j = 2; j < nProf - 2; j++) {
-          const g = prof[j + 2]! + prof[j + 1]! - prof[j - 1]! - prof[j - 2]!;
-          if (g > bestG) {
-            bestG = g;
-            best = j;
-          }
-        }
-        if (best < 3 || best > nProf - 4) continue;
-        // the edge is where linear light crosses half-way between the dark and the light plateau around the step
-        let lo = Infinity;
-        let hi = -Infinity;
-        for (let j = Math.max(0, best - 12); j <= best; j++) lo = Math.min(lo, prof[j]!);
-        for (let j = best; j <= Math.min(nProf - 1, best + 12); j++) hi = Math.max(hi, prof[j]!);
-        if (hi - lo < 1e-3) continue;
-        // Edge by area, not by a level crossing: the dark length from the window's start equals the integral of
-        // the normalised darkness (exact for a blurred or pixel-averaged step, whatever its sub-pixel phase).
-        const jA = Math.max(0, best - 12);
-        const jB = Math.min(nProf - 1, best + 12);
-        let dark = 0;
-        for (let j = jA; j < jB; j++) {
-          const u0 = Math.min(1, Math.max(0, (hi - prof[j]!) / (hi - lo)));
-          const u1 = Math.min(1, Math.max(0, (hi - prof[j + 1]!) / (hi - lo)));
-          dark += (u0 + u1) * 0.5 * step;
-        }
-        const d = -reach + jA * step + dark;
-        pts.push([px + out[0] * d, py + out[1] * d]);
-        fs.push(f);
-      }
-      const robust = (sel: [number, number][]) => {
-        if (sel.length < 6) return null;
-        let L = fitLine(sel);
-        // reject outliers (a dust speck on the edge) and refit
-        const res = sel.map((p) => Math.abs(L.n[0] * p[0] + L.n[1] * p[1] - L.c));
-        const sorted = [...res].sort((x, y) => x - y);
-        const mad = sorted[Math.floor(sorted.length / 2)]! * 1.4826 + 0.02;
-        const keep = sel.filter((_, i) => res[i]! < 3 * mad);
-        if (keep.length >= 6) L = fitLine(keep);
-        return { L, keep: keep.length >= 6 ? keep : sel };
-      };
-      const Ra = robust(pts.filter((_, i) => fs[i]! < 0.5));
-      const Rb = robust(pts.filter((_, i) => fs[i]! >= 0.5));
-      if (!Ra || !Rb) return null;
-      halves.push({ a: Ra.L, b: Rb.L });
-      kept.push([...Ra.keep, ...Rb.keep]);
-      frames.push({ a, t, o });
-      rr += (Ra.L.rms * Ra.L.rms + Rb.L.rms * Rb.L.rms) / 2;
+      const side = measureSide(grey, w, h, q, s, negativeArea, darkInside, reach);
+      if (!side) return null;
+      sides.push(side);
+      rr += (side.lines.a.rms * side.lines.a.rms + side.lines.b.rms * side.lines.b.rms) / 2;
     }
-    const nq = quadOf(halves);
+    const nq = quadOf(sides.map((s) => s.lines));
     if (!nq) return null;
     q = nq;
     rms = Math.sqrt(rr / 4);
   }
-  // final corners where the sides' quadratic curves meet (a lens bends a straight side into nearly a parabola)
   const curves: SideCurve[] = [];
-  for (let s = 0; s < 4; s++) {
-    const C = fitCurve(kept[s]!, frames[s]!);
+  for (const s of sides) {
+    const C = fitCurve(s.kept, s.frame);
     if (!C) return null;
     curves.push(C);
   }
   const cq = curveQuad(curves, q);
   if (!cq) return null;
-  return { corners: cq, rms, sides: halves, curves, points: kept, frames };
+  return { corners: cq, rms, sides: sides.map((s) => s.lines), curves, points: sides.map((s) => s.kept), frames: sides.map((s) => s.frame) };
 }
 
 /** Corners where the half-lines next to each corner meet: corner i from side i − 1's second half and side i's first. */
@@ -472,12 +515,22 @@ function meanInTarget(grey: Float32Array, w: number, h: number, c: Corners, cx: 
   return s / n;
 }
 
+/** Grey-level difference (0–255) that tells ink from paper in the square's checks. */
+const INK_CONTRAST = 25;
+
+/** The reduced image the candidate search runs on: 8-bit grey, its size in reduced px. */
+interface ReducedImage {
+  data: Uint8Array;
+  width: number;
+  height: number;
+}
+
 /**
- * Finds the reference square. `small` is the grey image reduced by `factor` (8 bit); `grey` the full image.
- * Returns null when no square is found.
+ * Convex four-vertex contours of a dark-region adaptive threshold on the reduced image that can be a square in
+ * perspective, their corners in full-image px (a reduced pixel's centre at factor·i + (factor − 1)/2), areas in
+ * full-image px², and which are holes in which outer contour (RETR_CCOMP).
  */
-export async function findSquare(grey: Float32Array, w: number, h: number, small: { data: Uint8Array; width: number; height: number }, factor: number): Promise<SquareFound | null> {
-  const { cv } = await getCv();
+function candidateQuads(cv: CV, small: ReducedImage, factor: number): Quad[] {
   const quads: Quad[] = [];
   withContourMats(cv, small.data, small.width, small.height, ({ src, bin, contours, hier }) => {
     const block = (Math.max(15, Math.round(Math.min(small.width, small.height) / 12)) | 1) >>> 0;
@@ -499,72 +552,129 @@ export async function findSquare(grey: Float32Array, w: number, h: number, small
       approx.delete();
     });
   });
-  // Gridproof target: an outer quad whose hole is a quad of the frame's inner area ratio
+  return quads;
+}
+
+/** An outer quad to try, and what it looks like: Gridproof's target or a plain square. */
+interface Candidate {
+  outer: Quad;
+  score: number;
+  kind: 'target' | 'square';
+}
+
+/**
+ * Outer quads, best first: Gridproof's target (an outer quad whose hole is a quad of the frame's inner area ratio,
+ * (1 − 2 FRAME_FRACTION)² ± 0.15) before any plain square, larger before smaller.
+ */
+function rankCandidates(quads: readonly Quad[]): Candidate[] {
   const innerRatio = (1 - 2 * FRAME_FRACTION) ** 2;
-  type Cand = { outer: Quad; score: number; kind: 'target' | 'square' };
-  const cands: Cand[] = [];
+  const cands: Candidate[] = [];
   for (const o of quads) {
     if (o.hole) continue;
     const inner = quads.find((q) => q.hole && q.parent === o.index && Math.abs(q.area / o.area - innerRatio) < 0.15);
     if (inner) cands.push({ outer: o, score: 10 + Math.log(o.area), kind: 'target' });
     else cands.push({ outer: o, score: Math.log(o.area), kind: 'square' });
   }
-  cands.sort((a, b) => b.score - a.score);
-  for (const cand of cands) {
-    const start = orderCorners(cand.outer.pts, () => 0);
-    const side = Math.sqrt(cand.outer.area);
-    const reach = Math.max(3, Math.min(2.5 * factor + 3, cand.kind === 'target' ? 0.45 * FRAME_FRACTION * side : 0.2 * side));
-    const ref = refineCorners(grey, w, h, start, reach);
-    if (!ref) continue;
-    let c = ref.corners;
-    // every edge point against one model of the square (edgefit.ts): a frame's outer and inner edges together
-    // (corners free of the camera's edge bias, which is measured), or a plain square's outer edges with the
-    // bias unknown (its 1σ in the corners' covariance)
-    let fit: SquareEdgeFit | null = null;
-    // a frame is light inside its stroke; a filled square can pass the contour test when the threshold hollows it
-    let kind = cand.kind;
-    if (kind === 'target' && meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1) - meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) < 25) kind = 'square';
-    if (kind === 'target') {
-      // the frame's inner edge, from where the outer corners put it
-      const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], c);
-      const f = FRAME_FRACTION;
-      const guess = ([[f, f], [1 - f, f], [1 - f, 1 - f], [f, 1 - f]] as const).map(([x, y]) => applyH(U, x, y)) as Corners;
-      const inner = refineCorners(grey, w, h, guess, reach, false);
-      if (inner) fit = fitSquareEdges({ outer: ref.points, inner: inner.points, frameFraction: f }, c, { width: w, height: h });
-    }
-    const framed = !!fit;
-    fit ??= fitSquareEdges({ outer: ref.points }, c, { width: w, height: h });
-    if (fit) c = fit.corners;
-    const measured = fit
-      ? framed
-        ? { reference: 'centreline' as const, edgeBiasPx: fit.biasMeanPx, edgeBiasSdPx: sd(fit.biasPx), edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 }
-        : { reference: 'outer-edge' as const, edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 }
-      : { reference: 'outer-edge' as const, cornerSigmaPx: Math.hypot(cornerSigmaOf(ref.curves, c), DEFAULT_BIAS_PRIOR.sigmaPx) };
-    // contrast check: dark inside the edge, lighter outside
-    const inside = kind === 'target' ? meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) : meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
-    const outsideVals = [
-      meanInTarget(grey, w, h, c, -0.04, 0.5, 0.01),
-      meanInTarget(grey, w, h, c, 1.04, 0.5, 0.01),
-      meanInTarget(grey, w, h, c, 0.5, -0.04, 0.01),
-      meanInTarget(grey, w, h, c, 0.5, 1.04, 0.01),
-    ];
-    if (Math.min(...outsideVals) - inside < 25) continue;
-    let markFound = false;
-    let order: number[];
-    if (kind === 'target') {
-      const white = meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
-      const m = MARK_CENTRE_FRACTION;
-      const spots = [[m, m], [1 - m, m], [1 - m, 1 - m], [m, 1 - m]].map(([x, y]) => meanInTarget(grey, w, h, c, x!, y!, MARK_FRACTION * 0.3));
-      const k = spots.indexOf(Math.min(...spots));
-      const others = spots.filter((_, i) => i !== k);
-      markFound = spots[k]! < (white + inside) / 2 && Math.min(...others) > (white + inside) / 2;
-      // the mark is at target-frame (m, m) of corner 0: in the unit frame of `c`, corner k is at spot k
-      order = markFound ? orderIndex(c, () => k) : orderIndex(c, (p) => bottomLeft(p));
-    } else order = orderIndex(c, (p) => bottomLeft(p));
-    const corners = order.map((i) => c[i]!) as Corners;
-    const cov = measured.cornerCovPx2;
-    const permuted = cov ? { cornerCovPx2: Array.from({ length: 64 }, (_, k) => { const r = k >> 3, q = k & 7; return cov[(2 * order[r >> 1]! + (r & 1)) * 8 + 2 * order[q >> 1]! + (q & 1)]!; }) } : {};
-    return { corners, kind, markFound, edgeRmsPx: ref.rms, ...measured, ...permuted };
+  return cands.sort((a, b) => b.score - a.score);
+}
+
+/**
+ * Every edge point against one model of the square (edgefit.ts): a frame's outer and inner edges together (corners
+ * free of the camera's edge bias, which is measured; the inner edge searched from where the outer corners put it),
+ * else the outer edges with the bias unknown (its 1σ in the corners' covariance). `framed`: the first succeeded.
+ */
+function jointEdgeFit(grey: Float32Array, w: number, h: number, outer: RefinedQuad, kind: 'target' | 'square', reach: number): { fit: SquareEdgeFit | null; framed: boolean } {
+  const c = outer.corners;
+  if (kind === 'target') {
+    const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], c);
+    const f = FRAME_FRACTION;
+    const guess = ([[f, f], [1 - f, f], [1 - f, 1 - f], [f, 1 - f]] as const).map(([x, y]) => applyH(U, x, y)) as Corners;
+    const inner = refineCorners(grey, w, h, guess, reach, false);
+    const fit = inner ? fitSquareEdges({ outer: outer.points, inner: inner.points, frameFraction: f }, c, { width: w, height: h }) : null;
+    if (fit) return { fit, framed: true };
+  }
+  return { fit: fitSquareEdges({ outer: outer.points }, c, { width: w, height: h }), framed: false };
+}
+
+/** What the corners were measured from and how precisely (px, px²), from the joint fit or, failing it, from the side curves. */
+function cornerPrecision(fit: SquareEdgeFit | null, framed: boolean, curves: SideCurve[], c: Corners) {
+  if (!fit) return { reference: 'outer-edge' as const, cornerSigmaPx: Math.hypot(cornerSigmaOf(curves, c), DEFAULT_BIAS_PRIOR.sigmaPx) };
+  if (framed) return { reference: 'centreline' as const, edgeBiasPx: fit.biasMeanPx, edgeBiasSdPx: sd(fit.biasPx), edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 };
+  return { reference: 'outer-edge' as const, edgeBiasSigmaPx: fit.biasSigmaPx, cornerSigmaPx: fit.cornerSigmaPx, cornerCovPx2: fit.cornerCovPx2 };
+}
+
+/** The ink's grey level (the stroke of a target, the middle of a plain square) when the paper just outside every side is lighter by INK_CONTRAST; else null. */
+function inkLevelIfLightAround(grey: Float32Array, w: number, h: number, c: Corners, kind: 'target' | 'square'): number | null {
+  const inside = kind === 'target' ? meanInTarget(grey, w, h, c, FRAME_FRACTION / 2, 0.5, 0.02) : meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
+  const outsideVals = [
+    meanInTarget(grey, w, h, c, -0.04, 0.5, 0.01),
+    meanInTarget(grey, w, h, c, 1.04, 0.5, 0.01),
+    meanInTarget(grey, w, h, c, 0.5, -0.04, 0.01),
+    meanInTarget(grey, w, h, c, 0.5, 1.04, 0.01),
+  ];
+  return Math.min(...outsideVals) - inside < INK_CONTRAST ? null : inside;
+}
+
+/**
+ * Target-frame order of the corners `c` (indices into c): from the orientation mark when a target's mark is seen
+ * (the one dark spot of the four at (m, m) from each corner, darker than half-way between paper and `ink`), else
+ * from the corner nearest the photo's bottom-left.
+ */
+function cornerOrder(grey: Float32Array, w: number, h: number, c: Corners, kind: 'target' | 'square', ink: number): { order: number[]; markFound: boolean } {
+  if (kind !== 'target') return { order: orderIndex(c, (p) => bottomLeft(p)), markFound: false };
+  const white = meanInTarget(grey, w, h, c, 0.5, 0.5, 0.1);
+  const m = MARK_CENTRE_FRACTION;
+  const spots = [[m, m], [1 - m, m], [1 - m, 1 - m], [m, 1 - m]].map(([x, y]) => meanInTarget(grey, w, h, c, x!, y!, MARK_FRACTION * 0.3));
+  const k = spots.indexOf(Math.min(...spots));
+  const others = spots.filter((_, i) => i !== k);
+  const markFound = spots[k]! < (white + ink) / 2 && Math.min(...others) > (white + ink) / 2;
+  // the mark is at target-frame (m, m) of corner 0: in the unit frame of `c`, corner k is at spot k
+  return { order: markFound ? orderIndex(c, () => k) : orderIndex(c, (p) => bottomLeft(p)), markFound };
+}
+
+/** The corners' 8 × 8 covariance (px²) with the corners put in `order`. */
+function permuteCovariance(cov: readonly number[], order: readonly number[]): number[] {
+  return Array.from({ length: 64 }, (_, k) => {
+    const r = k >> 3;
+    const q = k & 7;
+    return cov[(2 * order[r >> 1]! + (r & 1)) * 8 + 2 * order[q >> 1]! + (q & 1)]!;
+  });
+}
+
+/**
+ * One candidate measured on the full image (px): corners refined on the outer edges, the kind confirmed (a frame is
+ * light inside its stroke; a filled square the threshold hollows is a plain square), the joint edge fit, the
+ * contrast check and the corners' target-frame order. Null when any step fails.
+ */
+function measureCandidate(grey: Float32Array, w: number, h: number, cand: Candidate, factor: number): SquareFound | null {
+  const start = orderCorners(cand.outer.pts, () => 0);
+  const side = Math.sqrt(cand.outer.area);
+  const reach = Math.max(3, Math.min(2.5 * factor + 3, cand.kind === 'target' ? 0.45 * FRAME_FRACTION * side : 0.2 * side));
+  const ref = refineCorners(grey, w, h, start, reach);
+  if (!ref) return null;
+  const hollowed = cand.kind === 'target' && meanInTarget(grey, w, h, ref.corners, 0.5, 0.5, 0.1) - meanInTarget(grey, w, h, ref.corners, FRAME_FRACTION / 2, 0.5, 0.02) < INK_CONTRAST;
+  const kind = hollowed ? 'square' : cand.kind;
+  const { fit, framed } = jointEdgeFit(grey, w, h, ref, kind, reach);
+  const c = fit ? (fit.corners as Corners) : ref.corners;
+  const measured = cornerPrecision(fit, framed, ref.curves, c);
+  const ink = inkLevelIfLightAround(grey, w, h, c, kind);
+  if (ink === null) return null;
+  const { order, markFound } = cornerOrder(grey, w, h, c, kind, ink);
+  const corners = order.map((i) => c[i]!) as Corners;
+  const permuted = measured.cornerCovPx2 ? { cornerCovPx2: permuteCovariance(measured.cornerCovPx2, order) } : {};
+  return { corners, kind, markFound, edgeRmsPx: ref.rms, ...measured, ...permuted };
+}
+
+/**
+ * Finds the reference square. `small` is the grey image reduced by `factor` (8 bit); `grey` the full image (px).
+ * Candidates best first (candidateQuads, rankCandidates), the first that measures (measureCandidate) wins. Returns
+ * null when no square is found.
+ */
+export async function findSquare(grey: Float32Array, w: number, h: number, small: ReducedImage, factor: number): Promise<SquareFound | null> {
+  const { cv } = await getCv();
+  for (const cand of rankCandidates(candidateQuads(cv, small, factor))) {
+    const found = measureCandidate(grey, w, h, cand, factor);
+    if (found) return found;
   }
   return null;
 }
