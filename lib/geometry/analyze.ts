@@ -88,8 +88,8 @@ export function analyzePoints(points: Points, pattern: Pattern, options: Analyze
   const familyOffsets = model.familyParam.some((p) => p >= 0)
     ? lat.families.map((f, i) => ({ family: f.id, dx: model.familyDx[i] ?? 0, dy: model.familyDy[i] ?? 0 }))
     : [];
-  const { positions, hidden, notExpected } = placePositions(inp, model, assignment, inFit, verdict.shapeOnly, verdict.observed ? shape.cov : null, centreSigmaPx, familyVarMm2);
-  const shapeCheck = holeToHole(inp, model, assignment, inFit, positions, verdict.shapeOnly, verdict.observed ? shape.sigma : null, centreSigmaPx, familyVarMm2);
+  const { positions, hidden, notExpected, latticeMm } = placePositions(inp, model, assignment, inFit, verdict.shapeOnly, verdict.observed ? shape.cov : null, centreSigmaPx, familyVarMm2);
+  const shapeCheck = holeToHole(inp, model, assignment, inFit, positions, latticeMm, verdict.shapeOnly, verdict.observed ? shape.sigma : null, centreSigmaPx, familyVarMm2);
   const panels = panelReport(lat, model, positions);
   const seams = seamReport(lat, model);
 

@@ -151,7 +151,16 @@ export function toLattice(m: BedModel, u: number, v: number): [number, number] {
  * the distance from the image centre like a scale error of 20–50 ppm in that family's centres (discImageCentroidPx).
  */
 export function centroidShiftPx(H: Mat3, lens: Lens, x: number, y: number, radiusMm: number): [number, number] {
-  const img = (px: number, py: number) => { const [u, v] = applyH(H, px, py); return distortPx(lens, u, v); };
+  return centroidShiftThrough(imageMap(H, lens), x, y, radiusMm);
+}
+
+/** Lattice mm → image px through H (lattice mm → undistorted px) and the lens. */
+function imageMap(H: Mat3, lens: Lens): (x: number, y: number) => [number, number] {
+  return (px, py) => { const [u, v] = applyH(H, px, py); return distortPx(lens, u, v); };
+}
+
+/** centroidShiftPx through the image map `img` (imageMap), px. */
+function centroidShiftThrough(img: (x: number, y: number) => [number, number], x: number, y: number, radiusMm: number): [number, number] {
   const [u0, v0] = img(x, y);
   const [uc, vc] = discImageCentroidPx(img, x, y, radiusMm);
   return [uc - u0, vc - v0];
@@ -162,9 +171,17 @@ export function centroidShiftPx(H: Mat3, lens: Lens, x: number, y: number, radiu
  * lattice frame (mm): the centroid's shift off the image of the centre (centroidShiftPx) taken out first.
  */
 export function holeToLattice(m: BedModel, u: number, v: number, radiusMm: number): [number, number] {
-  const [x, y] = toLattice(m, u, v);
-  const [du, dv] = centroidShiftPx(m.H, m.lens, x, y, radiusMm);
-  return toLattice(m, u - du, v - dv);
+  return holeToLatticeMap(m)(u, v, radiusMm);
+}
+
+/** holeToLattice of the model m, for mapping many holes: (u, v px, radiusMm) → lattice point, mm. */
+export function holeToLatticeMap(m: BedModel): (u: number, v: number, radiusMm: number) => [number, number] {
+  const img = imageMap(m.H, m.lens);
+  return (u, v, radiusMm) => {
+    const [x, y] = toLattice(m, u, v);
+    const [du, dv] = centroidShiftThrough(img, x, y, radiusMm);
+    return toLattice(m, u - du, v - dv);
+  };
 }
 
 /** Predicted image point (px) of nominal (x, y) in panel j, of hole family f (default 0). */
@@ -252,7 +269,8 @@ const MAX_COLS = NG + 5;
 
 /**
  * The model's prediction for one match: residual (predicted − observed, px) and, on request, its sparse Jacobian
- * (rows x and y in `J[0..]` and `J[MAX_COLS..]`, the parameter index of each column in `cols`).
+ * (rows x and y in `J[0..]` and `J[MAX_COLS..]`, the parameter index of each column in `cols`). `at(θ)` first, then
+ * `evalMatch` of each match at that θ (the panels' turns are taken through cos and sin once per θ).
  */
 function matchModel(inp: BedFitInput, layout: ParamLayout, Tb: Mat3, Ti: Mat3, fitK: boolean, shift: Float64Array) {
   const { panels, nominal, observed } = inp;
@@ -262,15 +280,22 @@ function matchModel(inp: BedFitInput, layout: ParamLayout, Tb: Mat3, Ti: Mat3, f
   const J = new Float64Array(2 * MAX_COLS);
   const cols = new Int32Array(MAX_COLS);
   const R = MAX_COLS;
-  /** Residual of match k at θ into `out`; with `wantJ` also J and cols. Returns the number of columns used. */
-  const evalMatch = (t: Float64Array, k: number, out: Float64Array, wantJ: boolean): number => {
+  const cosRot = new Float64Array(panels.length), sinRot = new Float64Array(panels.length);
+  let t: Float64Array = new Float64Array(0);
+  /** Sets θ for the following `evalMatch` calls. */
+  const at = (theta: Float64Array) => {
+    t = theta;
+    for (const j of layout.fitted) { const b = panelParam[j]!; cosRot[j] = Math.cos(t[b + 2]!); sinRot[j] = Math.sin(t[b + 2]!); }
+  };
+  /** Residual of match k at θ (`at`) into `out`; with `wantJ` also J and cols. Returns the number of columns used. */
+  const evalMatch = (k: number, out: Float64Array, wantJ: boolean): number => {
     const nx = nominal[2 * k]!, ny = nominal[2 * k + 1]!, j = inp.panel[k]!;
     const b = panelParam[j]!, fb = inp.family ? familyParam[inp.family[k]!]! : -1;
     // Panel j's rigid move of the nominal point (mm) and the family's offset, then Hartley-normalised.
     let px = nx, py = ny, ax = 0, ay = 0, c = 1, s = 0;
     if (b >= 0) {
       const q = panels[j]!;
-      c = Math.cos(t[b + 2]!); s = Math.sin(t[b + 2]!);
+      c = cosRot[j]!; s = sinRot[j]!;
       ax = nx - q.cx; ay = ny - q.cy;
       px = q.cx + c * ax - s * ay + t[b]!; py = q.cy + s * ax + c * ay + t[b + 1]!;
     }
@@ -324,7 +349,7 @@ function matchModel(inp: BedFitInput, layout: ParamLayout, Tb: Mat3, Ti: Mat3, f
     }
     return m;
   };
-  return { evalMatch, J, cols };
+  return { at, evalMatch, J, cols };
 }
 
 /**
@@ -407,26 +432,29 @@ export function fitBed(inp: BedFitInput): BedModel {
   const updateShifts = (t: Float64Array) => {
     if (!inp.radiusMm) return;
     const Hn: Mat3 = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!, t[5]!, t[6]!, t[7]!, 1];
-    const H = mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb)), lens = { ...inp.lens, k1: t[PARAM.k1]!, k2: t[PARAM.k2]! };
-    for (let k = 0; k < n; k++) { const [du, dv] = centroidShiftPx(H, lens, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!); shift[2 * k] = du; shift[2 * k + 1] = dv; }
+    const img = imageMap(mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb)), { ...inp.lens, k1: t[PARAM.k1]!, k2: t[PARAM.k2]! });
+    for (let k = 0; k < n; k++) { const [du, dv] = centroidShiftThrough(img, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!); shift[2 * k] = du; shift[2 * k + 1] = dv; }
   };
-  const { evalMatch, J, cols } = matchModel(inp, layout, Tb, Ti, fitK, shift);
+  const { at, evalMatch, J, cols } = matchModel(inp, layout, Tb, Ti, fitK, shift);
 
   const r = new Float64Array(2);
   const cost = (t: Float64Array) => {
     let c = 0;
-    for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); c += w[k]! * (r[0]! ** 2 + r[1]! ** 2); }
+    at(t);
+    for (let k = 0; k < n; k++) { evalMatch(k, r, false); c += w[k]! * (r[0]! ** 2 + r[1]! ** 2); }
     return c + priorPenalty(t, layout);
   };
   const residuals = (t: Float64Array) => {
-    for (let k = 0; k < n; k++) { evalMatch(t, k, r, false); res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!; }
+    at(t);
+    for (let k = 0; k < n; k++) { evalMatch(k, r, false); res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!; }
   };
   const jtj = new Float64Array(np * np), jtr = new Float64Array(np);
   /** JᵀWJ and JᵀWr at θ (and the residuals into `res`). */
   const normalEquations = (t: Float64Array) => {
     jtj.fill(0); jtr.fill(0);
+    at(t);
     for (let k = 0; k < n; k++) {
-      const m = evalMatch(t, k, r, true);
+      const m = evalMatch(k, r, true);
       res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!;
       const wk = w[k]!;
       if (!(wk > 0)) continue;
@@ -466,9 +494,10 @@ export function fitBed(inp: BedFitInput): BedModel {
   // Covariance: A = JᵀWJ with the priors, and the matches' part of the sandwich's middle.
   normalEquations(theta);
   const mid = new Float64Array(np * np);
+  at(theta);
   for (let k = 0; k < n; k++) {
     if (!(w[k]! > 0) || !(prior[k]! > 0)) continue;
-    const m = evalMatch(theta, k, r, true);
+    const m = evalMatch(k, r, true);
     const g = (w[k]! * w[k]!) / prior[k]!;
     for (let a = 0; a < m; a++) {
       const ja0 = g * J[a]!, ja1 = g * J[MAX_COLS + a]!, row = cols[a]! * np;

@@ -23,6 +23,9 @@ export function distortPx(lens: Lens, u: number, v: number): [number, number] {
 
 /** Points along a disc's rim whose image polygon gives the centroid of its image. */
 const RIM_POINTS = 12;
+/** cos and sin of the rim points' angles 2πi / RIM_POINTS, i = 0 … RIM_POINTS (the last closes the polygon). */
+const RIM_COS = Float64Array.from({ length: RIM_POINTS + 1 }, (_, i) => Math.cos((2 * Math.PI * i) / RIM_POINTS));
+const RIM_SIN = Float64Array.from({ length: RIM_POINTS + 1 }, (_, i) => Math.sin((2 * Math.PI * i) / RIM_POINTS));
 
 /**
  * Centroid of the image of a disc of radius `radiusMm` about plane point (x, y) mm, px, through `map` (plane mm →
@@ -35,8 +38,7 @@ export function discImageCentroidPx(map: (x: number, y: number) => readonly [num
   let [pu, pv] = map(x + radiusMm, y);
   pu -= u0; pv -= v0;
   for (let i = 1; i <= RIM_POINTS; i++) {
-    const t = (2 * Math.PI * i) / RIM_POINTS;
-    let [qu, qv] = map(x + radiusMm * Math.cos(t), y + radiusMm * Math.sin(t));
+    let [qu, qv] = map(x + radiusMm * RIM_COS[i]!, y + radiusMm * RIM_SIN[i]!);
     qu -= u0; qv -= v0;
     const c = pu * qv - qu * pv;
     a += c; cx += (pu + qu) * c; cy += (pv + qv) * c;

@@ -23,7 +23,11 @@ function select(a: Float64Array, k: number): number {
 }
 
 export function median(values: ArrayLike<number>): number {
-  const a = Float64Array.from(values);
+  return medianInPlace(Float64Array.from(values));
+}
+
+/** Median of a, reordering a in place. */
+function medianInPlace(a: Float64Array): number {
   const n = a.length;
   if (n === 0) return NaN;
   if (n % 2) return select(a, (n - 1) / 2);
@@ -35,8 +39,9 @@ export function median(values: ArrayLike<number>): number {
 
 /** Robust σ from the median absolute deviation about zero (for residuals centred on 0): 1.4826·median|r|. */
 export function madSigma(residuals: ArrayLike<number>): number {
-  const a = Float64Array.from(residuals, Math.abs);
-  return 1.4826 * median(a);
+  const a = new Float64Array(residuals.length);
+  for (let i = 0; i < a.length; i++) a[i] = Math.abs(residuals[i]!);
+  return 1.4826 * medianInPlace(a);
 }
 
 /** Huber weight for a residual r at threshold k (same unit): 1 inside, k/|r| outside. */

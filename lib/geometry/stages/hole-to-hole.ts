@@ -5,7 +5,7 @@
  * (mm) the square's shape terms, with the stretch or shear the form affine found, make at any nominal position.
  */
 import { decomposeAffine, type Mat2 } from '../affine';
-import { holeToLattice, mmPerPxAt, type BedModel } from '../bedfit';
+import { mmPerPxAt, type BedModel } from '../bedfit';
 import type { Report, ReportShapeCheck } from '../contract';
 import type { Assignment } from '../correspond';
 import { formFit, positionForm, shapeCheck } from '../form';
@@ -13,11 +13,12 @@ import type { AnalysisInput } from './input';
 
 /**
  * Adds `form` to each measured position (in place) and returns the overall shape check.
+ * @param latticeMm each measured position's detection in the lattice frame, mm (x, y per position; placePositions)
  * @param shapeOnly lattice frame → true frame (shape only)
  * @param shapeSigma 1σ of the shape terms when observed, else null (the check then cannot judge)
  */
 export function holeToHole(
-  inp: AnalysisInput, model: BedModel, assignment: Assignment, inFit: Uint8Array, positions: Report['positions'],
+  inp: AnalysisInput, model: BedModel, assignment: Assignment, inFit: Uint8Array, positions: Report['positions'], latticeMm: Float64Array,
   shapeOnly: Mat2, shapeSigma: { scaleX: number; scaleY: number; squarenessRad: number } | null, centreSigmaPx: number, familyVarMm2: Float64Array,
 ): ReportShapeCheck {
   const { detections: det, lattice: lat } = inp;
@@ -25,7 +26,7 @@ export function holeToHole(
   const detAt = (pos: number) => assignment.detOf[pos]!;
   const form = formFit(
     formAt.flatMap((pos) => [lat.positions[pos]!.x, lat.positions[pos]!.y]),
-    formAt.flatMap((pos) => holeToLattice(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!, lat.families[lat.positions[pos]!.family]!.family.holeDiameter / 2)),
+    formAt.flatMap((pos) => [latticeMm[2 * pos]!, latticeMm[2 * pos + 1]!]),
     formAt.map((pos) => Math.sqrt((centreSigmaPx * mmPerPxAt(model, det.u[detAt(pos)]!, det.v[detAt(pos)]!)) ** 2 + (familyVarMm2[lat.positions[pos]!.family] ?? 0))),
     formAt.map((pos) => inFit[detAt(pos)]!),
   );

@@ -8,7 +8,7 @@
  * `outOfView` when outside the photo; those are not expected to be seen, and never in or out.
  */
 import type { Mat2 } from '../affine';
-import { mmPerPxAt, predictPx, holeToLattice, type BedModel } from '../bedfit';
+import { holeToLatticeMap, mmPerPxAt, predictPx, type BedModel } from '../bedfit';
 import type { HiddenReason, Report } from '../contract';
 import type { Assignment } from '../correspond';
 import { shapeDisplacementVar } from '../shape';
@@ -24,6 +24,8 @@ export interface PlacedPositions {
   hidden: Uint8Array;
   /** 1 for a position that could not be seen (hidden or outside the photo). */
   notExpected: Uint8Array;
+  /** Each measured position's detection in the lattice frame (mm, holeToLattice; x, y per position, NaN if none). */
+  latticeMm: Float64Array;
 }
 
 /**
@@ -41,12 +43,14 @@ export function placePositions(
   const Ls = shapeOnly;
   const P = lat.positions.length;
   // True (metric) frame position of each measured position, and the fitted ones' nominal → metric pairs.
-  const mXY = new Float64Array(2 * P).fill(NaN);
+  const mXY = new Float64Array(2 * P).fill(NaN), latticeMm = new Float64Array(2 * P).fill(NaN);
+  const toLattice = holeToLatticeMap(model);
   const fitX: number[] = [], fitY: number[] = [], fitW: number[] = [];
   for (let i = 0; i < det.n; i++) {
     const pos = assignment.posOf[i]!;
     if (pos < 0) continue;
-    const [x, y] = holeToLattice(model, det.u[i]!, det.v[i]!, lat.families[lat.positions[pos]!.family]!.family.holeDiameter / 2);
+    const [x, y] = toLattice(det.u[i]!, det.v[i]!, lat.families[lat.positions[pos]!.family]!.family.holeDiameter / 2);
+    latticeMm[2 * pos] = x; latticeMm[2 * pos + 1] = y;
     mXY[2 * pos] = Ls[0] * x + Ls[1] * y; mXY[2 * pos + 1] = Ls[2] * x + Ls[3] * y;
     if (inFit[i]) { const q = lat.positions[pos]!; fitX.push(q.x, q.y); fitY.push(mXY[2 * pos]!, mXY[2 * pos + 1]!); fitW.push(1); }
   }
@@ -89,5 +93,5 @@ export function placePositions(
     const u = Math.sqrt((centreSigmaPx * s) ** 2 + (familyVarMm2[q.family] ?? 0) + shapeVar);
     return { ...base, measured: { x, y }, deviation: { dx, dy, r }, uncertaintyMm: u, verdict: positionVerdict(r, u, fam.toleranceMm) };
   });
-  return { positions, hidden, notExpected };
+  return { positions, hidden, notExpected, latticeMm };
 }
