@@ -19,7 +19,7 @@
 import { applyH, invertSpd, mat3Inv, mat3Mul, type Mat3 } from './linalg';
 import { levenbergMarquardt } from './levenberg-marquardt';
 import { homographyScale, normalisingTransform, type Pt } from './homography';
-import { discImageCentroidPx, distortPx, undistortPx, type Lens } from './camera';
+import { discImageCentroidInto, undistortPx, type Lens } from './camera';
 import { huberWeight, madSigma, tukeyWeight } from './robust';
 import type { PanelInfo } from './lattice';
 
@@ -151,19 +151,30 @@ export function toLattice(m: BedModel, u: number, v: number): [number, number] {
  * the distance from the image centre like a scale error of 20–50 ppm in that family's centres (discImageCentroidPx).
  */
 export function centroidShiftPx(H: Mat3, lens: Lens, x: number, y: number, radiusMm: number): [number, number] {
-  return centroidShiftThrough(imageMap(H, lens), x, y, radiusMm);
+  const out = new Float64Array(2);
+  centroidShiftInto(imageMap(H, lens), x, y, radiusMm, out);
+  return [out[0]!, out[1]!];
 }
 
-/** Lattice mm → image px through H (lattice mm → undistorted px) and the lens. */
-function imageMap(H: Mat3, lens: Lens): (x: number, y: number) => [number, number] {
-  return (px, py) => { const [u, v] = applyH(H, px, py); return distortPx(lens, u, v); };
+type ImageMap = (x: number, y: number, o: Float64Array) => void;
+
+/** Lattice mm → image px through H (lattice mm → undistorted px, applyH) and the lens (distortPx), into `o`. */
+function imageMap(H: Mat3, lens: Lens): ImageMap {
+  const { fPx, cx, cy, k1, k2 } = lens;
+  return (px, py, o) => {
+    const w = H[6] * px + H[7] * py + H[8];
+    const xn = ((H[0] * px + H[1] * py + H[2]) / w - cx) / fPx, yn = ((H[3] * px + H[4] * py + H[5]) / w - cy) / fPx;
+    const r2 = xn * xn + yn * yn, d = 1 + k1 * r2 + k2 * r2 * r2;
+    o[0] = cx + fPx * xn * d; o[1] = cy + fPx * yn * d;
+  };
 }
 
-/** centroidShiftPx through the image map `img` (imageMap), px. */
-function centroidShiftThrough(img: (x: number, y: number) => [number, number], x: number, y: number, radiusMm: number): [number, number] {
-  const [u0, v0] = img(x, y);
-  const [uc, vc] = discImageCentroidPx(img, x, y, radiusMm);
-  return [uc - u0, vc - v0];
+/** centroidShiftPx through the image map `img` (imageMap), px, into `out`. */
+function centroidShiftInto(img: ImageMap, x: number, y: number, radiusMm: number, out: Float64Array): void {
+  img(x, y, out);
+  const u0 = out[0]!, v0 = out[1]!;
+  discImageCentroidInto(img, x, y, radiusMm, out);
+  out[0] = out[0]! - u0; out[1] = out[1]! - v0;
 }
 
 /**
@@ -176,11 +187,11 @@ export function holeToLattice(m: BedModel, u: number, v: number, radiusMm: numbe
 
 /** holeToLattice of the model m, for mapping many holes: (u, v px, radiusMm) → lattice point, mm. */
 export function holeToLatticeMap(m: BedModel): (u: number, v: number, radiusMm: number) => [number, number] {
-  const img = imageMap(m.H, m.lens);
+  const img = imageMap(m.H, m.lens), d = new Float64Array(2);
   return (u, v, radiusMm) => {
     const [x, y] = toLattice(m, u, v);
-    const [du, dv] = centroidShiftThrough(img, x, y, radiusMm);
-    return toLattice(m, u - du, v - dv);
+    centroidShiftInto(img, x, y, radiusMm, d);
+    return toLattice(m, u - d[0]!, v - d[1]!);
   };
 }
 
@@ -433,7 +444,8 @@ export function fitBed(inp: BedFitInput): BedModel {
     if (!inp.radiusMm) return;
     const Hn: Mat3 = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!, t[5]!, t[6]!, t[7]!, 1];
     const img = imageMap(mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb)), { ...inp.lens, k1: t[PARAM.k1]!, k2: t[PARAM.k2]! });
-    for (let k = 0; k < n; k++) { const [du, dv] = centroidShiftThrough(img, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!); shift[2 * k] = du; shift[2 * k + 1] = dv; }
+    const d = new Float64Array(2);
+    for (let k = 0; k < n; k++) { centroidShiftInto(img, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!, d); shift[2 * k] = d[0]!; shift[2 * k + 1] = d[1]!; }
   };
   const { at, evalMatch, J, cols } = matchModel(inp, layout, Tb, Ti, fitK, shift);
 

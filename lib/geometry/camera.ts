@@ -33,18 +33,29 @@ const RIM_SIN = Float64Array.from({ length: RIM_POINTS + 1 }, (_, i) => Math.sin
  * the map bends (perspective, lens); it is what a centroid or an ellipse fit of the disc's image measures.
  */
 export function discImageCentroidPx(map: (x: number, y: number) => readonly [number, number], x: number, y: number, radiusMm: number): [number, number] {
-  const [u0, v0] = map(x, y);
+  const out = new Float64Array(2);
+  discImageCentroidInto((px, py, o) => { const [u, v] = map(px, py); o[0] = u; o[1] = v; }, x, y, radiusMm, out);
+  return [out[0]!, out[1]!];
+}
+
+/**
+ * discImageCentroidPx for a map that writes the image point (px) of plane point (x, y) mm into `o[0]`, `o[1]`; the
+ * centroid (px) into `out` (for many discs without a new array per point).
+ */
+export function discImageCentroidInto(map: (x: number, y: number, o: Float64Array) => void, x: number, y: number, radiusMm: number, out: Float64Array): void {
+  map(x, y, out);
+  const u0 = out[0]!, v0 = out[1]!;
   let a = 0, cx = 0, cy = 0;
-  let [pu, pv] = map(x + radiusMm, y);
-  pu -= u0; pv -= v0;
+  map(x + radiusMm, y, out);
+  let pu = out[0]! - u0, pv = out[1]! - v0;
   for (let i = 1; i <= RIM_POINTS; i++) {
-    let [qu, qv] = map(x + radiusMm * RIM_COS[i]!, y + radiusMm * RIM_SIN[i]!);
-    qu -= u0; qv -= v0;
+    map(x + radiusMm * RIM_COS[i]!, y + radiusMm * RIM_SIN[i]!, out);
+    const qu = out[0]! - u0, qv = out[1]! - v0;
     const c = pu * qv - qu * pv;
     a += c; cx += (pu + qu) * c; cy += (pv + qv) * c;
     pu = qu; pv = qv;
   }
-  return a === 0 ? [u0, v0] : [u0 + cx / (3 * a), v0 + cy / (3 * a)];
+  if (a === 0) { out[0] = u0; out[1] = v0; } else { out[0] = u0 + cx / (3 * a); out[1] = v0 + cy / (3 * a); }
 }
 
 /** Removes radial distortion from an observed image point (fixed-point iteration), px → px. */
