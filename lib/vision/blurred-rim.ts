@@ -2,12 +2,14 @@
  * The size a blurred rim implies. Defocus spreads a hole's rim and lifts its dark floor, so the levels the detector
  * measures between (its floor and its surround) close in and the rim it finds half-way between them lies inside
  * the true one: a 14 px hole blurred by σ 3–4 px reads 0.70–0.80 of its size. Fitting the blur itself recovers the
- * size: the hole's mean radial profile, in linear light (where optics blur), against a dark disc of radius r on a
- * uniform surround blurred by a Gaussian of σ,
- *   L(ρ) = a − b · P(ρ; r, σ),  P(ρ; r, σ) = ∫₀^r (t/σ²) exp(−(t² + ρ²)/(2σ²)) I₀(tρ/σ²) dt,
+ * size: the hole's mean radial profile, in linear light (where optics blur), against a dark disc of radius r
+ * blurred by a Gaussian of σ, on a surround that may have a ring of its own level out to r₂ (an insert's flange,
+ * a chamfer; r₂ one of 1.3–2.3 times the family's radius, or none),
+ *   L(ρ) = a − b · P(ρ; r, σ) + c · P(ρ; r₂, σ),  P(ρ; r, σ) = ∫₀^r (t/σ²) exp(−(t² + ρ²)/(2σ²)) I₀(tρ/σ²) dt,
  * the share of a 2-D Gaussian centred at distance ρ from the disc's centre that falls inside it (the Rice
- * distribution's CDF at r, 1 − Q₁(ρ/σ, r/σ) in Marcum's Q; from memory). a and b by linear least squares for each
- * (r, σ); r and σ by a grid, then a finer one about its best.
+ * distribution's CDF at r, 1 − Q₁(ρ/σ, r/σ) in Marcum's Q; from memory). a, b and c by linear least squares for
+ * each (r, σ, r₂); r and σ by a grid, then a finer one about its best; b, the bore's depth below what surrounds it,
+ * must be positive.
  *
  * Frames: bed plane mm (the square's frame, see target.ts) for the centre; radii and σ in image px at the hole.
  */
@@ -45,7 +47,7 @@ export interface BlurredRimFit {
   /** The hole's radius and the blur's σ, px. */
   rPx: number;
   sigmaPx: number;
-  /** Surround less floor, linear light (0–1), and the profile's RMS misfit in the same units. */
+  /** The bore's depth below its immediate surround, linear light (0–1), and the profile's RMS misfit in the same units. */
   depth: number;
   rms: number;
 }
@@ -56,28 +58,32 @@ export interface BlurredRimFit {
  */
 export function fitBlurredRim(profile: number[], stepPx: number, rGuessPx: number): BlurredRimFit | null {
   const rho = profile.map((_, i) => i * stepPx);
-  const n = profile.length;
-  const my = profile.reduce((a, b) => a + b, 0) / n;
-  const evalAt = (r: number, sigma: number) => {
-    const P = rho.map((x) => discBlurShare(x, r, sigma));
-    const mp = P.reduce((a, b) => a + b, 0) / n;
-    let spp = 0;
-    let spy = 0;
-    for (let i = 0; i < n; i++) {
-      spp += (P[i]! - mp) ** 2;
-      spy += (P[i]! - mp) * (profile[i]! - my);
+  const curve = (r: number, sigma: number) => rho.map((x) => discBlurShare(x, r, sigma));
+  // rings about the bore (an insert's flange, a chamfer) of a level of their own, out to these radii
+  const rings = [1.3, 1.55, 1.8, 2.05, 2.3].map((f) => f * rGuessPx);
+  const ringCurves = new Map<number, number[][]>();
+  const ringsAt = (sigma: number) => {
+    let c = ringCurves.get(sigma);
+    if (!c) ringCurves.set(sigma, (c = rings.map((r2) => curve(r2, sigma))));
+    return c;
+  };
+  const evalAt = (r: number, sigma: number): BlurredRimFit | null => {
+    const P = curve(r, sigma);
+    let fit: BlurredRimFit | null = null;
+    const Qs = ringsAt(sigma);
+    for (let k = -1; k < rings.length; k++) {
+      if (k >= 0 && rings[k]! < 1.15 * r) continue;
+      const c = leastSquares(k < 0 ? [P] : [P, Qs[k]!], profile);
+      if (!c || !(c.coef[0]! < 0)) continue;
+      const f = { rPx: r, sigmaPx: sigma, depth: -c.coef[0]!, rms: c.rms };
+      if (!fit || f.rms < fit.rms) fit = f;
     }
-    if (!(spp > 0)) return null;
-    const b = -spy / spp;
-    const a = my + b * mp;
-    let e = 0;
-    for (let i = 0; i < n; i++) e += (profile[i]! - (a - b * P[i]!)) ** 2;
-    return { rPx: r, sigmaPx: sigma, depth: b, rms: Math.sqrt(e / n) };
+    return fit;
   };
   let best: BlurredRimFit | null = null;
   const consider = (r: number, sigma: number) => {
     const f = evalAt(r, sigma);
-    if (f && f.depth > 0 && (!best || f.rms < best.rms)) best = f;
+    if (f && (!best || f.rms < best.rms)) best = f;
   };
   const rSteps = 20;
   const sSteps = 16;
@@ -89,6 +95,34 @@ export function fitBlurredRim(profile: number[], stepPx: number, rGuessPx: numbe
   const kBest = (sSteps * Math.log(b0.sigmaPx / 0.5)) / Math.log(16);
   for (let i = -4; i <= 4; i++) for (let k = -4; k <= 4; k++) consider(b0.rPx + (i / 4) * (rGuessPx / rSteps), sAt(kBest + k / 4));
   return best;
+}
+
+/** Least squares of y on a constant and the given columns: their coefficients (constant first) and the RMS misfit. */
+function leastSquares(cols: number[][], y: number[]): { coef: number[]; rms: number } | null {
+  const n = y.length;
+  const X = [...cols, y.map(() => 1)];
+  const m = X.length;
+  // normal equations, solved by Gaussian elimination with partial pivoting
+  const A = X.map((a) => [...X.map((b) => a.reduce((s, v, i) => s + v * b[i]!, 0)), a.reduce((s, v, i) => s + v * y[i]!, 0)]);
+  for (let c = 0; c < m; c++) {
+    let p = c;
+    for (let r = c + 1; r < m; r++) if (Math.abs(A[r]![c]!) > Math.abs(A[p]![c]!)) p = r;
+    if (Math.abs(A[p]![c]!) < 1e-12) return null;
+    [A[c], A[p]] = [A[p]!, A[c]!];
+    for (let r = c + 1; r < m; r++) {
+      const f = A[r]![c]! / A[c]![c]!;
+      for (let k = c; k <= m; k++) A[r]![k]! -= f * A[c]![k]!;
+    }
+  }
+  const coef = new Array<number>(m).fill(0);
+  for (let r = m - 1; r >= 0; r--) {
+    let s = A[r]![m]!;
+    for (let k = r + 1; k < m; k++) s -= A[r]![k]! * coef[k]!;
+    coef[r] = s / A[r]![r]!;
+  }
+  let e = 0;
+  for (let i = 0; i < n; i++) e += (y[i]! - X.reduce((s, col, k) => s + coef[k]! * col[i]!, 0)) ** 2;
+  return { coef, rms: Math.sqrt(e / n) };
 }
 
 /**

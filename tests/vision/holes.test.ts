@@ -10,13 +10,13 @@ import { SMALL_BED } from './scenes';
 import { scoreDetections } from './score';
 
 describe('holes', () => {
-  it('finds most holes of a photo defocused by σ 3 and 4 px, and no false one', async () => {
+  it('finds nine in ten holes of a photo defocused by σ 3 and 4 px, flanged inserts too, and no false one', async () => {
     for (const [seed, blurPx, tiltDeg] of [[712, 3, 5], [713, 4, 7]] as const) {
       const { jpeg, truth } = await synthesize(SMALL_BED, { width: 1200, height: 900, supersample: 3, seed, blurPx, tiltDeg });
       for (const method of ['centroid', 'edge'] as const) {
         const { points } = await detectFromImage(jpeg, SMALL_BED, { referenceMm: truth.target.sizeMm, method });
         const s = scoreDetections(points, truth);
-        expect(s.foundFraction).toBeGreaterThan(0.75);
+        expect(s.foundFraction).toBeGreaterThan(0.9);
         expect(s.falseDetections).toBe(0);
       }
     }
