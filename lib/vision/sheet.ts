@@ -53,97 +53,119 @@ function robustLine(pts: [number, number][]): { a: number; b: number; n: number 
   return fit && use.length >= 4 ? { ...fit, n: use.length } : null;
 }
 
+/** The full-resolution grey image (0–255) and its size, px. */
+interface GreyPlane {
+  grey: Float32Array;
+  w: number;
+  h: number;
+}
+
+const onPhoto = (img: GreyPlane, p: [number, number]) => p[0] >= 0 && p[1] >= 0 && p[0] <= img.w - 1 && p[1] <= img.h - 1;
+
+/**
+ * Target-frame point (mm) at station `u` (mm along side k, 0..S in the square's corner order) and `d` mm outside
+ * side k (0: below y = 0, 1: right of x = S, 2: above y = S, 3: left of x = 0).
+ */
+function outsideSide(S: number, k: number, u: number, d: number): [number, number] {
+  return k === 0 ? [u, -d] : k === 1 ? [S + d, u] : k === 2 ? [S - u, S + d] : [-d, S - u];
+}
+
+/** One side of the sheet: its distance outside the square's side at the side's middle (mm), its slope (mm per mm along the side) and how it was found. */
+interface SheetSide {
+  offset: number;
+  slope: number;
+  side: SheetOutline['sides'][number];
+}
+
+/** The paper's grey level just outside side k (median of samples at 2, 3 and 4 % of S outside, at each station), and how many samples lay on the photo. */
+function paperLevel(img: GreyPlane, H: Mat3, S: number, k: number, stations: readonly number[]): { level: number; samples: number } {
+  const paper: number[] = [];
+  for (const u of stations)
+    for (const f of [0.02, 0.03, 0.04]) {
+      const p = applyH(H, ...outsideSide(S, k, u, f * S));
+      if (onPhoto(img, p)) paper.push(sampleGrey(img.grey, img.w, img.h, p[0], p[1]));
+    }
+  paper.sort((a, b) => a - b);
+  return { level: paper[Math.floor(paper.length / 2)] ?? 0, samples: paper.length };
+}
+
+/**
+ * March outward from 2 % of S outside side k at station u (mm), half an image pixel a step, to the first crossing
+ * below the grey level `T` whose next RUN_MM stay (80 % of samples) below it: its distance outside the side (mm,
+ * interpolated between the samples; −1 when none) and where the march stopped (mm; below 3 S when it left the photo).
+ */
+function marchAcrossMargin(img: GreyPlane, H: Mat3, S: number, k: number, u: number, T: number): { edgeMm: number; stoppedMm: number } {
+  const step = 0.5 / Math.max(1e-9, homographyScale(H, ...outsideSide(S, k, u, 0.02 * S))); // half a pixel, mm
+  const runN = Math.max(6, Math.ceil(RUN_MM / step));
+  const vals: number[] = [];
+  let d = 0.02 * S;
+  for (; d < 3 * S; d += step) {
+    const p = applyH(H, ...outsideSide(S, k, u, d));
+    if (!onPhoto(img, p)) break;
+    vals.push(sampleGrey(img.grey, img.w, img.h, p[0], p[1]));
+    const j = vals.length - 1 - runN;
+    if (j >= 1 && vals[j]! < T && vals[j - 1]! >= T) {
+      let below = 0;
+      for (let q = j; q <= j + runN; q++) if (vals[q]! < T) below++;
+      if (below >= 0.8 * (runN + 1)) {
+        const dj = 0.02 * S + j * step;
+        return { edgeMm: dj - step + (step * (vals[j - 1]! - T)) / (vals[j - 1]! - vals[j]!), stoppedMm: d };
+      }
+    }
+  }
+  return { edgeMm: -1, stoppedMm: d };
+}
+
+/**
+ * Side k of the sheet (target frame, mm): where the grey falls half-way from the paper's level to the bed
+ * `surface`'s, a robust line through the stations' edges (at least 5); a side whose march left the photo at half
+ * the stations or more lies where the marches stopped; otherwise (no contrast, too few edges) the print's `margin`.
+ */
+function measureSheetSide(img: GreyPlane, H: Mat3, S: number, k: number, surface: number, margin: number): SheetSide {
+  const stations = Array.from({ length: STATIONS }, (_, i) => ((i + 0.5) / STATIONS) * S);
+  const paper = paperLevel(img, H, S, k, stations);
+  if (paper.samples < 8 || paper.level - surface < 20) return { offset: margin, slope: 0, side: 'margin' };
+  const T = (paper.level + surface) / 2;
+  const edges: [number, number][] = [];
+  let offPhoto = 0;
+  let reached = 0;
+  for (const u of stations) {
+    const { edgeMm, stoppedMm } = marchAcrossMargin(img, H, S, k, u, T);
+    if (edgeMm > 0) edges.push([u, edgeMm]);
+    else if (stoppedMm < 3 * S) {
+      offPhoto++;
+      reached = Math.max(reached, stoppedMm);
+    }
+  }
+  const line = robustLine(edges);
+  if (line && line.n >= 5) return { offset: line.a + line.b * (S / 2), slope: line.b, side: 'seen' };
+  if (offPhoto >= STATIONS / 2) return { offset: Math.max(margin, reached), slope: 0, side: 'off-photo' };
+  return { offset: margin, slope: 0, side: 'margin' };
+}
+
+/** Where sheet sides k and l meet, target frame mm (side k: points outsideSide(k, u, offset + slope (u − S/2))). */
+function sidesMeet(S: number, sides: readonly SheetSide[], k: number, l: number): [number, number] {
+  const linePts = (i: number): [[number, number], [number, number]] => [outsideSide(S, i, 0, sides[i]!.offset - sides[i]!.slope * (S / 2)), outsideSide(S, i, S, sides[i]!.offset + sides[i]!.slope * (S / 2))];
+  const [p1, p2] = linePts(k);
+  const [p3, p4] = linePts(l);
+  const d1x = p2[0] - p1[0], d1y = p2[1] - p1[1], d2x = p4[0] - p3[0], d2y = p4[1] - p3[1];
+  const den = d1x * d2y - d1y * d2x;
+  const t = ((p3[0] - p1[0]) * d2y - (p3[1] - p1[1]) * d2x) / den;
+  return [p1[0] + t * d1x, p1[1] + t * d1y];
+}
+
 /**
  * Finds the sheet around the square. `grey` is the full-resolution grey image (0–255), `surface` the bed surface's
- * grey level (e.g. the photo's median), `sizeMm` the square's outer size.
+ * grey level (e.g. the photo's median), `sizeMm` the square's outer size; `H` target frame (mm) → image px.
  */
 export function findSheet(grey: Float32Array, w: number, h: number, H: Mat3, sizeMm: number, surface: number): SheetOutline {
   const S = sizeMm;
   const margin = paperMarginMm(S);
-  // side k: point at station u (0..S along the side) and distance d outside it
-  const at = (k: number, u: number, d: number): [number, number] =>
-    k === 0 ? [u, -d] : k === 1 ? [S + d, u] : k === 2 ? [S - u, S + d] : [-d, S - u];
-  const offsets: number[] = [];
-  const slopes: number[] = [];
-  const sides: SheetOutline['sides'] = [];
-  const onPhoto = (p: [number, number]) => p[0] >= 0 && p[1] >= 0 && p[0] <= w - 1 && p[1] <= h - 1;
-  for (let k = 0; k < 4; k++) {
-    const stations = Array.from({ length: STATIONS }, (_, i) => ((i + 0.5) / STATIONS) * S);
-    // the paper's level just outside the frame, over the whole side
-    const paper: number[] = [];
-    for (const u of stations)
-      for (const f of [0.02, 0.03, 0.04]) {
-        const p = applyH(H, ...at(k, u, f * S));
-        if (onPhoto(p)) paper.push(sampleGrey(grey, w, h, p[0], p[1]));
-      }
-    paper.sort((a, b) => a - b);
-    const P = paper[Math.floor(paper.length / 2)] ?? 0;
-    if (paper.length < 8 || P - surface < 20) {
-      offsets.push(margin);
-      slopes.push(0);
-      sides.push('margin');
-      continue;
-    }
-    const T = (P + surface) / 2;
-    const edges: [number, number][] = [];
-    let offPhoto = 0;
-    let reached = 0;
-    for (const u of stations) {
-      const step = 0.5 / Math.max(1e-9, homographyScale(H, ...at(k, u, 0.02 * S))); // half a pixel, mm
-      const runN = Math.max(6, Math.ceil(RUN_MM / step));
-      const vals: number[] = [];
-      let found = -1;
-      let d = 0.02 * S;
-      for (; d < 3 * S; d += step) {
-        const p = applyH(H, ...at(k, u, d));
-        if (!onPhoto(p)) break;
-        vals.push(sampleGrey(grey, w, h, p[0], p[1]));
-        // the first crossing below T whose next RUN_MM stay (80 % of samples) below it
-        const j = vals.length - 1 - runN;
-        if (j >= 1 && vals[j]! < T && vals[j - 1]! >= T) {
-          let below = 0;
-          for (let q = j; q <= j + runN; q++) if (vals[q]! < T) below++;
-          if (below >= 0.8 * (runN + 1)) {
-            const dj = 0.02 * S + j * step;
-            found = dj - step + (step * (vals[j - 1]! - T)) / (vals[j - 1]! - vals[j]!);
-            break;
-          }
-        }
-      }
-      if (found > 0) edges.push([u, found]);
-      else if (d < 3 * S) {
-        offPhoto++;
-        reached = Math.max(reached, d);
-      }
-    }
-    const line = robustLine(edges);
-    if (line && line.n >= 5) {
-      offsets.push(line.a + line.b * (S / 2));
-      slopes.push(line.b);
-      sides.push('seen');
-    } else if (offPhoto >= STATIONS / 2) {
-      offsets.push(Math.max(margin, reached));
-      slopes.push(0);
-      sides.push('off-photo');
-    } else {
-      offsets.push(margin);
-      slopes.push(0);
-      sides.push('margin');
-    }
-  }
-  // side k as a line in the target frame: points at(k, u, offset + slope (u − S/2))
-  const linePts = (k: number): [[number, number], [number, number]] => [at(k, 0, offsets[k]! - slopes[k]! * (S / 2)), at(k, S, offsets[k]! + slopes[k]! * (S / 2))];
-  const meet = (k: number, l: number): [number, number] => {
-    const [p1, p2] = linePts(k);
-    const [p3, p4] = linePts(l);
-    const d1x = p2[0] - p1[0], d1y = p2[1] - p1[1], d2x = p4[0] - p3[0], d2y = p4[1] - p3[1];
-    const den = d1x * d2y - d1y * d2x;
-    const t = ((p3[0] - p1[0]) * d2y - (p3[1] - p1[1]) * d2x) / den;
-    return [p1[0] + t * d1x, p1[1] + t * d1y];
-  };
+  const img: GreyPlane = { grey, w, h };
+  const sides = [0, 1, 2, 3].map((k) => measureSheetSide(img, H, S, k, surface, margin));
   // corner 0 (by the square's corner 0) is where the left side (3) meets the bottom (0), and so on
-  const cornersMm = [meet(3, 0), meet(0, 1), meet(1, 2), meet(2, 3)];
-  return { cornersMm, cornersPx: cornersMm.map((c) => applyH(H, c[0], c[1])), sides };
+  const cornersMm = [sidesMeet(S, sides, 3, 0), sidesMeet(S, sides, 0, 1), sidesMeet(S, sides, 1, 2), sidesMeet(S, sides, 2, 3)];
+  return { cornersMm, cornersPx: cornersMm.map((c) => applyH(H, c[0], c[1])), sides: sides.map((s) => s.side) };
 }
 
 /**
