@@ -41,26 +41,33 @@ function circularMeanPeak(angles: number[], bins = 48): number {
   return centre + Math.atan2(s, c);
 }
 
-/**
- * Initial map image px → bed mm (a homography): square rectification, lattice turn, phase and whole-pitch shift.
- * `sq` maps the square frame (mm) to image px; `famOf[i]` lists the families detection i may belong to.
- */
+/** The initial map image px → bed mm (a homography) and how unique its whole-pitch shift is. */
 export interface InitialMap { H: Mat3; /** Whole-pitch shifts that explain the detections about as well as the chosen one (1 = unique). */ tiedShifts: number }
 
-export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Array, famOf: number[][], sqInv: Mat3, sq: Mat3): InitialMap | null {
-  const n = det.n;
-  const sx = new Float64Array(n), sy = new Float64Array(n);
-  for (let i = 0; i < n; i++) { const [x, y] = applyH(sqInv, det.u[i]!, det.v[i]!); sx[i] = x; sy[i] = y; }
-  // Main family: the one with most candidate detections.
+type Family = Lattice['families'][number]['family'];
+
+/** Detections (image px) rectified into the square frame (mm) by `sqInv`. */
+function toSquareFrame(det: Detections, sqInv: Mat3): { sx: Float64Array; sy: Float64Array } {
+  const sx = new Float64Array(det.n), sy = new Float64Array(det.n);
+  for (let i = 0; i < det.n; i++) { const [x, y] = applyH(sqInv, det.u[i]!, det.v[i]!); sx[i] = x; sy[i] = y; }
+  return { sx, sy };
+}
+
+/** The main family: the one with most usable candidate detections (at least 4), or null. */
+function mainFamily(l: Lattice, n: number, usable: Uint8Array, famOf: number[][]): number | null {
   const votes = new Int32Array(l.families.length);
   for (let i = 0; i < n; i++) if (usable[i]) for (const f of famOf[i]!) votes[f]!++;
   let fm = 0;
   votes.forEach((v, i) => { if (v > votes[fm]!) fm = i; });
-  if (votes[fm]! < 4) return null;
-  const F = l.families[fm]!.family;
-  const idx: number[] = [];
-  for (let i = 0; i < n; i++) if (usable[i] && famOf[i]!.includes(fm)) idx.push(i);
-  // Neighbour directions via a grid hash.
+  return votes[fm]! < 4 ? null : fm;
+}
+
+/**
+ * Directions (rad, times 4 so that a lattice's four axes vote alike) of the pairs among detections `idx` (square
+ * frame mm) that lie one pitch of `F` apart (±15 %), found through a grid hash of 1.3 pitch cells; at most
+ * MAX_NEIGHBOUR_PAIRS pairs looked at.
+ */
+function neighbourDirections(idx: readonly number[], sx: Float64Array, sy: Float64Array, F: Family): number[] {
   const cell = Math.max(F.pitch.x, F.pitch.y) * 1.3;
   const grid = new Map<string, number[]>();
   for (const i of idx) { const key = `${Math.floor(sx[i]! / cell)},${Math.floor(sy[i]! / cell)}`; (grid.get(key) ?? grid.set(key, []).get(key)!).push(i); }
@@ -77,9 +84,11 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
       }
     }
   }
-  if (dirs.length < 3) return null;
-  const th0 = circularMeanPeak(dirs) / 4;
-  // Quarter turn that keeps the bed's +X within ±45° of the image's +x (front edge at the bottom).
+  return dirs;
+}
+
+/** Of the four quarter turns of the lattice angle `th0` (rad, square frame), the one that keeps the bed's +X within ±45° of the image's +x (front edge at the bottom). */
+function frontEdgeTurn(th0: number, sq: Mat3): number {
   const c0 = applyH(sq, 0, 0);
   let theta = th0, bestA = Infinity;
   for (let k = 0; k < 4; k++) {
@@ -88,29 +97,48 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
     const a = Math.abs(Math.atan2(-(p[1] - c0[1]), p[0] - c0[0]));
     if (a < bestA) { bestA = a; theta = t; }
   }
-  const cs = Math.cos(-theta), sn = Math.sin(-theta);
-  const bx = new Float64Array(n), by = new Float64Array(n);
-  for (let i = 0; i < n; i++) { bx[i] = cs * sx[i]! - sn * sy[i]!; by[i] = sn * sx[i]! + cs * sy[i]!; }
-  // Phase of t ≡ origin − b (mod pitch).
+  return theta;
+}
+
+/** Lattice phase (mm) per axis: the circular mean of origin − b modulo the pitch over detections `idx` (b: square frame turned into the bed's axes, mm). */
+function latticePhase(idx: readonly number[], bx: Float64Array, by: Float64Array, F: Family): { tx0: number; ty0: number } {
   const ax: number[] = [], ay: number[] = [];
   for (const i of idx) { ax.push((TAU * (F.origin.x - bx[i]!)) / F.pitch.x); ay.push((TAU * (F.origin.y - by[i]!)) / F.pitch.y); }
-  const tx0 = (circularMeanPeak(ax) / TAU) * F.pitch.x, ty0 = (circularMeanPeak(ay) / TAU) * F.pitch.y;
-  // Whole-pitch shift.
+  return { tx0: (circularMeanPeak(ax) / TAU) * F.pitch.x, ty0: (circularMeanPeak(ay) / TAU) * F.pitch.y };
+}
+
+/** The q-quantile of `a` (nearest rank below). */
+function quantile(a: readonly number[], q: number): number { const s = [...a].sort((x, y) => x - y); return s[Math.min(s.length - 1, Math.max(0, Math.floor(q * (s.length - 1))))]!; }
+
+/**
+ * Whole-pitch shifts k that put lattice indices lo..hi of the detections inside 0..count − 1 (three about the
+ * middle when they span more than the lattice). Detections mapped farther than MAX_SHIFT_INDEX pitches from the
+ * lattice fit no placement (and k++ would stall past 2^53): no candidates, so no lattice is found.
+ */
+function shiftRange(lo: number, hi: number, count: number): number[] {
+  if (!(Math.abs(lo) <= MAX_SHIFT_INDEX && Math.abs(hi) <= MAX_SHIFT_INDEX)) return [];
+  let a = -lo, b = count - 1 - hi;
+  if (a > b) { const m = Math.round((a + b) / 2); a = m - 1; b = m + 1; }
+  const out: number[] = [];
+  for (let k = a; k <= b; k++) out.push(k);
+  return out;
+}
+
+/** Detections in the bed's axes (mm) with the main family and its phase, the input of the placement search. */
+interface Phased { bx: Float64Array; by: Float64Array; idx: number[]; fm: number; tx0: number; ty0: number }
+
+/**
+ * The whole-pitch shift (and, for families of one size interleaved, the origin offset) under which most of a
+ * sample of ≤ ~600 detections land within a quarter of the smallest pitch of a node of a family they may be (ties:
+ * the shift that centres the detections on the pattern); the translation (mm) and how many shifts score within 2 %.
+ */
+function bestPlacement(l: Lattice, n: number, usable: Uint8Array, famOf: number[][], p: Phased): { tx: number; ty: number; tiedShifts: number } | null {
+  const { bx, by, idx, fm, tx0, ty0 } = p;
+  const F = l.families[fm]!.family;
   const ci: number[] = [], cj: number[] = [];
   for (const i of idx) { ci.push(Math.round((bx[i]! + tx0 - F.origin.x) / F.pitch.x)); cj.push(Math.round((by[i]! + ty0 - F.origin.y) / F.pitch.y)); }
-  const pct = (a: number[], q: number) => { const s = [...a].sort((x, y) => x - y); return s[Math.min(s.length - 1, Math.max(0, Math.floor(q * (s.length - 1))))]!; };
-  const range = (lo: number, hi: number, count: number) => {
-    // Detections mapped farther than MAX_SHIFT_INDEX pitches from the lattice fit no placement (and k++ would
-    // stall past 2^53): no candidates, so no lattice is found.
-    if (!(Math.abs(lo) <= MAX_SHIFT_INDEX && Math.abs(hi) <= MAX_SHIFT_INDEX)) return [];
-    let a = -lo, b = count - 1 - hi;
-    if (a > b) { const m = Math.round((a + b) / 2); a = m - 1; b = m + 1; }
-    const out: number[] = [];
-    for (let k = a; k <= b; k++) out.push(k);
-    return out;
-  };
-  const ilo = pct(ci, 0.01), ihi = pct(ci, 0.99), jlo = pct(cj, 0.01), jhi = pct(cj, 0.99);
-  const kxs = range(ilo, ihi, F.count.x), kys = range(jlo, jhi, F.count.y);
+  const ilo = quantile(ci, 0.01), ihi = quantile(ci, 0.99), jlo = quantile(cj, 0.01), jhi = quantile(cj, 0.99);
+  const kxs = shiftRange(ilo, ihi, F.count.x), kys = shiftRange(jlo, jhi, F.count.y);
   if (!kxs.length || !kys.length) return null;
   const sample: number[] = [];
   const step = Math.max(1, Math.floor(n / 600));
@@ -124,8 +152,7 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
   const scores: number[] = [];
   // Families of one hole size interleaved (a staggered grid) vote into one phase histogram, each axis on its own,
   // so the phase found may mix one family's x with another's y: try the offsets between such families' origins too.
-  const offs = confusableOffsets(l, fm);
-  for (const [ox, oy] of offs) for (const kx of kxL) for (const ky of kyL) {
+  for (const [ox, oy] of confusableOffsets(l, fm)) for (const kx of kxL) for (const ky of kyL) {
     const tx = tx0 + ox + kx * F.pitch.x, ty = ty0 + oy + ky * F.pitch.y;
     let score = 0;
     for (const i of sample) for (const f of famOf[i]!) { if (nearestNode(l, f, bx[i]! + tx, by[i]! + ty).dist < gate) { score++; break; } }
@@ -134,10 +161,35 @@ export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Arra
     if (score > best.score || (score === best.score && off < best.off)) best = { score, off, kx, ky, ox, oy };
   }
   const tiedShifts = scores.filter((s) => s >= 0.98 * best.score).length;
-  const tx = tx0 + best.ox + best.kx * F.pitch.x, ty = ty0 + best.oy + best.ky * F.pitch.y;
+  return { tx: tx0 + best.ox + best.kx * F.pitch.x, ty: ty0 + best.oy + best.ky * F.pitch.y, tiedShifts };
+}
+
+/**
+ * Initial map image px → bed mm (a homography): square rectification (toSquareFrame), the main family, the lattice
+ * turn from its neighbour directions (neighbourDirections, frontEdgeTurn), its phase (latticePhase) and the
+ * whole-pitch shift (bestPlacement). `sq` maps the square frame (mm) to image px, `sqInv` back; `famOf[i]` lists
+ * the families detection i may belong to. Null when no lattice is found.
+ */
+export function initialImageToBed(l: Lattice, det: Detections, usable: Uint8Array, famOf: number[][], sqInv: Mat3, sq: Mat3): InitialMap | null {
+  const n = det.n;
+  const { sx, sy } = toSquareFrame(det, sqInv);
+  const fm = mainFamily(l, n, usable, famOf);
+  if (fm === null) return null;
+  const F = l.families[fm]!.family;
+  const idx: number[] = [];
+  for (let i = 0; i < n; i++) if (usable[i] && famOf[i]!.includes(fm)) idx.push(i);
+  const dirs = neighbourDirections(idx, sx, sy, F);
+  if (dirs.length < 3) return null;
+  const theta = frontEdgeTurn(circularMeanPeak(dirs) / 4, sq);
+  // square frame turned into the bed's axes: b = Rot(−θ)·s
+  const cs = Math.cos(-theta), sn = Math.sin(-theta);
+  const bx = new Float64Array(n), by = new Float64Array(n);
+  for (let i = 0; i < n; i++) { bx[i] = cs * sx[i]! - sn * sy[i]!; by[i] = sn * sx[i]! + cs * sy[i]!; }
+  const placed = bestPlacement(l, n, usable, famOf, { bx, by, idx, fm, ...latticePhase(idx, bx, by, F) });
+  if (!placed) return null;
   // bed = Rot(−θ)·square + t ; image → square is sqInv.
-  const rigid: Mat3 = [cs, -sn, tx, sn, cs, ty, 0, 0, 1];
-  return { H: mat3Mul(rigid, sqInv), tiedShifts };
+  const rigid: Mat3 = [cs, -sn, placed.tx, sn, cs, placed.ty, 0, 0, 1];
+  return { H: mat3Mul(rigid, sqInv), tiedShifts: placed.tiedShifts };
 }
 
 /**
