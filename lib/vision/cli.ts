@@ -50,7 +50,8 @@ export async function runImageMode(opts: ImageModeOptions, fail: (message: strin
     process.stdout.write(`${JSON.stringify(report)}\n`);
   } catch (e) {
     if (e instanceof VisionInputError || e instanceof GeometryInputError) {
-      const advice = (quality?.issues ?? []).map((i) => `${i.message} ${i.advice}`);
+      // each issue's finding and advice, unless the error's reason already says it
+      const advice = (quality?.issues ?? []).filter((i) => !e.message.includes(i.advice)).map((i) => `${i.message} ${i.advice}`);
       fail([e.message, ...advice].join('\n'));
     }
     throw e;

@@ -7,6 +7,7 @@ import type { AnalyzeOptions } from '@/lib/geometry';
 import { RIM_MARGIN_PX, type HiddenReason, type Pattern, type PhotoQuality, type Points, type Report } from '@/lib/geometry/contract';
 import { VisionInputError } from './errors';
 import { homographyFrom4, homographyScale, type Mat3 } from '@/lib/geometry/homography';
+import { cutTargetMark } from './cut-target';
 import { findHoles, type CentreMethod, type FamilySize, type HoleDetection, type PartialHole } from './holes';
 import { findSheet, signedDistanceToOutline, type SheetOutline } from './sheet';
 import { DEFAULT_MAX_PIXELS, loadPhoto, medianLevel, reduce, type LoadedPhoto } from './load';
@@ -134,17 +135,21 @@ function detectedSquareMeta(sq: SquareFound): DetectMeta['square'] {
 }
 
 /**
- * The square: the user's corners, or found in the photo (square.ts). When none is found, the photo's quality is
- * still measured and reported, then `no-square` is thrown.
+ * The square: the user's corners, or found in the photo (square.ts). When none is found, or what is found is the
+ * orientation mark of a target cut by the border (cut-target.ts), the photo's quality is still measured and
+ * reported, then `no-square` is thrown (with the target-cut advice for a cut target).
  */
 async function locateSquare({ photo, small, factor }: PhotoPlanes, pattern: Pattern, opts: DetectOptions): Promise<SquareSource> {
   if (opts.corners) return { corners: opts.corners, square: { source: 'given' }, precision: {} };
   const { grey, width: w, height: h } = photo;
   const sq = await findSquare(grey, w, h, small, factor);
-  if (!sq) {
-    const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: null, referenceMm: opts.referenceMm, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
+  // the orientation mark of a target cut by the border is found whole as a small filled square: not the reference
+  const cutMark = sq ? cutTargetMark(grey, w, h, sq.corners) : null;
+  if (!sq || cutMark) {
+    const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq ? sq.corners : null, referenceMm: opts.referenceMm, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
     await opts.onQuality?.(quality);
-    throw new VisionInputError('no-square', 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
+    const cut = cutMark ? quality.issues.find((i) => i.code === 'target-cut') : undefined;
+    throw new VisionInputError('no-square', cut ? `No whole reference square was found. ${cut.message} ${cut.advice}` : 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
   }
   return {
     corners: sq.corners,

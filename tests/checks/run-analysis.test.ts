@@ -1,6 +1,7 @@
 /**
- * The advice a failed fit gives depends on what the person already did: whoever marked the reference corners by
- * hand is told to check them, not to mark them. Real migrated SQLite, the real measurement core, a claimed job.
+ * The advice a failed analysis gives: whoever marked the reference corners by hand is told to check them, not to
+ * mark them; a photo whose target the border cuts is told what to change in words. Real migrated SQLite, the real
+ * measurement core and vision (a photo drawn by our renderer), a claimed job.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -10,7 +11,8 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { getCheckById, requestRefit } from '@/db/queries/checks';
 import { claimJob, failJob } from '@/db/queries/jobs';
 import { intakePhoto } from '@/lib/checks/intake';
-import { PermanentJobError, runCheckRefit } from '@/lib/checks/run-analysis';
+import { analysisDeps } from '@/lib/checks/pipeline';
+import { PermanentJobError, runCheckAnalysis, runCheckRefit } from '@/lib/checks/run-analysis';
 import { fitDeps } from '@/lib/checks/fit';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import { ReportSchema } from '@/lib/geometry/contract';
@@ -18,6 +20,10 @@ import { buildLattice } from '@/lib/geometry/lattice';
 import { patternToMm } from '@/lib/geometry/units';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { LocalStorage } from '@/lib/storage';
+import { ISSUE_ADVICE } from '@/lib/vision/advice';
+import { synthesize } from '@/lib/vision/render';
+import { degrade } from '@/lib/vision/render/degrade';
+import { SMALL_BED } from '../vision/scenes';
 import { tempDb, type TempDb } from '../queue/helpers';
 import { makeShop, SMALL_PATTERN } from './fixtures';
 
@@ -83,4 +89,28 @@ describe('a check with measured distances', () => {
     expect(report.distances![0]).toMatchObject({ from: 'dog A1', to: 'dog D1', mm, sigmaMm: 0.2, used: true });
     expect(Math.abs(report.distances![0]!.residualSigmas!)).toBeLessThan(3);
   });
+});
+
+describe('the analysis of a photo whose reference target is cut by the border', () => {
+  it('fails the check with the target-cut advice in words and stores that verdict, instead of measuring from the mark', async () => {
+    // the crop through the middle of the target keeps its orientation mark whole (a filled square a tenth of the
+    // target's side, target.ts): measured from it, every length would be ten times off
+    const { jpeg, truth } = await synthesize(SMALL_BED, { width: 1200, height: 900, supersample: 3, seed: 752, tiltDeg: 6 });
+    const xs = truth.target.cornersPx.map((c) => c[0]);
+    const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
+    const crop = mid > 600 ? { x: 0, y: 0, width: mid, height: 900 } : { x: mid, y: 0, width: 1200 - mid, height: 900 };
+    const source = (await degrade(jpeg, { crop })).jpeg;
+    const shop = await makeShop(t.db, 'cut shop', SMALL_BED);
+    const storage = new LocalStorage(storeDir);
+    const { check } = await intakePhoto(t.db, storage, { workshopId: shop.workshopId, bedId: shop.bedId, userId: shop.userId, source, referenceMm: truth.target.sizeMm });
+    const job = await claimJob(t.db, { workerId: 'test', leaseMs: 60_000 });
+    expect(job?.kind).toBe('check.analyze');
+    const run = runCheckAnalysis({ db: t.db, storage, job: job!, assertHeld: () => undefined, testDelayMs: 0 }, analysisDeps);
+    const error = await run.then(() => null, (e: unknown) => e);
+    expect(error).toBeInstanceOf(PermanentJobError);
+    expect((error as Error).message).toContain(ISSUE_ADVICE['target-cut']);
+    const stored = await getCheckById(t.db, check.id);
+    expect(JSON.parse(stored!.qualityJson!).issues.map((i: { code: string }) => i.code)).toEqual(['target-cut']);
+    expect(stored!.reportJson ?? null).toBeNull();
+  }, 60_000);
 });

@@ -8,7 +8,8 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { PatternSchema, PhotoQualitySchema, type Pattern, type PhotoQuality } from '@/lib/geometry/contract';
-import { analyzeImage, checkPhotoQuality } from '@/lib/vision';
+import { analyzeImage, checkPhotoQuality, VisionInputError } from '@/lib/vision';
+import { ISSUE_ADVICE } from '@/lib/vision/advice';
 import { positionErrorAfterSimilarityMm } from './score';
 import { synthesize, type SceneOptions, type Truth } from '@/lib/vision/render';
 import { degrade, type Degradation } from '@/lib/vision/render/degrade';
@@ -135,5 +136,24 @@ describe('photo-quality stage', () => {
       expect(codes(q)).toEqual(['target-cut']);
       expect(q.predicted).toBeNull();
     }
+  }, 60_000);
+
+  it('does not measure the bed from the orientation mark of a cut target: the analysis fails as no square with the target-cut advice', async () => {
+    // the crop through the target that keeps its whole mark (seed 752, as above): the square search finds the mark,
+    // a tenth of the target's side (target.ts); a report measured from it would be ten times off in scale
+    const { jpeg, truth } = await synthesize(SMALL_BED, { ...base, seed: 752, tiltDeg: 6 });
+    const xs = truth.target.cornersPx.map((c) => c[0]);
+    const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
+    const crop = mid > 600 ? { x: 0, y: 0, width: mid, height: 900 } : { x: mid, y: 0, width: 1200 - mid, height: 900 };
+    const bytes = (await degrade(jpeg, { crop })).jpeg;
+    const seen: PhotoQuality[] = [];
+    const run = analyzeImage(bytes, SMALL_BED, { referenceMm: truth.target.sizeMm, onQuality: (q) => void seen.push(q) });
+    const error = await run.then(() => null, (e: unknown) => e);
+    expect(error).toBeInstanceOf(VisionInputError);
+    expect((error as VisionInputError).code).toBe('no-square');
+    expect((error as VisionInputError).message).toContain(ISSUE_ADVICE['target-cut']);
+    // the verdict stored before the failure is the cut target alone, with no prediction
+    expect(seen.map(codes)).toEqual([['target-cut']]);
+    expect(seen[0]!.predicted).toBeNull();
   }, 60_000);
 });
