@@ -24,6 +24,7 @@ import { degrade, type Degradation } from '@/lib/vision/render/degrade';
 import { loadPhoto, reduce } from '@/lib/vision/load';
 import { LIMITS, measureQuality } from '@/lib/vision/quality';
 import { findSquare } from '@/lib/vision/square';
+import { cutThroughTarget } from '../vision/scenes';
 import { positionErrorAfterSimilarityMm, scoreDetections } from '../vision/score';
 
 const ROOT = fileURLToPath(new URL('../..', import.meta.url));
@@ -95,13 +96,6 @@ interface Case {
   expect: PhotoIssueCode[];
   /** A ready photo instead of a render (the 12 MP one, downscaled). */
   photo?: { jpeg: Buffer; truth: Truth };
-}
-
-function cutThroughTarget(t: Truth): Degradation {
-  const xs = t.target.cornersPx.map((c) => c[0]);
-  const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-  const w = t.image.width;
-  return mid > w / 2 ? { crop: { x: 0, y: 0, width: mid, height: t.image.height } } : { crop: { x: mid, y: 0, width: w - mid, height: t.image.height } };
 }
 
 /** The frame cut to its 70 % nearest the target: the far part of the bed is outside, the target whole. */

@@ -23,7 +23,7 @@ import { LocalStorage } from '@/lib/storage';
 import { ISSUE_ADVICE } from '@/lib/vision/advice';
 import { synthesize } from '@/lib/vision/render';
 import { degrade } from '@/lib/vision/render/degrade';
-import { SMALL_BED } from '../vision/scenes';
+import { cutThroughTarget, SMALL_BED } from '../vision/scenes';
 import { tempDb, type TempDb } from '../queue/helpers';
 import { makeShop, SMALL_PATTERN } from './fixtures';
 
@@ -96,10 +96,7 @@ describe('the analysis of a photo whose reference target is cut by the border', 
     // the crop through the middle of the target keeps its orientation mark whole (a filled square a tenth of the
     // target's side, target.ts): measured from it, every length would be ten times off
     const { jpeg, truth } = await synthesize(SMALL_BED, { width: 1200, height: 900, supersample: 3, seed: 752, tiltDeg: 6 });
-    const xs = truth.target.cornersPx.map((c) => c[0]);
-    const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-    const crop = mid > 600 ? { x: 0, y: 0, width: mid, height: 900 } : { x: mid, y: 0, width: 1200 - mid, height: 900 };
-    const source = (await degrade(jpeg, { crop })).jpeg;
+    const source = (await degrade(jpeg, cutThroughTarget(truth))).jpeg;
     const shop = await makeShop(t.db, 'cut shop', SMALL_BED);
     const storage = new LocalStorage(storeDir);
     const { check } = await intakePhoto(t.db, storage, { workshopId: shop.workshopId, bedId: shop.bedId, userId: shop.userId, source, referenceMm: truth.target.sizeMm });

@@ -9,7 +9,7 @@ import { loadPhoto, reduce } from '@/lib/vision/load';
 import { synthesize } from '@/lib/vision/render';
 import { degrade } from '@/lib/vision/render/degrade';
 import { findSquare } from '@/lib/vision/square';
-import { SMALL_BED } from './scenes';
+import { cutThroughTarget, SMALL_BED } from './scenes';
 
 async function squareIn(jpeg: Buffer) {
   const img = await loadPhoto(jpeg);
@@ -21,9 +21,7 @@ async function squareIn(jpeg: Buffer) {
 describe('cut target', () => {
   it('recognises the whole mark of a target cut through its middle and puts the whole target where it truly is', async () => {
     const { jpeg, truth } = await synthesize(SMALL_BED, { width: 1200, height: 900, supersample: 3, seed: 752, tiltDeg: 6 });
-    const xs = truth.target.cornersPx.map((c) => c[0]);
-    const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-    const crop = mid > 600 ? { x: 0, y: 0, width: mid, height: 900 } : { x: mid, y: 0, width: 1200 - mid, height: 900 };
+    const { crop } = cutThroughTarget(truth);
     const { img, sq } = await squareIn((await degrade(jpeg, { crop })).jpeg);
     // what the square search finds in the cut photo is the mark: a tenth of the target's side (target.ts)
     const side = Math.hypot(truth.target.cornersPx[1]![0] - truth.target.cornersPx[0]![0], truth.target.cornersPx[1]![1] - truth.target.cornersPx[0]![1]);

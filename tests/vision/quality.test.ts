@@ -13,7 +13,7 @@ import { ISSUE_ADVICE } from '@/lib/vision/advice';
 import { positionErrorAfterSimilarityMm } from './score';
 import { synthesize, type SceneOptions, type Truth } from '@/lib/vision/render';
 import { degrade, type Degradation } from '@/lib/vision/render/degrade';
-import { SMALL_BED } from './scenes';
+import { cutThroughTarget, SMALL_BED } from './scenes';
 
 const LARGE_BED: Pattern = PatternSchema.parse(JSON.parse(readFileSync(new URL('../fixtures/vision/bed-large.json', import.meta.url), 'utf8')));
 const base: Partial<SceneOptions> = { width: 1200, height: 900, supersample: 3 };
@@ -128,11 +128,7 @@ describe('photo-quality stage', () => {
     // the crop through the middle of the target (the renderer's true corners) keeps the half without the
     // orientation mark (seed 351) or with it (752: the whole mark, a filled square, stays in the photo)
     for (const [seed, tiltDeg] of [[351, 0], [752, 6]] as const) {
-      const q = await quality(SMALL_BED, { seed, tiltDeg }, (t) => {
-        const xs = t.target.cornersPx.map((c) => c[0]);
-        const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-        return mid > 600 ? { crop: { x: 0, y: 0, width: mid, height: 900 } } : { crop: { x: mid, y: 0, width: 1200 - mid, height: 900 } };
-      });
+      const q = await quality(SMALL_BED, { seed, tiltDeg }, cutThroughTarget);
       expect(codes(q)).toEqual(['target-cut']);
       expect(q.predicted).toBeNull();
     }
@@ -142,10 +138,7 @@ describe('photo-quality stage', () => {
     // the crop through the target that keeps its whole mark (seed 752, as above): the square search finds the mark,
     // a tenth of the target's side (target.ts); a report measured from it would be ten times off in scale
     const { jpeg, truth } = await synthesize(SMALL_BED, { ...base, seed: 752, tiltDeg: 6 });
-    const xs = truth.target.cornersPx.map((c) => c[0]);
-    const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
-    const crop = mid > 600 ? { x: 0, y: 0, width: mid, height: 900 } : { x: mid, y: 0, width: 1200 - mid, height: 900 };
-    const bytes = (await degrade(jpeg, { crop })).jpeg;
+    const bytes = (await degrade(jpeg, cutThroughTarget(truth))).jpeg;
     const seen: PhotoQuality[] = [];
     const run = analyzeImage(bytes, SMALL_BED, { referenceMm: truth.target.sizeMm, onQuality: (q) => void seen.push(q) });
     const error = await run.then(() => null, (e: unknown) => e);

@@ -1,9 +1,21 @@
 /** Seeded rendered scenes for the vision tests: small (1.1 MP) so the suite stays fast; 12 MP lives in the bench. */
 import { readFileSync } from 'node:fs';
 import { PatternSchema, type Pattern } from '@/lib/geometry/contract';
-import type { SceneOptions } from '@/lib/vision/render';
+import type { SceneOptions, Truth } from '@/lib/vision/render';
+import type { Degradation } from '@/lib/vision/render/degrade';
 
 export const SMALL_BED: Pattern = PatternSchema.parse(JSON.parse(readFileSync(new URL('../fixtures/vision/bed-small.json', import.meta.url), 'utf8')));
+
+/**
+ * The crop through the middle of the target (the renderer's true corners, image px) that keeps the half holding
+ * the target's orientation mark or the other half, whichever side of the photo's middle the target lies on.
+ */
+export function cutThroughTarget(t: Truth): Degradation & { crop: NonNullable<Degradation['crop']> } {
+  const xs = t.target.cornersPx.map((c) => c[0]);
+  const mid = Math.round((Math.min(...xs) + Math.max(...xs)) / 2);
+  const w = t.image.width;
+  return mid > w / 2 ? { crop: { x: 0, y: 0, width: mid, height: t.image.height } } : { crop: { x: mid, y: 0, width: w - mid, height: t.image.height } };
+}
 
 export interface SceneCase {
   name: string;
