@@ -5,7 +5,7 @@ import './globals.css';
 import type { Metadata, Viewport } from 'next';
 import type { ReactNode } from 'react';
 import { Providers } from '@/components/Providers';
-import { THEME_SCRIPT } from '@/components/ThemeToggle';
+import { THEME_SCRIPT } from '@/lib/theme';
 
 export const metadata: Metadata = {
   title: { default: 'Gridproof', template: '%s · Gridproof' },

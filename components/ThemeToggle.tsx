@@ -1,6 +1,7 @@
 'use client';
 /** Light / dark / device theme switch; the choice is kept in localStorage and set on <html data-theme>. */
 import { useEffect, useState } from 'react';
+import { THEME_STORAGE_KEY } from '@/lib/theme';
 
 type Choice = 'light' | 'dark' | 'device';
 const NEXT: Record<Choice, Choice> = { device: 'light', light: 'dark', dark: 'device' };
@@ -9,7 +10,7 @@ const LABEL: Record<Choice, string> = { device: 'Theme: device', light: 'Theme: 
 export function ThemeToggle() {
   const [choice, setChoice] = useState<Choice>('device');
   useEffect(() => {
-    const saved = localStorage.getItem('gp-theme');
+    const saved = localStorage.getItem(THEME_STORAGE_KEY);
     // eslint-disable-next-line react-hooks/set-state-in-effect -- read once after hydration
     if (saved === 'light' || saved === 'dark') setChoice(saved);
   }, []);
@@ -17,10 +18,10 @@ export function ThemeToggle() {
     const next = NEXT[choice];
     setChoice(next);
     if (next === 'device') {
-      localStorage.removeItem('gp-theme');
+      localStorage.removeItem(THEME_STORAGE_KEY);
       document.documentElement.removeAttribute('data-theme');
     } else {
-      localStorage.setItem('gp-theme', next);
+      localStorage.setItem(THEME_STORAGE_KEY, next);
       document.documentElement.setAttribute('data-theme', next);
     }
   };
@@ -30,6 +31,3 @@ export function ThemeToggle() {
     </button>
   );
 }
-
-/** Inline script for <head>: applies a saved theme before the first paint. */
-export const THEME_SCRIPT = `try{var t=localStorage.getItem('gp-theme');if(t==='light'||t==='dark')document.documentElement.setAttribute('data-theme',t)}catch(e){}`;
