@@ -194,7 +194,8 @@ function fitOptionsOf(check: { distancesJson: string | null }): FitOptions {
 function withHint(message: string, cornersGiven: boolean): string {
   const hint = cornersGiven
     ? 'Check the marked corners, or try another photo taken straight from above in even light.'
-    : 'Try another photo taken straight from above in even light, or mark the reference square\'s corners by hand.';
+    // the upload form cannot take corners (review can, once a check has detections): only the API's `corners` field
+    : 'Try another photo taken straight from above in even light. (Through the API, the reference square\'s four corners can also be given with the upload, as `corners` in image px.)';
   return /[.!?]$/.test(message.trim()) ? `${message.trim()} ${hint}` : `${message.trim()}. ${hint}`;
 }
 

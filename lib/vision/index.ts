@@ -149,7 +149,7 @@ async function locateSquare({ photo, small, factor }: PhotoPlanes, pattern: Patt
     const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq ? sq.corners : null, referenceMm: opts.referenceMm, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
     await opts.onQuality?.(quality);
     const cut = cutMark ? quality.issues.find((i) => i.code === 'target-cut') : undefined;
-    throw new VisionInputError('no-square', cut ? `No whole reference square was found. ${cut.message} ${cut.advice}` : 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared, or mark its four corners by hand.');
+    throw new VisionInputError('no-square', cut ? `No whole reference square was found. ${cut.message} ${cut.advice}` : 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared.');
   }
   return {
     corners: sq.corners,

@@ -128,6 +128,14 @@ describe('inputs the user must change', () => {
     expect(await codeOf(detectFromImage(png, SMALL_BED, { referenceMm: 150 }))).toBe('no-square');
   });
 
+  it('asks for the whole square in view, and offers no marking by hand that the upload form cannot take', async () => {
+    const png = await sharp({ create: { width: 600, height: 400, channels: 3, background: '#b08a60' } }).png().toBuffer();
+    const message = await detectFromImage(png, SMALL_BED, { referenceMm: 150 }).then(() => '', (e: Error) => e.message);
+    expect(message).toMatch(/whole printed square is in view/);
+    // components/upload/UploadForm.tsx has no corner input: hand-marking is review's, on a check with detections
+    expect(message).not.toMatch(/by hand|corners/i);
+  });
+
   it('says when too few holes are found', async () => {
     // Gridproof's target on white paper on a plain surface, no holes
     const w = 800, h = 600, pxPerMm = 2, x0 = 250, y0 = 150;
