@@ -11,8 +11,11 @@ import { api, errorText } from '@/components/api';
 import { formatAngle, formatLength, type LengthUnit } from '@/lib/report/units';
 import { MAP_EDGE_WORDS } from '@/lib/report/words';
 
-/** `firstFamily`: the bed family id the accessory's first pin (its origin) enters. */
-export interface FitAccessory { id: string; name: string; pinCount: number; firstFamily: string }
+/**
+ * `firstFamily`: the bed family id the accessory's first pin (its origin) enters; `firstAt`: the position offered
+ * first for it (every pin on a measured hole, nearest the front-left corner), null when there is none.
+ */
+export interface FitAccessory { id: string; name: string; pinCount: number; firstFamily: string; firstAt: string | null }
 export interface FitPosition { label: string; family: string; kind: string; x: number; y: number }
 export interface BoardCheck { id: string; label: string }
 
@@ -78,7 +81,7 @@ export function FitPanel({ checkId, accessories, positions, bed, boards, unit: i
   const [accessoryId, setAccessoryId] = useState(accessories[0]?.id ?? '');
   const accessory = accessories.find((a) => a.id === accessoryId);
   const originPositions = useMemo(() => positions.filter((p) => !accessory || p.family === accessory.firstFamily), [positions, accessory]);
-  const [at, setAt] = useState(originPositions[0]?.label ?? '');
+  const [at, setAt] = useState(accessory?.firstAt ?? originPositions[0]?.label ?? '');
   const [turn, setTurn] = useState<Turn>(0);
   const [mapTurn, setMapTurn] = useState<Turn>(0);
   const [boardId, setBoardId] = useState(boards[0]?.id ?? '');
@@ -102,7 +105,7 @@ export function FitPanel({ checkId, accessories, positions, bed, boards, unit: i
         {accessories.length === 0 ? <p>The workshop has no accessories yet. <a className="underline" href="/accessories">Add one to the library</a>.</p> : (
           <form className="grid grid-cols-1 gap-3 sm:grid-cols-3" onSubmit={(e) => { e.preventDefault(); place.mutate({ at, turnDeg: turn }); }}>
             <label className="field"><span>Accessory</span>
-              <select className="input" value={accessoryId} onChange={(e) => { setAccessoryId(e.target.value); map.reset(); place.reset(); }} data-testid="fit-accessory">
+              <select className="input" value={accessoryId} onChange={(e) => { const next = accessories.find((a) => a.id === e.target.value); setAccessoryId(e.target.value); if (next?.firstAt) setAt(next.firstAt); map.reset(); place.reset(); }} data-testid="fit-accessory">
                 {accessories.map((a) => <option key={a.id} value={a.id}>{a.name} ({a.pinCount} pin{a.pinCount === 1 ? '' : 's'})</option>)}
               </select>
             </label>

@@ -231,6 +231,28 @@ export function landPins(pins: ResolvedPin[], byKey: Map<string, ReportPosition>
   return { ok: true, holes };
 }
 
+/**
+ * The position to offer first for the accessory's origin: of those where, unturned, every pin lands on a hole the
+ * photo measured, the one nearest the bed's front-left corner (bed mm); null when there is none (or the bed cannot
+ * take the pins). So a first "check the fit" is not refused for a hidden hole.
+ */
+export function firstMeasuredOrigin(spec: AccessorySpec, pattern: PatternMm, report: Report): string | null {
+  let pins: ResolvedPin[];
+  try {
+    pins = resolvePins(spec, pattern);
+  } catch (e) {
+    if (e instanceof PlacementError) return null;
+    throw e;
+  }
+  const first = pins[0];
+  if (!first) return null;
+  const byKey = indexPositions(report);
+  const candidates = report.positions
+    .filter((p) => p.family === first.family.id && p.measured)
+    .sort((a, b) => Math.hypot(a.nominal.x, a.nominal.y) - Math.hypot(b.nominal.x, b.nominal.y));
+  return candidates.find((p) => landPins(pins, byKey, p.nominal, 0).ok)?.label ?? null;
+}
+
 export interface PlacementResult {
   at: string;
   turnDeg: Turn;

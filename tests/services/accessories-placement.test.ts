@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { accessoryFit, pinExcess } from '@/lib/geometry/accessory';
 import type { Pattern } from '@/lib/geometry/contract';
 import { patternToMm } from '@/lib/geometry/units';
-import { accessoryPresetById, boardOnBed, placeAccessory, placementMap, quickMinimaxExcess, resolvePins, type AccessorySpec } from '@/lib/services/accessories-placement';
+import { accessoryPresetById, boardOnBed, firstMeasuredOrigin, placeAccessory, placementMap, quickMinimaxExcess, resolvePins, type AccessorySpec } from '@/lib/services/accessories-placement';
 import { handReport } from './share-fixtures';
 
 /** Inserts at 76.2 mm (3 in) pitch, 5 × 4: a common insert grid (common practice). */
@@ -24,6 +24,25 @@ const TWO_PINS: AccessorySpec = {
     { label: 'right', x: 1, y: 0, unit: 'steps', family: 'threaded-insert', diameterMm: 8, clearanceMm: 0.25 },
   ],
 };
+
+describe('the origin offered first', () => {
+  it('skips a hidden front-left hole for the nearest origin where every pin lands on a measured hole', () => {
+    // by hand: A1 (48, 46) is hidden; A2 (48, 122.2), √(48² + 122.2²) = 131.3 mm from the corner, is nearer than
+    // B1 (124.2, 46) at √(124.2² + 46²) = 132.4 mm, and from A2 the second pin enters B2, also seen
+    const report = handReport(INSERTS, {}, { missing: ['insert A1'] });
+    expect(firstMeasuredOrigin(TWO_PINS, PM, report)).toBe('insert A2');
+    expect(placeAccessory(TWO_PINS, PM, report, 'insert A2', 0).fits).toBe(true);
+  });
+
+  it('skips an origin whose other pin would land on a hidden hole', () => {
+    // by hand: with B1 hidden, A1's second pin enters B1; the next nearest, A2 (131.3 mm), has both pins seen
+    expect(firstMeasuredOrigin(TWO_PINS, PM, handReport(INSERTS, {}, { missing: ['insert B1'] }))).toBe('insert A2');
+  });
+
+  it('offers A1 itself when its holes were all measured', () => {
+    expect(firstMeasuredOrigin(TWO_PINS, PM, handReport(INSERTS))).toBe('insert A1');
+  });
+});
 
 describe('placing an accessory on a measured bed (cases solved by hand)', () => {
   it('fits after a 0.15 mm shift with 0.10 mm to spare when one hole is 0.3 mm off along the line', () => {

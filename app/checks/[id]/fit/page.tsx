@@ -7,7 +7,7 @@ import { getDb } from '@/db/client';
 import { listBedChecks, listBeds } from '@/db/queries/beds';
 import { requireActor } from '@/lib/auth/session';
 import { AppError } from '@/lib/http/errors';
-import { resolveFamily } from '@/lib/services/accessories-placement';
+import { firstMeasuredOrigin, resolveFamily } from '@/lib/services/accessories-placement';
 import { listAccessories } from '@/lib/services/accessories';
 import { loadCheckPattern, loadFinishedCheck, type FinishedCheck } from '@/lib/services/share-report';
 import { formatUtcDay } from '@/lib/dates';
@@ -36,6 +36,7 @@ export default async function FitPage({ params }: { params: Promise<{ id: string
   const pattern = await loadCheckPattern(db, fc.check);
   const accessories: FitAccessory[] = (await listAccessories(db, actor)).map((a) => ({
     id: a.id, name: a.name, pinCount: a.spec.pins.length, firstFamily: resolveFamily(pattern, a.spec.pins[0]!.family)?.id ?? '',
+    firstAt: firstMeasuredOrigin(a.spec, pattern, fc.report),
   }));
   const kindOf = new Map(pattern.families.map((f) => [f.id, f.kind]));
   const positions = fc.report.positions.map((p) => ({ label: p.label, family: p.family, kind: kindOf.get(p.family) ?? 'other', x: p.nominal.x, y: p.nominal.y }));
