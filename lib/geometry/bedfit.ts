@@ -461,8 +461,11 @@ export function fitBed(inp: BedFitInput): BedModel {
     for (let k = 0; k < n; k++) { evalMatch(k, r, false); res[2 * k] = r[0]!; res[2 * k + 1] = r[1]!; }
   };
   const jtj = new Float64Array(np * np), jtr = new Float64Array(np);
-  /** JᵀWJ and JᵀWr at θ (and the residuals into `res`). */
-  const normalEquations = (t: Float64Array) => {
+  /**
+   * JᵀWJ and JᵀWr at θ (and the residuals into `res`); with `mid`, also the matches' part of the sandwich's middle,
+   * Σ uₖ² pₖ JₖᵀJₖ = Σ (wₖ² / pₖ) JₖᵀJₖ, added into it.
+   */
+  const normalEquations = (t: Float64Array, mid?: Float64Array) => {
     jtj.fill(0); jtr.fill(0);
     at(t);
     for (let k = 0; k < n; k++) {
@@ -476,6 +479,12 @@ export function fitBed(inp: BedFitInput): BedModel {
         jtr[ca]! += ja0 * r[0]! + ja1 * r[1]!;
         const row = ca * np;
         for (let bb = a; bb < m; bb++) jtj[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[MAX_COLS + bb]!;
+      }
+      if (!mid || !(prior[k]! > 0)) continue;
+      const g = (wk * wk) / prior[k]!;
+      for (let a = 0; a < m; a++) {
+        const ja0 = g * J[a]!, ja1 = g * J[MAX_COLS + a]!, row = cols[a]! * np;
+        for (let bb = 0; bb < m; bb++) mid[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[MAX_COLS + bb]!;
       }
     }
     for (let i = 0; i < np; i++) for (let j = 0; j < i; j++) jtj[i * np + j] = jtj[j * np + i]!;
@@ -504,18 +513,8 @@ export function fitBed(inp: BedFitInput): BedModel {
   }
 
   // Covariance: A = JᵀWJ with the priors, and the matches' part of the sandwich's middle.
-  normalEquations(theta);
   const mid = new Float64Array(np * np);
-  at(theta);
-  for (let k = 0; k < n; k++) {
-    if (!(w[k]! > 0) || !(prior[k]! > 0)) continue;
-    const m = evalMatch(k, r, true);
-    const g = (w[k]! * w[k]!) / prior[k]!;
-    for (let a = 0; a < m; a++) {
-      const ja0 = g * J[a]!, ja1 = g * J[MAX_COLS + a]!, row = cols[a]! * np;
-      for (let bb = 0; bb < m; bb++) mid[row + cols[bb]!]! += ja0 * J[bb]! + ja1 * J[MAX_COLS + bb]!;
-    }
-  }
+  normalEquations(theta, mid);
   // Residual variance from the MAD of the residual components (each scaled by √ of its prior weight, so that all
   // share one variance), 1.4826 × MAD being consistent for normal errors (Rousseeuw & Croux 1993), times 2n/(2n − np)
   // for the fitted parameters. The Huber-weighted RSS would let a few misplaced holes, down-weighted but not out,

@@ -62,6 +62,9 @@ function mainFamily(l: Lattice, n: number, usable: Uint8Array, famOf: number[][]
   return votes[fm]! < 4 ? null : fm;
 }
 
+/** One number per grid cell (gx, gy) of the neighbour search, distinct for cells within ±2²⁵ of the origin. */
+const cellKey = (gx: number, gy: number): number => gx * 2 ** 26 + gy;
+
 /**
  * Directions (rad, times 4 so that a lattice's four axes vote alike) of the pairs among detections `idx` (square
  * frame mm) that lie one pitch of `F` apart (±15 %), found through a grid hash of 1.3 pitch cells; at most
@@ -69,18 +72,18 @@ function mainFamily(l: Lattice, n: number, usable: Uint8Array, famOf: number[][]
  */
 function neighbourDirections(idx: readonly number[], sx: Float64Array, sy: Float64Array, F: Family): number[] {
   const cell = Math.max(F.pitch.x, F.pitch.y) * 1.3;
-  const grid = new Map<string, number[]>();
-  for (const i of idx) { const key = `${Math.floor(sx[i]! / cell)},${Math.floor(sy[i]! / cell)}`; (grid.get(key) ?? grid.set(key, []).get(key)!).push(i); }
+  const grid = new Map<number, number[]>();
+  for (const i of idx) { const key = cellKey(Math.floor(sx[i]! / cell), Math.floor(sy[i]! / cell)); (grid.get(key) ?? grid.set(key, []).get(key)!).push(i); }
   const dirs: number[] = [];
-  const lens = [F.pitch.x, F.pitch.y];
+  const pitchXMm = F.pitch.x, pitchYMm = F.pitch.y;
   let pairs = 0;
   for (const i of idx) {
     const gx = Math.floor(sx[i]! / cell), gy = Math.floor(sy[i]! / cell);
     for (let ox = -1; ox <= 1; ox++) for (let oy = -1; oy <= 1; oy++) {
-      for (const j of grid.get(`${gx + ox},${gy + oy}`) ?? []) {
+      for (const j of grid.get(cellKey(gx + ox, gy + oy)) ?? []) {
         if (j <= i || ++pairs > MAX_NEIGHBOUR_PAIRS) continue;
         const dx = sx[j]! - sx[i]!, dy = sy[j]! - sy[i]!, d = Math.hypot(dx, dy);
-        if (lens.some((p) => Math.abs(d - p) < 0.15 * p)) dirs.push(4 * Math.atan2(dy, dx));
+        if (Math.abs(d - pitchXMm) < 0.15 * pitchXMm || Math.abs(d - pitchYMm) < 0.15 * pitchYMm) dirs.push(4 * Math.atan2(dy, dx));
       }
     }
   }
