@@ -116,139 +116,226 @@ interface EdgeStats {
 
 const CLIP_HI = 250;
 const CLIP_LO = 3;
+/** Spacing of the samples along a profile across an edge, px. */
+const PROFILE_STEP_PX = 0.25;
+/** Profiles taken across each side of the frame. */
+const PROFILES_PER_SIDE = 48;
+/**
+ * The unit square's sides in the order of target.ts (top, right, bottom, left in the target frame): from corner a to
+ * corner b, with the outward normal nt; unit frame (the target's side = 1).
+ */
+const UNIT_SIDES: { a: [number, number]; b: [number, number]; nt: [number, number] }[] = [
+  { a: [0, 0], b: [1, 0], nt: [0, -1] },
+  { a: [1, 0], b: [1, 1], nt: [1, 0] },
+  { a: [1, 1], b: [0, 1], nt: [0, 1] },
+  { a: [0, 1], b: [0, 0], nt: [-1, 0] },
+];
 
-/** Profiles across the 8 edges of the frame: spread, levels, noise and clipping per edge. */
-function targetEdges(q: QualityInput, corners: Corners): EdgeStats[] {
+/** One profile across an edge: where the edge lies, the levels along it and where it was taken. */
+interface EdgeProfile {
+  /** The edge's position along n from the profile's middle (by area: the dark length from its start), px. */
+  d0: number;
+  /** Linear light (0–1) and encoded grey (0–255) every PROFILE_STEP_PX from −R to +R along n. */
+  prof: Float64Array;
+  enc: Float64Array;
+  /** Fraction of the way along the side (unit frame). */
+  f: number;
+  /** Unit normal in the image, from black to white. */
+  n: [number, number];
+}
+
+/**
+ * Grey along the image-px line P + d·n for d from −R to +R px in steps of PROFILE_STEP_PX: linear light and encoded
+ * (0–255). Null when any sample falls outside the photo.
+ */
+function profileAcross(q: QualityInput, P: [number, number], n: [number, number], R: number): { prof: Float64Array; enc: Float64Array } | null {
   const { grey, width: w, height: h } = q;
-  const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], corners);
+  const m = Math.floor((2 * R) / PROFILE_STEP_PX) + 1;
+  const prof = new Float64Array(m);
+  const enc = new Float64Array(m);
+  let off = false;
+  for (let j = 0; j < m; j++) {
+    const d = -R + j * PROFILE_STEP_PX;
+    const x = P[0] + n[0] * d;
+    const y = P[1] + n[1] * d;
+    if (x < 0 || y < 0 || x > w - 1 || y > h - 1) off = true;
+    const e = sampleGrey(grey, w, h, x, y);
+    enc[j] = e;
+    prof[j] = lin(e);
+  }
+  return off ? null : { prof, enc };
+}
+
+/**
+ * A profile's black and white levels (linear light, means over its first and last 2 px) and its edge by area: the
+ * integral of the normalised darkness (h0 − I)/(h0 − l0) from the profile's start, px. Null below a 0.02 rise.
+ */
+function edgeByArea(prof: Float64Array): { l0: number; h0: number; darkPx: number } | null {
+  const step = PROFILE_STEP_PX;
+  const m = prof.length;
+  const e2 = Math.round(2 / step);
+  let l0 = 0;
+  let h0 = 0;
+  for (let j = 0; j < e2; j++) {
+    l0 += prof[j]!;
+    h0 += prof[m - 1 - j]!;
+  }
+  l0 /= e2;
+  h0 /= e2;
+  if (h0 - l0 < 0.02) return null;
+  let dark = 0;
+  for (let j = 0; j < m - 1; j++) dark += ((h0 - prof[j]!) / (h0 - l0) + (h0 - prof[j + 1]!) / (h0 - l0)) * 0.5 * step;
+  return { l0, h0, darkPx: dark };
+}
+
+/**
+ * Profiles across one edge of the frame, over the middle 70 % of side `side` (outer or inner edge of the stroke),
+ * through U (unit square → image px). R, the profiles' half-length in px, is 0.45 of the stroke's width (3–16 px);
+ * lengthPx the side's length in image px; lo and hi each profile's black and white levels (linear light).
+ */
+function sideProfiles(q: QualityInput, U: Mat3, side: number, outer: boolean): { samples: EdgeProfile[]; lo: number[]; hi: number[]; R: number; lengthPx: number } {
   const F = FRAME_FRACTION;
+  const { a, b, nt } = UNIT_SIDES[side]!;
+  const inset = outer ? 0 : F;
+  // black → white direction in the unit frame: outward for the outer edge, inward for the inner one
+  const dir = outer ? 1 : -1;
+  const K = PROFILES_PER_SIDE;
+  const samples: EdgeProfile[] = [];
+  const lo: number[] = [];
+  const hi: number[] = [];
+  let R = 0;
+  let lengthPx = 0;
+  for (let k = 0; k < K; k++) {
+    const f = 0.15 + (0.7 * k) / (K - 1);
+    const tx = a[0] + (b[0] - a[0]) * f - nt[0] * inset;
+    const ty = a[1] + (b[1] - a[1]) * f - nt[1] * inset;
+    const P = applyH(U, tx, ty);
+    const Pn = applyH(U, tx + dir * nt[0] * 0.01, ty + dir * nt[1] * 0.01);
+    const Pf = applyH(U, tx - dir * nt[0] * F, ty - dir * nt[1] * F);
+    const nl = Math.hypot(Pn[0] - P[0], Pn[1] - P[1]);
+    if (!(nl > 0)) continue;
+    const n: [number, number] = [(Pn[0] - P[0]) / nl, (Pn[1] - P[1]) / nl];
+    const strokePx = Math.hypot(Pf[0] - P[0], Pf[1] - P[1]);
+    if (k === 0) {
+      R = Math.max(3, Math.min(16, 0.45 * strokePx));
+      const A = applyH(U, a[0], a[1]);
+      const B = applyH(U, b[0], b[1]);
+      lengthPx = Math.hypot(B[0] - A[0], B[1] - A[1]);
+    }
+    const across = profileAcross(q, P, n, R);
+    if (!across) continue;
+    const edge = edgeByArea(across.prof);
+    if (!edge) continue;
+    samples.push({ d0: -R + edge.darkPx, prof: across.prof, enc: across.enc, f, n });
+    lo.push(edge.l0);
+    hi.push(edge.h0);
+  }
+  return { samples, lo, hi, R, lengthPx };
+}
+
+/**
+ * The edge spread function averaged over a side, each profile centred on its own edge: normalised darkness
+ * (hiM − I)/(hiM − loM) summed per bin of PROFILE_STEP_PX from −R to +R px (sum) with its count (cnt).
+ */
+interface EdgeSpread {
+  sum: Float64Array;
+  cnt: Float64Array;
+  R: number;
+}
+
+function meanEdgeSpread(samples: EdgeProfile[], R: number, loM: number, hiM: number): EdgeSpread {
+  const step = PROFILE_STEP_PX;
+  const nb = Math.floor((2 * R) / step) + 1;
+  const sum = new Float64Array(nb);
+  const cnt = new Float64Array(nb);
+  for (const smp of samples) {
+    for (let j = 0; j < smp.prof.length; j++) {
+      const d = -R + j * step - smp.d0;
+      const bi = Math.round((d + R) / step);
+      if (bi < 0 || bi >= nb) continue;
+      sum[bi]! += (hiM - smp.prof[j]!) / (hiM - loM);
+      cnt[bi]!++;
+    }
+  }
+  return { sum, cnt, R };
+}
+
+/**
+ * Variance of the line spread (−d(darkness)/dd) about the edge, px², within |d| ≤ limPx (the part of the window every
+ * profile covers). NaN when the spread's area is under 0.5 (no whole edge in the window).
+ */
+function lineSpreadVariance({ sum, cnt, R }: EdgeSpread, limPx: number): number {
+  let g0 = 0;
+  let g2 = 0;
+  for (let bi = 1; bi < sum.length; bi++) {
+    if (!cnt[bi] || !cnt[bi - 1]) continue;
+    const d = -R + (bi - 0.5) * PROFILE_STEP_PX;
+    if (Math.abs(d) > limPx) continue;
+    const g = sum[bi - 1]! / cnt[bi - 1]! - sum[bi]! / cnt[bi]!;
+    g0 += g;
+    g2 += g * d * d;
+  }
+  return g0 > 0.5 ? Math.max(0, g2 / g0) : NaN;
+}
+
+/** Where the mean darkness falls through level lv (from the white end inwards), px along n; NaN if never. */
+function spreadCrossing({ sum, cnt, R }: EdgeSpread, lv: number): number {
+  for (let bi = sum.length - 1; bi > 0; bi--) {
+    if (!cnt[bi] || !cnt[bi - 1]) continue;
+    const a = sum[bi - 1]! / cnt[bi - 1]!;
+    const b = sum[bi]! / cnt[bi]!;
+    if (a >= lv && b < lv) return -R + (bi - 1 + (a - lv) / (a - b)) * PROFILE_STEP_PX;
+  }
+  return NaN;
+}
+
+/**
+ * Shares of clipped samples on a side's profiles: the white (encoded ≥ CLIP_HI over each profile's last 2 px), right
+ * at the edge on its white side (max(1, sdPx) px past it) and the black (≤ CLIP_LO over the first 2 px).
+ */
+function edgeClipping(samples: EdgeProfile[], R: number, sdPx: number): { whiteClipped: number; edgeClipped: number; blackClipped: number } {
+  const step = PROFILE_STEP_PX;
+  let white = 0;
+  let whiteN = 0;
+  let edge = 0;
+  let black = 0;
+  let blackN = 0;
+  for (const smp of samples) {
+    const m = smp.enc.length;
+    for (let j = Math.round(2 / step); j-- > 0; ) {
+      white += smp.enc[m - 1 - j]! >= CLIP_HI ? 1 : 0;
+      black += smp.enc[j]! <= CLIP_LO ? 1 : 0;
+      whiteN++;
+      blackN++;
+    }
+    const at = Math.round((smp.d0 + Math.max(1, sdPx) + R) / step);
+    if (at >= 0 && at < m) edge += smp.enc[at]! >= CLIP_HI ? 1 : 0;
+  }
+  return { whiteClipped: white / whiteN, edgeClipped: edge / samples.length, blackClipped: black / blackN };
+}
+
+/**
+ * Profiles across the 8 edges of the frame (outer sides, then inner; image px through the corners): spread, levels
+ * (linear light), noise and clipping per edge. Edges with fewer than 12 usable profiles are left out.
+ */
+function targetEdges(q: QualityInput, corners: Corners): EdgeStats[] {
+  const U = homographyFrom4([[0, 0], [1, 0], [1, 1], [0, 1]], corners);
   const out: EdgeStats[] = [];
-  const step = 0.25;
   for (const outer of [true, false]) {
     for (let s = 0; s < 4; s++) {
-      // side s of the unit square; its outward normal in the unit frame
-      const a = [[0, 0], [1, 0], [1, 1], [0, 1]][s]!;
-      const b = [[1, 0], [1, 1], [0, 1], [0, 0]][s]!;
-      const nt = [[0, -1], [1, 0], [0, 1], [-1, 0]][s]!;
-      const inset = outer ? 0 : F;
-      // black → white direction in the unit frame: outward for the outer edge, inward for the inner one
-      const dir = outer ? 1 : -1;
-      const K = 48;
-      const samples: { d0: number; prof: Float64Array; enc: Float64Array; f: number; n: [number, number] }[] = [];
-      const lo: number[] = [];
-      const hi: number[] = [];
-      let R = 0;
-      let lengthPx = 0;
-      for (let k = 0; k < K; k++) {
-        const f = 0.15 + (0.7 * k) / (K - 1);
-        const tx = a[0]! + (b[0]! - a[0]!) * f - nt[0]! * inset;
-        const ty = a[1]! + (b[1]! - a[1]!) * f - nt[1]! * inset;
-        const P = applyH(U, tx, ty);
-        const Pn = applyH(U, tx + dir * nt[0]! * 0.01, ty + dir * nt[1]! * 0.01);
-        const Pf = applyH(U, tx - dir * nt[0]! * F, ty - dir * nt[1]! * F);
-        const nl = Math.hypot(Pn[0] - P[0], Pn[1] - P[1]);
-        if (!(nl > 0)) continue;
-        const n: [number, number] = [(Pn[0] - P[0]) / nl, (Pn[1] - P[1]) / nl];
-        const strokePx = Math.hypot(Pf[0] - P[0], Pf[1] - P[1]);
-        if (k === 0) {
-          R = Math.max(3, Math.min(16, 0.45 * strokePx));
-          const A = applyH(U, a[0]!, a[1]!);
-          const B = applyH(U, b[0]!, b[1]!);
-          lengthPx = Math.hypot(B[0] - A[0], B[1] - A[1]);
-        }
-        const m = Math.floor((2 * R) / step) + 1;
-        const prof = new Float64Array(m);
-        const enc = new Float64Array(m);
-        let off = false;
-        for (let j = 0; j < m; j++) {
-          const d = -R + j * step;
-          const x = P[0] + n[0] * d;
-          const y = P[1] + n[1] * d;
-          if (x < 0 || y < 0 || x > w - 1 || y > h - 1) off = true;
-          const e = sampleGrey(grey, w, h, x, y);
-          enc[j] = e;
-          prof[j] = lin(e);
-        }
-        if (off) continue;
-        const e2 = Math.round(2 / step);
-        let l0 = 0;
-        let h0 = 0;
-        for (let j = 0; j < e2; j++) {
-          l0 += prof[j]!;
-          h0 += prof[m - 1 - j]!;
-        }
-        l0 /= e2;
-        h0 /= e2;
-        if (h0 - l0 < 0.02) continue;
-        // edge by area: the dark length from the window's start is the integral of the normalised darkness
-        let dark = 0;
-        for (let j = 0; j < m - 1; j++) dark += ((h0 - prof[j]!) / (h0 - l0) + (h0 - prof[j + 1]!) / (h0 - l0)) * 0.5 * step;
-        samples.push({ d0: -R + dark, prof, enc, f, n });
-        lo.push(l0);
-        hi.push(h0);
-      }
+      const { samples, lo, hi, R, lengthPx } = sideProfiles(q, U, s, outer);
       if (samples.length < 12) continue;
       const loM = median(lo);
       const hiM = median(hi);
-      // the edge spread function, averaged over the side with each profile centred on its own edge
-      const nb = Math.floor((2 * R) / step) + 1;
-      const sum = new Float64Array(nb);
-      const cnt = new Float64Array(nb);
-      for (const smp of samples) {
-        for (let j = 0; j < smp.prof.length; j++) {
-          const d = -R + j * step - smp.d0;
-          const bi = Math.round((d + R) / step);
-          if (bi < 0 || bi >= nb) continue;
-          sum[bi]! += (hiM - smp.prof[j]!) / (hiM - loM);
-          cnt[bi]!++;
-        }
-      }
-      // line spread = −d(darkness)/dd; its variance about the edge, within the part of the window every profile covers
-      const lim = R - Math.max(...samples.map((x) => Math.abs(x.d0))) - 0.5;
-      let g0 = 0;
-      let g2 = 0;
-      for (let bi = 1; bi < nb; bi++) {
-        if (!cnt[bi] || !cnt[bi - 1]) continue;
-        const d = -R + (bi - 0.5) * step;
-        if (Math.abs(d) > lim) continue;
-        const g = sum[bi - 1]! / cnt[bi - 1]! - sum[bi]! / cnt[bi]!;
-        g0 += g;
-        g2 += g * d * d;
-      }
-      const varPx2 = g0 > 0.5 ? Math.max(0, g2 / g0) : NaN;
+      const esf = meanEdgeSpread(samples, R, loM, hiM);
+      const varPx2 = lineSpreadVariance(esf, R - Math.max(...samples.map((x) => Math.abs(x.d0))) - 0.5);
       // the mean rise's 25 % and 75 % levels (darkness falling from 0.75 to 0.25 from black to white)
-      const crossing = (lv: number) => {
-        for (let bi = nb - 1; bi > 0; bi--) {
-          if (!cnt[bi] || !cnt[bi - 1]) continue;
-          const a = sum[bi - 1]! / cnt[bi - 1]!;
-          const b = sum[bi]! / cnt[bi]!;
-          if (a >= lv && b < lv) return -R + (bi - 1 + (a - lv) / (a - b)) * step;
-        }
-        return NaN;
-      };
-      const riseIqPx = crossing(0.25) - crossing(0.75);
-      const sd = Math.sqrt(Number.isFinite(varPx2) ? varPx2 : 1);
-      let white = 0;
-      let whiteN = 0;
-      let edge = 0;
-      let black = 0;
-      let blackN = 0;
-      for (const smp of samples) {
-        const m = smp.enc.length;
-        for (let j = Math.round(2 / step); j-- > 0; ) {
-          white += smp.enc[m - 1 - j]! >= CLIP_HI ? 1 : 0;
-          black += smp.enc[j]! <= CLIP_LO ? 1 : 0;
-          whiteN++;
-          blackN++;
-        }
-        const at = Math.round((smp.d0 + Math.max(1, sd) + R) / step);
-        if (at >= 0 && at < m) edge += smp.enc[at]! >= CLIP_HI ? 1 : 0;
-      }
+      const riseIqPx = spreadCrossing(esf, 0.25) - spreadCrossing(esf, 0.75);
+      const clipped = edgeClipping(samples, R, Math.sqrt(Number.isFinite(varPx2) ? varPx2 : 1));
       // scatter of the edge points about a smooth curve along the side (quadratic in f: a lens bends the side)
-      const fsA = samples.map((x) => x.f);
       const ds = samples.map((x) => x.d0);
-      const edgeSdPx = robustSd(quadraticResiduals(fsA, ds));
-      out.push({ n: samples[0]!.n, varPx2, lengthPx, edgeSdPx, loLin: loM, hiLin: hiM, whiteClipped: white / whiteN, edgeClipped: edge / samples.length, blackClipped: black / blackN, outer, shiftPx: median(ds), riseIqPx });
+      const edgeSdPx = robustSd(quadraticResiduals(samples.map((x) => x.f), ds));
+      out.push({ n: samples[0]!.n, varPx2, lengthPx, edgeSdPx, loLin: loM, hiLin: hiM, ...clipped, outer, shiftPx: median(ds), riseIqPx });
     }
   }
   return out;
@@ -289,13 +376,23 @@ interface HoleStats {
   diameterPx: number;
 }
 
-/** Dark blobs of a family's size on the reduced image, away from the target sheet and the border. */
-async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: number; y: number; dMm: number }[]; atBorder: number }> {
+/** A connected dark blob on the reduced image: bounding box and area in reduced px, centroid in full-resolution px. */
+interface DarkBlob {
+  left: number;
+  top: number;
+  widthPx: number;
+  heightPx: number;
+  area: number;
+  x: number;
+  y: number;
+}
+
+/**
+ * Blobs of the reduced image darker than 0.55 of its median level (8-connected, at least 6 reduced px), their
+ * centroids mapped to full-resolution image px (pixel centres at integers).
+ */
+async function darkBlobs(q: QualityInput): Promise<DarkBlob[]> {
   const { small, factor } = q;
-  const Hi = invertHomography(H);
-  const S = q.referenceMm;
-  const k = q.pattern.units === 'in' ? 25.4 : 1;
-  const fams = q.pattern.families.map((f) => f.holeDiameter * k);
   const thr = 0.55 * medianLevel(small.data, 5);
   const bin = new Uint8Array(small.data.length);
   for (let i = 0; i < bin.length; i++) bin[i] = small.data[i]! < thr ? 255 : 0;
@@ -304,39 +401,15 @@ async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: n
   const labels = new cv.Mat() as CvMat;
   const stats = new cv.Mat() as CvMat;
   const cents = new cv.Mat() as CvMat & { data64F: Float64Array };
-  const cands: { x: number; y: number; dMm: number; area: number }[] = [];
-  let atBorder = 0;
+  const blobs: DarkBlob[] = [];
   try {
     const n = cv.connectedComponentsWithStats(src, labels, stats, cents, 8, cv.CV_32S) as number;
     const st = stats.data32S;
     const ce = cents.data64F;
     for (let i = 1; i < n; i++) {
-      const [l, t, bw, bh, area] = [st[5 * i]!, st[5 * i + 1]!, st[5 * i + 2]!, st[5 * i + 3]!, st[5 * i + 4]!];
+      const [left, top, widthPx, heightPx, area] = [st[5 * i]!, st[5 * i + 1]!, st[5 * i + 2]!, st[5 * i + 3]!, st[5 * i + 4]!];
       if (area < 6) continue;
-      const x = ce[2 * i]! * factor + (factor - 1) / 2;
-      const y = ce[2 * i + 1]! * factor + (factor - 1) / 2;
-      const p = applyH(Hi, x, y);
-      // the sheet around the target (up to A4 paper) is no place for holes
-      if (p[0] > -0.6 * S && p[0] < 1.6 * S && p[1] > -0.6 * S && p[1] < 1.6 * S) continue;
-      const s = homographyScale(H, p[0], p[1]) / factor; // reduced px per mm
-      if (!(s > 0)) continue;
-      const aspect = Math.max(bw, bh) / Math.max(1, Math.min(bw, bh));
-      let best = -1;
-      let err = Infinity;
-      for (const d of fams) {
-        const e = Math.abs(Math.log(area / (Math.PI * ((d * s) / 2) ** 2)));
-        if (e < err) {
-          err = e;
-          best = d;
-        }
-      }
-      const border = l <= 0 || t <= 0 || l + bw >= small.width || t + bh >= small.height;
-      if (border) {
-        if (aspect < 3 && err < Math.log(3)) atBorder++;
-        continue;
-      }
-      if (aspect > 3.5 || err > Math.log(3)) continue;
-      cands.push({ x, y, dMm: best, area });
+      blobs.push({ left, top, widthPx, heightPx, area, x: ce[2 * i]! * factor + (factor - 1) / 2, y: ce[2 * i + 1]! * factor + (factor - 1) / 2 });
     }
   } finally {
     src.delete();
@@ -344,12 +417,67 @@ async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: n
     stats.delete();
     cents.delete();
   }
-  // a sample spread over the photo, the largest family first (its rims are longest)
+  return blobs;
+}
+
+/**
+ * The family diameter (mm) whose disc, at `pxPerMm` reduced px per mm, best matches a blob's area (reduced px²), and
+ * the mismatch |ln(area / disc area)|.
+ */
+function nearestFamily(area: number, pxPerMm: number, diametersMm: number[]): { dMm: number; logAreaErr: number } {
+  let best = -1;
+  let err = Infinity;
+  for (const d of diametersMm) {
+    const e = Math.abs(Math.log(area / (Math.PI * ((d * pxPerMm) / 2) ** 2)));
+    if (e < err) {
+      err = e;
+      best = d;
+    }
+  }
+  return { dMm: best, logAreaErr: err };
+}
+
+/**
+ * Up to 48 candidates spread over the photo: the largest family's alone when it has 12 or more (its rims are longest),
+ * sorted by size, then y, then x (image px), every stride-th kept.
+ */
+function spreadSample<T extends { x: number; y: number; dMm: number }>(cands: T[]): T[] {
   cands.sort((a, b) => b.dMm - a.dMm || a.y - b.y || a.x - b.x);
   const big = cands.filter((c) => c.dMm === cands[0]?.dMm);
   const pool = big.length >= 12 ? big : cands;
   const stride = Math.max(1, Math.floor(pool.length / 48));
-  return { cands: pool.filter((_, i) => i % stride === 0).slice(0, 48), atBorder };
+  return pool.filter((_, i) => i % stride === 0).slice(0, 48);
+}
+
+/**
+ * Dark blobs of a family's size on the reduced image, away from the target sheet and the border: centres in image
+ * px with the family's diameter in mm (H: target mm → image px), and the count of hole-like blobs cut by the border.
+ */
+async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: number; y: number; dMm: number }[]; atBorder: number }> {
+  const { small, factor } = q;
+  const Hi = invertHomography(H);
+  const S = q.referenceMm;
+  const k = q.pattern.units === 'in' ? 25.4 : 1;
+  const fams = q.pattern.families.map((f) => f.holeDiameter * k);
+  const cands: { x: number; y: number; dMm: number; area: number }[] = [];
+  let atBorder = 0;
+  for (const { left: l, top: t, widthPx: bw, heightPx: bh, area, x, y } of await darkBlobs(q)) {
+    const p = applyH(Hi, x, y);
+    // the sheet around the target (up to A4 paper) is no place for holes
+    if (p[0] > -0.6 * S && p[0] < 1.6 * S && p[1] > -0.6 * S && p[1] < 1.6 * S) continue;
+    const s = homographyScale(H, p[0], p[1]) / factor; // reduced px per mm
+    if (!(s > 0)) continue;
+    const aspect = Math.max(bw, bh) / Math.max(1, Math.min(bw, bh));
+    const { dMm: best, logAreaErr: err } = nearestFamily(area, s, fams);
+    const border = l <= 0 || t <= 0 || l + bw >= small.width || t + bh >= small.height;
+    if (border) {
+      if (aspect < 3 && err < Math.log(3)) atBorder++;
+      continue;
+    }
+    if (aspect > 3.5 || err > Math.log(3)) continue;
+    cands.push({ x, y, dMm: best, area });
+  }
+  return { cands: spreadSample(cands), atBorder };
 }
 
 /** Darkness moments of one hole at full resolution, less a disc's seen through the target's perspective. */
