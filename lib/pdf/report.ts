@@ -10,7 +10,7 @@
  * bottom. Lengths print in mm, or in inches when `units` is 'in'.
  */
 import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB } from 'pdf-lib';
-import { MM_PER_IN, type Report, type Verdict } from '@/lib/geometry/contract';
+import { type Report, type Verdict } from '@/lib/geometry/contract';
 import { distanceSentence } from '@/lib/report/distances';
 import { bandRadiusMm } from '@/lib/geometry/band';
 import { headline, shapeLine } from '@/lib/report/headline';
@@ -235,11 +235,9 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   const bold = await doc.embedFont(StandardFonts.HelveticaBold);
   const f = new Flow(doc, opts.paper ?? 'a4', regular, bold);
   const inch = opts.units === 'in';
-  const len = (mm: number, digits = 3) => (inch ? `${(mm / MM_PER_IN).toFixed(digits + 1)} in` : `${mm.toFixed(digits)} mm`);
-  const signed = (mm: number) => {
-    const v = inch ? mm / MM_PER_IN : mm;
-    return `${v >= 0 ? '+' : '-'}${Math.abs(v).toFixed(inch ? 4 : 3)}`;
-  };
+  // table cells: the web's resolution (lib/report/units), the unit in the column heading
+  const cell = (mm: number) => formatLength(mm, inch ? 'in' : 'mm', { suffix: false });
+  const signed = (mm: number) => formatLength(mm, inch ? 'in' : 'mm', { signed: true, suffix: false });
   const unitName = inch ? 'in' : 'mm';
 
   // Header
@@ -292,7 +290,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
     scaleLine('Scale along Y', lat.scaleY, u.scaleY),
     lat.squarenessDeg === null ? 'Squareness: not measured.' : `Squareness (departure of the X and Y rows from 90°): ${formatAngle(lat.squarenessDeg, { signed: true, sigmaDeg: u.squarenessDeg })}.`,
     ...(lat.observed ? [] : [`Scale and squareness could not be measured${lat.reason ? `: ${lat.reason}` : '.'}`]),
-    ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => len(mm, 2))),
+    ...(report.distances ?? []).map((d) => distanceSentence(d, (mm) => formatLength(mm, unit))),
     ...(lat.shapeCheck && lat.shapeCheck.worstMm !== null && lat.shapeCheck.uncertaintyMm !== null
       ? [`Overall size and squareness move a position by up to ${formatLength(lat.shapeCheck.worstMm, unit)} ± ${formatLength(bandRadiusMm(lat.shapeCheck.uncertaintyMm), unit)} (95 %) against ${formatLength(lat.shapeCheck.toleranceMm, unit)} allowed: ${lat.shapeCheck.verdict === 'in' ? 'within tolerance' : lat.shapeCheck.verdict === 'out' ? 'out of tolerance' : 'too close to call with this reference'}.`]
       : []),
@@ -333,7 +331,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
         { title: `± ${unitName}`, width: 40, align: 'right' },
         { title: 'Correcting move', width: 230, wrap: true },
       ],
-      report.panels.map((q) => [q.id, signed(q.dx), signed(q.dy), formatAngle(q.rotationDeg, { signed: true, suffix: false }), String(q.positions), len(q.uncertaintyMm, 3).replace(/ (mm|in)$/, ''), q.correction]),
+      report.panels.map((q) => [q.id, signed(q.dx), signed(q.dy), formatAngle(q.rotationDeg, { signed: true, suffix: false }), String(q.positions), cell(q.uncertaintyMm), q.correction]),
     );
   }
   if (report.seams.length) {
@@ -347,7 +345,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
         { title: `Step ${unitName}`, width: 60, align: 'right' },
         { title: `± ${unitName}`, width: 60, align: 'right' },
       ],
-      report.seams.map((m) => [`${m.a} / ${m.b}`, signed(m.dx), signed(m.dy), len(m.r).replace(/ (mm|in)$/, ''), len(m.uncertaintyMm).replace(/ (mm|in)$/, '')]),
+      report.seams.map((m) => [`${m.a} / ${m.b}`, signed(m.dx), signed(m.dy), cell(m.r), cell(m.uncertaintyMm)]),
     );
   }
 
@@ -378,8 +376,8 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
       flagged.slice(0, maxRows).map((q) => [
         q.label, q.family, q.panel ?? '',
         q.deviation ? signed(q.deviation.dx) : '', q.deviation ? signed(q.deviation.dy) : '',
-        q.deviation ? len(q.deviation.r).replace(/ (mm|in)$/, '') : '', len(q.toleranceMm).replace(/ (mm|in)$/, ''), MARK_WORD[q.verdict],
-        q.form ? len(q.form.r).replace(/ (mm|in)$/, '') : '', q.form ? MARK_WORD[q.form.verdict] : '',
+        q.deviation ? cell(q.deviation.r) : '', cell(q.toleranceMm), MARK_WORD[q.verdict],
+        q.form ? cell(q.form.r) : '', q.form ? MARK_WORD[q.form.verdict] : '',
       ]),
     );
     if (flagged.length > maxRows) f.paragraph(`… and ${flagged.length - maxRows} more (see the report online).`, { color: MUTED });

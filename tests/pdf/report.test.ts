@@ -95,6 +95,17 @@ describe('report PDF', () => {
     expect(dogCount).toBe(dogs.length);
   });
 
+  it('writes the panel and seam tables to 0.01 mm, as the web report does', async () => {
+    const pages = await allPages(await renderReportPdf(buildReport(), { workshopName: 'W' }));
+    const cells = pages.flatMap((p) => p.texts.map((t) => t.text));
+    // the fixture's seam P1 / P2: dX 0.117, dY −0.047, off 0.126, ± 0.008 mm → rounded by hand to 0.01 mm
+    // (lib/report/units: 0.01 mm on every surface), the minus drawn as '-' in Helvetica
+    for (const c of ['+0.12', '-0.05', '0.13', '0.01']) expect(cells).toContain(c);
+    // panel P2: dX 0.121, dY −0.049, ± 0.006 mm
+    expect(cells.filter((c) => c === '+0.12').length).toBeGreaterThanOrEqual(2);
+    for (const raw of ['0.117', '0.126', '0.008', '0.121', '0.006', '+0.117']) expect(cells).not.toContain(raw);
+  });
+
   it('prints lengths in inches when asked', async () => {
     const report = buildReport();
     const text = textOf(await allPages(await renderReportPdf(report, { workshopName: 'W', units: 'in' })));
