@@ -24,7 +24,7 @@ export function positionReach(q: PhotoQuality): { plusMinusMm: number; clearance
 export function qualityHeadline(q: PhotoQuality): string {
   const reach = positionReach(q);
   if (!reach) return 'This photo cannot be measured.';
-  const can = `This photo can judge positions to ±${mm(reach.plusMinusMm)} mm: good for clearances of ${mm(reach.clearanceMm)} mm and more`;
+  const can = `This photo can judge positions to ± ${mm(reach.plusMinusMm)} mm: good for clearances of ${mm(reach.clearanceMm)} mm and more`;
   if (!q.issues.length) return `${can}.`;
   return `${can}, if its ${q.issues.length === 1 ? 'problem does' : `${q.issues.length} problems do`} not spoil it.`;
 }
@@ -33,5 +33,5 @@ export function qualityHeadline(q: PhotoQuality): string {
 export function scaleLine(q: PhotoQuality): string | null {
   if (!q.predicted) return null;
   const ppm = 2 * q.predicted.scalePpm;
-  return `Overall size to ±${Math.max(1, Math.round(ppm))} ppm (±${(ppm * 1e-3).toFixed(2)} mm per metre) from the reference square.`;
+  return `Overall size to ± ${Math.max(1, Math.round(ppm))} ppm (± ${(ppm * 1e-3).toFixed(2)} mm per metre) from the reference square.`;
 }

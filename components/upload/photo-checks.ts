@@ -64,9 +64,9 @@ export function photoChecks(f: PhotoFacts, bed: BedSize | null): PhotoCheck[] {
     const r = reachFromSize(f.width, f.height, bed);
     const size = `This photo is ${f.width} × ${f.height} px`;
     if (r.holePx < MIN_HOLE_PX) {
-      out.push({ code: 'resolution', level: 'warn', text: `${size}: with the whole bed in the frame the ${bed.smallestHoleMm} mm holes come out only about ${r.holePx.toFixed(0)} px across (at least ${MIN_HOLE_PX} are wanted), and positions can be judged to about ±${mmText(r.plusMinusMm)} mm at best. Step closer or use the full-resolution photo.` });
+      out.push({ code: 'resolution', level: 'warn', text: `${size}: with the whole bed in the frame the ${bed.smallestHoleMm} mm holes come out only about ${r.holePx.toFixed(0)} px across (at least ${MIN_HOLE_PX} are wanted), and positions can be judged to about ± ${mmText(r.plusMinusMm)} mm at best. Step closer or use the full-resolution photo.` });
     } else {
-      out.push({ code: 'resolution', level: r.plusMinusMm > 0.1 ? 'note' : 'ok', text: `${size}: with the whole bed in the frame, positions can be judged to about ±${mmText(r.plusMinusMm)} mm at best (holes about ${r.holePx.toFixed(0)} px across).${r.plusMinusMm > 0.1 ? ' For tighter clearances, step closer or use the full-resolution photo.' : ''}` });
+      out.push({ code: 'resolution', level: r.plusMinusMm > 0.1 ? 'note' : 'ok', text: `${size}: with the whole bed in the frame, positions can be judged to about ± ${mmText(r.plusMinusMm)} mm at best (holes about ${r.holePx.toFixed(0)} px across).${r.plusMinusMm > 0.1 ? ' For tighter clearances, step closer or use the full-resolution photo.' : ''}` });
     }
   } else {
     out.push({ code: 'resolution', level: 'ok', text: `This photo is ${f.width} × ${f.height} px.` });

@@ -85,20 +85,20 @@ describe('photo check in the browser', () => {
       const g = await uploadAndFollow(page, bedId, good, w, 'photo-quality-good');
       // in the browser: the decoded size, the type, the orientation and the focal length from EXIF
       expect(g.precheck.resolution).toContain(`This photo is ${width} × ${height} px`);
-      expect(g.precheck.resolution).toMatch(/positions can be judged to about ±\d/);
+      expect(g.precheck.resolution).toMatch(/positions can be judged to about ± \d/);
       expect(g.precheck.type).toContain('JPEG');
       expect(g.precheck.orientation).toBe('ok');
       expect(g.precheck.focal.level).toBe('ok');
       expect(g.precheck.focal.text).toContain('26 mm equivalent');
       // after the upload: no problem, and what the photo can judge
       expect(g.issues).toBe('');
-      expect(g.headline).toMatch(/^This photo can judge positions to ±\d+\.\d+ mm: good for clearances of \d+\.\d+ mm and more\.$/);
+      expect(g.headline).toMatch(/^This photo can judge positions to ± \d+\.\d+ mm: good for clearances of \d+\.\d+ mm and more\.$/);
       expect(g.note).toBeNull();
 
       const s = await uploadAndFollow(page, bedId, bright, w, 'photo-quality-bright');
       expect(s.precheck.focal.level).toBe('note');
       expect(s.issues.split(' ')).toContain('overexposed');
-      expect(s.headline).toMatch(/can judge positions to ±\d+\.\d+ mm/);
+      expect(s.headline).toMatch(/can judge positions to ± \d+\.\d+ mm/);
       await expect.poll(() => page.getByTestId('photo-quality').first().textContent()).toMatch(/Switch off the flash/);
       // measured anyway, and the report says plainly that its figures carry the problem
       expect(s.note).toMatch(/over-exposure\. These figures carry it/);

@@ -19,7 +19,7 @@ describe('photo-quality words', () => {
     const r = positionReach(q(0.03))!;
     expect(r.plusMinusMm).toBeCloseTo(0.06, 12);
     expect(r.clearanceMm).toBeCloseTo(0.24, 12);
-    expect(qualityHeadline(q(0.03))).toContain('±0.060 mm');
+    expect(qualityHeadline(q(0.03))).toContain('± 0.060 mm');
     expect(qualityHeadline(q(0.03))).toContain('0.24 mm and more');
   });
   it('says a photo without a target cannot be measured, and counts the problems of one with issues', () => {

@@ -23,7 +23,7 @@ describe('in-browser photo checks', () => {
   it('says a full-resolution 12 MP photo of a 1.3 m bed is fine, and gives its ±', () => {
     const c = by(facts({}), 'resolution');
     expect(c.level).toBe('ok');
-    expect(c.text).toMatch(/^This photo is 4000 × 3000 px: .*±0\.0[0-9]+ mm/);
+    expect(c.text).toMatch(/^This photo is 4000 × 3000 px: .*± 0\.0[0-9]+ mm/);
   });
 
   it('warns when a downscaled 1600 × 1200 copy leaves the holes under the limit, and says what to do', () => {
