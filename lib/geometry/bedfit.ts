@@ -143,19 +143,6 @@ export function toLattice(m: BedModel, u: number, v: number): [number, number] {
   return applyH(m.Hinv, x, y);
 }
 
-/**
- * How far the centroid of the image of a round hole lies from the image of its centre, px (image x, y): the hole of
- * radius `radiusMm` at lattice point (x, y) mm through H (lattice mm → undistorted px) and the lens. Perspective and
- * radial distortion bend the disc into a shape whose centroid — what a centroid or an ellipse fit measures — is moved
- * by about R² times the map's curvature: 0.02–0.05 px for a 20 mm hole at 0.38 mm/px with k1 = ±0.05, growing with
- * the distance from the image centre like a scale error of 20–50 ppm in that family's centres (discImageCentroidPx).
- */
-export function centroidShiftPx(H: Mat3, lens: Lens, x: number, y: number, radiusMm: number): [number, number] {
-  const out = new Float64Array(2);
-  centroidShiftInto(imageMap(H, lens), x, y, radiusMm, out);
-  return [out[0]!, out[1]!];
-}
-
 type ImageMap = (x: number, y: number, o: Float64Array) => void;
 
 /** Lattice mm → image px through H (lattice mm → undistorted px, applyH) and the lens (distortPx), into `o`. */
@@ -169,8 +156,15 @@ function imageMap(H: Mat3, lens: Lens): ImageMap {
   };
 }
 
-/** centroidShiftPx through the image map `img` (imageMap), px, into `out`. */
-function centroidShiftInto(img: ImageMap, x: number, y: number, radiusMm: number, out: Float64Array): void {
+/**
+ * How far the centroid of the image of a round hole lies from the image of its centre, px (image x, y), into `out`:
+ * the hole of radius `radiusMm` at lattice point (x, y) mm through `img` (imageMap: H, lattice mm → undistorted px,
+ * and the lens). Perspective and radial distortion bend the disc into a shape whose centroid — what a centroid or an
+ * ellipse fit measures — is moved by about R² times the map's curvature: 0.02–0.05 px for a 20 mm hole at 0.38 mm/px
+ * with k1 = ±0.05, growing with the distance from the image centre like a scale error of 20–50 ppm in that family's
+ * centres (discImageCentroidInto).
+ */
+function centroidShiftPx(img: ImageMap, x: number, y: number, radiusMm: number, out: Float64Array): void {
   img(x, y, out);
   const u0 = out[0]!, v0 = out[1]!;
   discImageCentroidInto(img, x, y, radiusMm, out);
@@ -190,7 +184,7 @@ export function holeToLatticeMap(m: BedModel): (u: number, v: number, radiusMm: 
   const img = imageMap(m.H, m.lens), d = new Float64Array(2);
   return (u, v, radiusMm) => {
     const [x, y] = toLattice(m, u, v);
-    centroidShiftInto(img, x, y, radiusMm, d);
+    centroidShiftPx(img, x, y, radiusMm, d);
     return toLattice(m, u - d[0]!, v - d[1]!);
   };
 }
@@ -445,7 +439,7 @@ export function fitBed(inp: BedFitInput): BedModel {
     const Hn: Mat3 = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!, t[5]!, t[6]!, t[7]!, 1];
     const img = imageMap(mat3Mul(mat3Inv(Ti), mat3Mul(Hn, Tb)), { ...inp.lens, k1: t[PARAM.k1]!, k2: t[PARAM.k2]! });
     const d = new Float64Array(2);
-    for (let k = 0; k < n; k++) { centroidShiftInto(img, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!, d); shift[2 * k] = d[0]!; shift[2 * k + 1] = d[1]!; }
+    for (let k = 0; k < n; k++) { centroidShiftPx(img, inp.nominal[2 * k]!, inp.nominal[2 * k + 1]!, inp.radiusMm[k]!, d); shift[2 * k] = d[0]!; shift[2 * k + 1] = d[1]!; }
   };
   const { at, evalMatch, J, cols } = matchModel(inp, layout, Tb, Ti, fitK, shift);
 
