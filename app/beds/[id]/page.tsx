@@ -3,18 +3,17 @@ import Link from 'next/link';
 import { getDb } from '@/db/client';
 import { AppShell } from '@/components/AppShell';
 import { BedActions } from '@/components/BedActions';
+import { BedChecksTable } from '@/components/BedChecksTable';
 import { SafetyNote } from '@/components/SafetyNote';
 import { Verdict } from '@/components/Verdict';
 import { requireActor } from '@/lib/auth/session';
 import { can } from '@/lib/services/actor';
 import { getBed } from '@/lib/services/beds';
 import { orNotFound } from '@/lib/http/not-found';
-import { formatUtc } from '@/lib/dates';
 import { HOLE_KIND_NAME } from '@/lib/geometry/labels';
 
 export const metadata: Metadata = { title: 'Bed' };
 
-const fmt = (n: number | null | undefined, digits = 2) => (n === null || n === undefined ? '—' : n.toFixed(digits));
 
 export default async function BedPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
@@ -80,24 +79,7 @@ export default async function BedPage({ params }: { params: Promise<{ id: string
           {checks.length === 0 ? (
             <p>No checks yet. Lay the reference square on the bed with the machine off, take one photo from straight above, and upload it with “Check from a photo”.</p>
           ) : (
-            <div className="overflow-x-auto">
-              <table className="w-full text-left">
-                <thead>
-                  <tr className="border-b-2 border-line"><th className="py-2 pr-4">When</th><th className="pr-4">Result</th><th className="pr-4">RMS, mm</th><th className="pr-4">Worst, mm</th><th>Out</th></tr>
-                </thead>
-                <tbody>
-                  {checks.map((c) => (
-                    <tr key={c.id} className="border-b border-line">
-                      <td className="py-2 pr-4"><Link href={`/checks/${c.id}`} className="underline">{c.title ? <strong>{c.title}<br /></strong> : null}{formatUtc(c.createdAt)}</Link></td>
-                      <td className="pr-4"><Verdict status={c.status} verdict={c.verdict} /></td>
-                      <td className="pr-4 font-mono">{fmt(c.rmsMm)}</td>
-                      <td className="pr-4 font-mono">{fmt(c.maxMm)}</td>
-                      <td className="font-mono">{c.outCount ?? '—'}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
+            <BedChecksTable checks={checks} unit={actor.user.units} />
           )}
         </section>
 
