@@ -5,7 +5,7 @@
  * API), so the shared page renders it on the server.
  */
 import type { Report } from '@/lib/geometry/contract';
-import { headline, shapeLine } from '@/lib/report/headline';
+import { headlineUnderVerdict, shapeLine } from '@/lib/report/headline';
 import { formatLength, type LengthUnit } from '@/lib/report/units';
 import { BED_VERDICT_MARK, BED_VERDICT_WORD, figureCards, reportCounts } from '@/lib/report/words';
 import { MarkIcon, markVar } from './Mark';
@@ -19,7 +19,7 @@ export function VerdictBox({ report, unit, title, heading: H = 'h2' }: { report:
     <section className="rounded-xl border-4 bg-card p-5" style={{ borderColor: markVar(mark) }} aria-label="Verdict" data-verdict={s.verdict} data-mark={mark}>
       <p className="text-sm font-bold uppercase tracking-wide text-muted">{title}</p>
       <H className="mt-1 flex items-center gap-2 text-3xl font-bold"><MarkIcon mark={mark} size={30} /><span data-testid="verdict-word">{BED_VERDICT_WORD[s.verdict]}</span></H>
-      <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{headline(report, unit)}</p>
+      <p className="mt-2 text-xl font-bold leading-snug text-ink" data-testid="verdict-sentence">{headlineUnderVerdict(report, unit)}</p>
       {shape && <p className="mt-1 leading-snug text-ink" data-testid="shape-sentence">{shape}</p>}
     </section>
   );

@@ -13,7 +13,7 @@ import { PDFDocument, StandardFonts, rgb, type PDFFont, type PDFPage, type RGB }
 import { type Report, type Verdict } from '@/lib/geometry/contract';
 import { distanceSentence } from '@/lib/report/distances';
 import { bandRadiusMm } from '@/lib/geometry/band';
-import { headline, shapeLine } from '@/lib/report/headline';
+import { headlineUnderVerdict, shapeLine } from '@/lib/report/headline';
 import { mapGeometry, markRadiusMm, nearestSpacing } from '@/lib/report/map';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { hexToRgb01, MARKS, markLayers, POSITION_MARKS, type Mark } from '@/lib/report/palette';
@@ -254,7 +254,7 @@ export async function renderReportPdf(report: Report, opts: ReportPdfOptions): P
   const shape = shapeLine(report, unit);
   f.y -= 10;
   const note = opts.photoNote !== undefined ? opts.photoNote : photoNote(report.photo?.quality);
-  const sentenceLines = [...wrapText(regular, headline(report, unit), 10, f.textWidth - 20), ...(shape ? wrapText(regular, shape, 10, f.textWidth - 20) : [])];
+  const sentenceLines = [...wrapText(regular, headlineUnderVerdict(report, unit), 10, f.textWidth - 20), ...(shape ? wrapText(regular, shape, 10, f.textWidth - 20) : [])];
   // the photo's problems, if any, in bold inside the verdict box: its figures carry them
   const noteLines = note ? wrapText(bold, note, 10, f.textWidth - 20) : [];
   const boxH = 22 + (sentenceLines.length + noteLines.length) * 13 + (noteLines.length ? 4 : 0);

@@ -10,7 +10,7 @@ import type { Comparison } from '@/lib/geometry/compare';
 import type { Report } from '@/lib/geometry/contract';
 import { panelCornerShift, shapeSentence, verdictSentence, type LengthWriter } from '@/lib/geometry/verdict';
 import { formatLength, type LengthUnit } from './units';
-import { reportCounts } from './words';
+import { BED_VERDICT_WORD, reportCounts } from './words';
 
 /**
  * Where each panel stands (by its id): `reseat` when it sits off, its corners moving more than half the tightest
@@ -48,6 +48,18 @@ const writer = (unit: LengthUnit): LengthWriter => (mm, opts) => formatLength(mm
 export function headline(report: Report, unit: LengthUnit): string {
   const c = reportCounts(report);
   return verdictSentence({ verdict: report.summary.verdict, positions: report.positions, shape: report.lattice.shapeCheck, reseat: panelsToReseat(report), unseen: c.missing, expected: c.inView }, writer(unit));
+}
+
+/**
+ * The headline for a surface that shows the verdict word above it as a heading (the report and shared pages, the
+ * PDF): without its leading "Fail: " / "Pass: " / "Marginal: ", so the word is not said twice; first letter capital.
+ */
+export function headlineUnderVerdict(report: Report, unit: LengthUnit): string {
+  const full = headline(report, unit);
+  const lead = `${BED_VERDICT_WORD[report.summary.verdict]}: `;
+  if (!full.startsWith(lead)) return full;
+  const rest = full.slice(lead.length);
+  return rest.charAt(0).toUpperCase() + rest.slice(1);
 }
 
 /** The overall size and squareness line in `unit`, or null when the report has none (older reports). */

@@ -128,8 +128,12 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     expect(want.counts.hidden).toBeGreaterThan(0);
     const word = BED_VERDICT_WORD[stored.summary.verdict];
     const headline = web.headline!;
-    // in mm the headline is the measurement core's own sentence
-    expect(headline).toBe(stored.summary.sentence);
+    // in mm the headline is the measurement core's own sentence; on a page and in the PDF its opening verdict word
+    // stands as the heading above it, so the line under it goes on without saying the word again
+    const sentence = stored.summary.sentence;
+    expect(sentence.startsWith(`${word}: `)).toBe(true);
+    const rest = sentence.slice(word.length + 2);
+    expect(headline).toBe(rest.charAt(0).toUpperCase() + rest.slice(1));
     // the headline counts what the cards count: the positions out, and those too close to call, on the whole bed
     // (one position "is", several "are": English subject–verb agreement)
     const are = (n: number) => (n === 1 ? 'is' : 'are');
@@ -183,11 +187,10 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
 
     // the mail: its words and counts, and its map
     expect(mail!.subject).toContain(`(${word.toLowerCase()})`);
-    expect(mail!.text).toContain(`Verdict: ${headline}`);
+    expect(mail!.text).toContain(`Verdict: ${sentence}`);
     expect(mail!.text).toContain(`Measured ${counts}`);
     // the mail's coloured verdict word is the headline's own opening word, not a second copy of it
-    expect(headline.startsWith(`${word}: `)).toBe(true);
-    expect(mail!.html).toContain(`>${word}:</strong> ${escapeHtml(headline.slice(word.length + 2))}`);
+    expect(mail!.html).toContain(`>${word}:</strong> ${escapeHtml(rest)}`);
     expect(mail!.html).toContain(`color:${MARKS[BED_VERDICT_MARK[stored.summary.verdict]].colour}`);
     const images = [...mail!.html!.matchAll(/src="data:image\/png;base64,([^"]+)"/g)].map((m) => Buffer.from(m[1]!, 'base64'));
     const map = images.find((b) => b.length > 2000)!;
@@ -262,7 +265,9 @@ describe('one check on screen, as PDF, in the mail and through a share link', ()
     const worst = stored.positions.filter((p) => p.verdict === 'out').sort((a, b) => b.deviation!.r - a.deviation!.r)[0]!;
     expect(headline).toContain(`${worst.label}, ${(worst.deviation!.r / 25.4).toFixed(4)} in off`);
     expect(shared.headline).toBe(headline);
-    expect(mail!.text).toContain(`Verdict: ${headline}`);
+    // the mail keeps the verdict word at the start of its line (lib/mail/templates.ts), the same words after it
+    const word = BED_VERDICT_WORD[stored.summary.verdict];
+    expect(mail!.text).toContain(`Verdict: ${word}: ${headline.charAt(0).toLowerCase()}${headline.slice(1)}`);
     for (const w of headline.split(' ')) expect(pdfText).toContain(w);
     const largest = `Largest ${(stored.summary.maxMm / 25.4).toFixed(4)} in`;
     expect(web.cards.Largest).toBe(largest.replace('Largest ', ''));

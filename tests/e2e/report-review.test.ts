@@ -14,6 +14,7 @@ import type { Page } from 'playwright-core';
 import { beforeAll, describe, expect, inject, it } from 'vitest';
 import { presetById } from '@/lib/geometry';
 import type { Report } from '@/lib/geometry/contract';
+import { headlineUnderVerdict } from '@/lib/report/headline';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo';
 import { Client } from './client';
 import { renderPhoto, SHOTS, signInThroughForm, setUpMeasuringBrowser, shootWidths } from './session';
@@ -74,7 +75,7 @@ describe('report, review and comparison in the browser', () => {
     // 1. The report: the verdict sentence, then the table filtered to the positions out of tolerance.
     await page.goto(`${baseUrl}/checks/${before}/report`);
     await page.getByTestId('check-report').waitFor();
-    expect((await page.getByTestId('verdict-sentence').textContent())!.trim()).toBe(report.summary.sentence);
+    expect((await page.getByTestId('verdict-sentence').textContent())!.trim()).toBe(headlineUnderVerdict(report, 'mm'));
     await page.waitForTimeout(500);
     await shootWidths(page, 'report', 1280);
     const rows = page.getByTestId('positions-table').locator('tbody tr');

@@ -21,6 +21,7 @@ import { checks, shareLinks } from '@/db/schema';
 import { analyzePoints } from '@/lib/geometry';
 import type { Pattern } from '@/lib/geometry/contract';
 import { makeScene } from '@/lib/geometry/synthetic';
+import { headlineUnderVerdict } from '@/lib/report/headline';
 import { DEMO_LOGINS, DEMO_PASSWORD, DEMO_WORKSHOP_NAME } from '@/lib/services/demo-accounts';
 import { Client } from './client';
 
@@ -43,6 +44,8 @@ let checkId: string;
 let shareUrl: string;
 let linkId: string;
 let sentence: string;
+/** The sentence as the page shows it under the verdict word (without the word again). */
+let shownSentence: string;
 let shapeSentence: string | undefined;
 
 beforeAll(async () => {
@@ -67,6 +70,7 @@ beforeAll(async () => {
   const scene = makeScene({ pattern: PATTERN, seed: 11, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 150, y: 330, angleDeg: 5 } });
   const report = analyzePoints(scene.points, PATTERN);
   sentence = report.summary.sentence;
+  shownSentence = headlineUnderVerdict(report, 'mm');
   shapeSentence = report.summary.shapeSentence;
   const db = await openDb(`file:${join(dataDir, 'e2e.db')}`);
   await db.update(checks).set({ status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() }).where(eq(checks.id, checkId));
@@ -100,7 +104,7 @@ describe('a shared report opened without an account', () => {
     const res = await page.goto(shareUrl);
     expect(res?.status()).toBe(200);
     await page.getByTestId('shared-report').waitFor();
-    await expect.poll(() => page.getByTestId('verdict-sentence').textContent()).toBe(sentence);
+    await expect.poll(() => page.getByTestId('verdict-sentence').textContent()).toBe(shownSentence);
     // both verdicts in plain words: the overall size on its own line, hole to hole beside the whole bed in the table
     expect(shapeSentence).toBeTruthy();
     expect(await page.getByTestId('shape-sentence').textContent()).toBe(shapeSentence);
@@ -135,7 +139,7 @@ describe('a shared report opened without an account', () => {
     try {
       const page = await plain.ctx.newPage();
       expect((await page.goto(shareUrl))?.status()).toBe(200);
-      expect(await page.getByTestId('verdict-sentence').textContent()).toBe(sentence);
+      expect(await page.getByTestId('verdict-sentence').textContent()).toBe(shownSentence);
       expect(await page.getByTestId('shared-report').textContent()).toContain('Shared dog table');
       const pdf = page.getByRole('link', { name: 'download the PDF' });
       expect(await pdf.getAttribute('href')).toBe(`${new URL(shareUrl).pathname.replace(/^\/s\//, '/api/shared/')}/report.pdf`);

@@ -10,7 +10,7 @@ import { ReportSchema } from '@/lib/geometry/contract';
 import { presetById } from '@/lib/geometry/presets';
 import { makeScene } from '@/lib/geometry/synthetic';
 import { renderReportPdf } from '@/lib/pdf/report';
-import { headline } from '@/lib/report/headline';
+import { headlineUnderVerdict } from '@/lib/report/headline';
 import { hexToRgb01, MARKS } from '@/lib/report/palette';
 import { reportArrowScale } from '@/lib/report/map-scale';
 import { arrowScaleWords, BED_VERDICT_WORD, viewCounts } from '@/lib/report/words';
@@ -41,7 +41,9 @@ describe('report PDF', () => {
     expect(text).toContain('2026-12-02 08:00 UTC');
     expect(text).toContain(BED_VERDICT_WORD[report.summary.verdict]);
     // The headline (wrapped over lines) appears word for word.
-    const words = headline(report, 'mm').split(' ');
+    const words = headlineUnderVerdict(report, 'mm').split(' ');
+    // the verdict word is the box's heading, not said again at the start of the sentence
+    expect(text).not.toContain(`${BED_VERDICT_WORD[report.summary.verdict]}:`);
     expect(words.every((w) => text.includes(w))).toBe(true);
     // Figures: scale 1.00021 is +210 parts per million, (1.00021 − 1) × 1000 mm = +0.21 mm over 1 m; its 1σ 4e-5 is
     // 40 ppm; squareness in degrees with the degree sign on the figure and on its ± (ISO 80000-3)
@@ -141,7 +143,7 @@ describe('report PDF from the measurement core', () => {
     const report = ReportSchema.parse(analyzePoints(scene.points, pattern));
     const pages = await allPages(await renderReportPdf(report, { workshopName: 'North Bench', paper: 'a4' }));
     const text = textOf(pages);
-    for (const w of report.summary.sentence.split(' ')) expect(text).toContain(w.replace(/[−]/g, '-'));
+    for (const w of headlineUnderVerdict(report, 'mm').split(' ')) expect(text).toContain(w.replace(/[−]/g, '-'));
     for (const p of report.positions.filter((q) => q.verdict === 'out' || q.verdict === 'marginal')) expect(text).toContain(p.label);
     for (const q of report.panels) expect(text).toContain(q.id);
     for (const p of report.positions.filter((q) => q.verdict === 'missing')) expect(text).toContain(p.label);
