@@ -213,6 +213,8 @@ export const shareLinks = sqliteTable('share_links', {
   revokedAt: integer('revoked_at'),
   viewCount: integer('view_count').notNull().default(0),
   lastViewedAt: integer('last_viewed_at'),
+  /** Who the link is for, in words: the address a sent link went to, or what its maker wrote; null when neither. */
+  label: text('label'),
 }, (t) => [uniqueIndex('share_links_token_unique').on(t.tokenHash), index('share_links_check_idx').on(t.checkId)]);
 
 export const invitations = sqliteTable('invitations', {

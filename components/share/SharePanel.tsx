@@ -9,7 +9,7 @@ import { useState, type FormEvent } from 'react';
 import { api, errorText, fieldError } from '@/components/api';
 import { formatUtc } from '@/lib/dates';
 
-interface LinkRow { id: string; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean }
+interface LinkRow { id: string; label: string | null; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean }
 
 
 export function SharePanel({ checkId }: { checkId: string }) {
@@ -19,13 +19,14 @@ export function SharePanel({ checkId }: { checkId: string }) {
   const [days, setDays] = useState(14);
   const [fresh, setFresh] = useState<{ url: string; expiresAt: number; sentTo?: string } | null>(null);
   const [copied, setCopied] = useState(false);
+  const [label, setLabel] = useState('');
   const [email, setEmail] = useState('');
   const [note, setNote] = useState('');
   const refresh = () => qc.invalidateQueries({ queryKey: key });
 
   const create = useMutation({
-    mutationFn: () => api<{ link: { url: string; expiresAt: number } }>(`/api/checks/${checkId}/share`, { body: { expiresInDays: days } }),
-    onSuccess: async (r) => { setFresh(r.link); setCopied(false); await refresh(); },
+    mutationFn: () => api<{ link: { url: string; expiresAt: number } }>(`/api/checks/${checkId}/share`, { body: { expiresInDays: days, label: label || undefined } }),
+    onSuccess: async (r) => { setFresh(r.link); setCopied(false); setLabel(''); await refresh(); },
   });
   const send = useMutation({
     mutationFn: () => api<{ link: { url: string; expiresAt: number }; sentTo: string }>(`/api/checks/${checkId}/send`, { body: { email, note: note || undefined, expiresInDays: days } }),
@@ -51,7 +52,11 @@ export function SharePanel({ checkId }: { checkId: string }) {
           {[1, 3, 7, 14, 30, 90].map((d) => <option key={d} value={d}>{d} day{d === 1 ? '' : 's'}</option>)}
         </select>
       </label>
-      <div className="flex flex-wrap gap-3">
+      <div className="flex flex-wrap items-end gap-3">
+        <label className="field max-w-xs flex-1">
+          <span>Who it is for (optional)</span>
+          <input className="input" value={label} onChange={(e) => setLabel(e.target.value)} maxLength={120} placeholder="Sam at the sign shop" data-testid="link-label" />
+        </label>
         <button type="button" className="btn" onClick={() => create.mutate()} disabled={create.isPending} data-testid="make-link">Make a link</button>
       </div>
       {create.isError && <p role="alert" className="field-error">{errorText(create.error)}</p>}
@@ -86,7 +91,8 @@ export function SharePanel({ checkId }: { checkId: string }) {
             {links.data.links.map((l) => (
               <li key={l.id} className="flex flex-wrap items-center justify-between gap-2 rounded-lg border border-line p-3">
                 <span>
-                  <strong>{l.live ? 'Live' : l.revokedAt ? 'Revoked' : 'Expired'}</strong>
+                  <strong data-testid="link-label-shown">{l.label ?? 'No name given'}</strong>
+                  <span> · {l.live ? 'Live' : l.revokedAt ? 'Revoked' : 'Expired'}</span>
                   <span className="text-muted"> · made {formatUtc(l.createdAt)} · {l.live ? `until ${formatUtc(l.expiresAt)}` : ''} · {l.viewCount} view{l.viewCount === 1 ? '' : 's'}</span>
                 </span>
                 {l.live && <button type="button" className="btn btn-danger !min-h-0 !py-1" onClick={() => revoke.mutate(l.id)} disabled={revoke.isPending}>Revoke</button>}

@@ -11,7 +11,7 @@ export type ShareLinkRow = typeof shareLinks.$inferSelect;
 
 export async function insertShareLink(
   db: Queryable,
-  input: { workshopId: string; checkId: string; tokenHash: string; createdBy: string; expiresAt: number },
+  input: { workshopId: string; checkId: string; tokenHash: string; createdBy: string; expiresAt: number; label: string | null },
 ): Promise<ShareLinkRow> {
   const [row] = await db.insert(shareLinks).values({ id: newId(), ...input }).returning();
   if (!row) throw new Error('insertShareLink returned no row');

@@ -37,10 +37,14 @@ const DAY_MS = 24 * 3600 * 1000;
 /** base64url of 32 bytes: 43 characters. */
 export const SHARE_TOKEN_PATTERN = /^[A-Za-z0-9_-]{43}$/;
 
-export const ShareCreateSchema = z.object({
+const ShareExpirySchema = z.object({
   expiresInDays: decimalIn('expiresInDays', 1, SHARE_MAX_DAYS, 'days', true).default(SHARE_DEFAULT_DAYS),
 });
-export const ShareSendSchema = ShareCreateSchema.extend({
+export const ShareCreateSchema = ShareExpirySchema.extend({
+  /** Who the link is for ("Sam at the sign shop"), so that two links can be told apart in the list. */
+  label: z.string().trim().max(120).transform((s) => s || undefined).optional(),
+});
+export const ShareSendSchema = ShareExpirySchema.extend({
   email: EmailSchema,
   note: z.string().trim().max(2000).optional(),
 });
@@ -49,10 +53,11 @@ export const hashShareToken = (token: string): string => createHash('sha256').up
 export const newShareToken = (): string => randomBytes(32).toString('base64url');
 export const shareUrl = (baseUrl: string, token: string): string => `${baseUrl.replace(/\/$/, '')}/s/${token}`;
 
-export type ShareLinkDto = { id: string; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean };
+/** `label`: who the link is for (the address a sent link went to, or the maker's words); null when not given. */
+export type ShareLinkDto = { id: string; label: string | null; createdAt: number; expiresAt: number; revokedAt: number | null; viewCount: number; lastViewedAt: number | null; live: boolean };
 
 function toDto(r: q.ShareLinkRow, now = Date.now()): ShareLinkDto {
-  return { id: r.id, createdAt: r.createdAt, expiresAt: r.expiresAt, revokedAt: r.revokedAt, viewCount: r.viewCount, lastViewedAt: r.lastViewedAt, live: !r.revokedAt && r.expiresAt > now };
+  return { id: r.id, label: r.label, createdAt: r.createdAt, expiresAt: r.expiresAt, revokedAt: r.revokedAt, viewCount: r.viewCount, lastViewedAt: r.lastViewedAt, live: !r.revokedAt && r.expiresAt > now };
 }
 
 /** `POST /api/checks/{id}/share`: a new link, its URL shown this once. Owner or machinist; report must be ready. */
@@ -62,7 +67,7 @@ export async function createShareLink(db: Db, actor: Actor, checkId: string, inp
   authorize(actor, 'share:manage');
   const token = newShareToken();
   const row = await db.transaction(async (tx) => {
-    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt: Date.now() + input.expiresInDays * DAY_MS });
+    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt: Date.now() + input.expiresInDays * DAY_MS, label: input.label ?? null });
     await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'share.create', targetType: 'share_link', targetId: r.id, detail: { checkId, expiresInDays: input.expiresInDays } });
     return r;
   });
@@ -95,7 +100,7 @@ export async function sendReportToHelper(db: Db, actor: Actor, checkId: string, 
     note: input.note ?? null,
   });
   const row = await db.transaction(async (tx) => {
-    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt });
+    const r = await q.insertShareLink(tx, { workshopId: actor.workshopId, checkId, tokenHash: hashShareToken(token), createdBy: actor.user.id, expiresAt, label: input.email });
     const mailId = await queueMail(tx, input.email, 'report', mail, actor.workshopId);
     await recordAudit(tx, { workshopId: actor.workshopId, actorId: actor.user.id, action: 'share.send', targetType: 'share_link', targetId: r.id, detail: { checkId, to: input.email, mailId } });
     return r;

@@ -74,6 +74,19 @@ describe('share links', () => {
     expect(JSON.stringify(row)).not.toContain(token);
   });
 
+  it('lists each link with who it is for, so that two links can be told apart', async () => {
+    const sam = (await makeLink(machinist, { expiresInDays: 7, label: '  Sam at the sign shop ' })).json as { link: { id: string } };
+    const bare = (await makeLink(machinist, { expiresInDays: 7, label: '' })).json as { link: { id: string } };
+    const sent = (await call(sendPost, { cookie: cookie(machinist), body: { email: 'Lee@Example.test', expiresInDays: 3 }, params: { id: checkId } })).json as { link: { id: string } };
+    const list = (await call(shareList, { cookie: cookie(owner), params: { id: checkId } })).json as { links: { id: string; label: string | null }[] };
+    const labelOf = (id: string) => list.links.find((l) => l.id === id)?.label;
+    expect(labelOf(sam.link.id)).toBe('Sam at the sign shop');
+    expect(labelOf(bare.link.id)).toBeNull();
+    // a sent link is for the address it went to (as the mail was queued: lower case)
+    expect(labelOf(sent.link.id)).toBe('lee@example.test');
+    expect((await makeLink(machinist, { expiresInDays: 7, label: 'x'.repeat(121) })).status).toBe(422);
+  });
+
   it("refuses a reviewer's link and a link to a check that is not done", async () => {
     expect((await makeLink(reviewer)).status).toBe(403);
     await requeue(t.db, otherCheckId);
