@@ -48,7 +48,10 @@ export function BedMap(p: BedMapProps) {
   const rulerMm = niceFactor(p.widthMm / 5);
   const fy = margin + p.heightMm + margin;
   return (
-    <div className="overflow-x-auto">
+    <div className="@container">
+    {/* the map keeps 36rem (its labels stay readable): where its box is narrower it scrolls, and says so */}
+    <p className="mb-1 text-sm text-muted @min-[36rem]:hidden print:hidden" data-testid="map-scrolls">The map is wider than the screen: swipe it sideways to see the whole bed.</p>
+    <div className="overflow-x-auto" data-testid="map-scroller">
     <svg viewBox={`0 0 ${W.toFixed(2)} ${H.toFixed(2)}`} role="img" aria-label={p.label} className="h-auto w-full min-w-[36rem] print:min-w-0" style={{ background: 'var(--map-ground)' }}>
       <defs>
         {[...POSITION_MARKS, 'unmatched' as const].map((m) => (
@@ -98,6 +101,7 @@ export function BedMap(p: BedMapProps) {
         <text x={rulerMm} y={font * 1.5} fontSize={font} fill="var(--ink)" textAnchor="end">{formatLength(rulerMm, p.unit, { decimals: p.unit === 'mm' ? 0 : 1 })} of bed</text>
       </g>
     </svg>
+    </div>
     </div>
   );
 }
