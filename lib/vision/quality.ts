@@ -688,6 +688,24 @@ function tiltFrom(H: Mat3, w: number, h: number, f: number): number {
 
 const round = (v: number, k = 1000) => Math.round(v * k) / k;
 
+/**
+ * A straight smear's variance a = L²/12 (px²) along its direction d (image px, unit) from the target's edges: each
+ * edge's variance across it is σ² + a·(n·d)² for a defocus σ and a box smear of length L along d (second moments
+ * add under convolution). The edges fall in two groups by (n·d)², the target's two side directions; the median of
+ * each group gives two equations in σ² and a. Null when fewer than 2 edges a group, or when the groups' (n·d)²
+ * differ by less than 0.3 (a smear near the diagonal of the target spreads both side directions alike).
+ */
+function edgeSmearPx2(edges: readonly { n: [number, number]; varPx2: number }[], d: [number, number]): number | null {
+  const c2 = edges.map((e) => (e.n[0] * d[0] + e.n[1] * d[1]) ** 2);
+  const across = edges.filter((_, i) => c2[i]! >= 0.5);
+  const along = edges.filter((_, i) => c2[i]! < 0.5);
+  if (across.length < 2 || along.length < 2) return null;
+  const cA = median(c2.filter((c) => c >= 0.5));
+  const cB = median(c2.filter((c) => c < 0.5));
+  if (cA - cB < 0.3) return null;
+  return Math.max(0, (median(across.map((e) => e.varPx2)) - median(along.map((e) => e.varPx2))) / (cA - cB));
+}
+
 /** Words for each issue: what was measured and what to do. */
 function issue(code: PhotoIssueCode, message: string): PhotoQuality['issues'][number] {
   return { code, message, advice: ISSUE_ADVICE[code] };
@@ -743,6 +761,13 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
     measured.motion = { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) };
   }
   const good = edges.filter((e) => Number.isFinite(e.varPx2));
+  // the target's edges across and along the smear tell its length too: where they say more than the holes or the
+  // mark (whose moments a flange around the bore or the paper's shading cut short), theirs is taken
+  const fromEdges = spread ? edgeSmearPx2(good, d) : null;
+  if (fromEdges && Math.sqrt(12 * fromEdges) > L) {
+    L = Math.sqrt(12 * fromEdges);
+    measured.motion = { lengthPx: round(L, 10), directionDeg: measured.motion!.directionDeg };
+  }
   let thinningPx = NaN;
   let riseIqPx = NaN;
   const k = q.pattern.units === 'in' ? 25.4 : 1;

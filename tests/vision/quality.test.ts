@@ -60,6 +60,20 @@ describe('photo-quality stage', () => {
     }
   }, 60_000);
 
+  it('calls a smear of 8 and 14 px over flanged inserts motion blur alone, though the flanges cut the holes\' smear short', async () => {
+    // 1600 × 1200, a 600 × 400 mm bed of M8 inserts whose bright flange (1.75 times the bore, the renderer's) lies
+    // within the smear of the bore's rim: the holes read the smear short, the target's edges across and along it do not
+    const m8: Pattern = PatternSchema.parse({ version: 1, name: 'M8 inserts at 50 mm', units: 'mm', bed: { width: 600, height: 400 }, families: [{ id: 'insert', kind: 'threaded-insert', holeDiameter: 8, origin: { x: 50, y: 50 }, pitch: { x: 50, y: 50 }, count: { x: 11, y: 7 }, fit: { fastener: 'M8', clearance: 'medium' } }] });
+    for (const [seed, length] of [[781, 8], [782, 14]] as const) {
+      const q = await quality(m8, { seed, width: 1600, height: 1200, supersample: 2 }, { motionBlurPx: length, motionAngleDeg: 120 });
+      expect(codes(q)).toEqual(['motion-blur']);
+      // truth: the box smear we applied (length, direction), as in the test above
+      expect(Math.abs(q.measured.motion!.lengthPx - length) / length).toBeLessThan(0.3);
+      const dAngle = Math.abs(((q.measured.motion!.directionDeg - 120) % 180 + 270) % 180 - 90);
+      expect(dAngle).toBeLessThan(12);
+    }
+  }, 60_000);
+
   it('calls a photo exposed 1.9 times too long over-exposed, from a plain camera and from a phone', async () => {
     // truth: the gain we applied in linear light, clipped at white (degrade.ts); the phone's tone curve darkens the
     // black first, so its clipped print still reads over 16 times its black: the frame's stroke thinned by the
