@@ -10,20 +10,12 @@
  */
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { analyzePoints } from '@/lib/geometry';
-import type { Pattern } from '@/lib/geometry/contract';
-import { makeScene } from '@/lib/geometry/synthetic';
 import { launchChromium, type LaunchedChromium } from './chromium';
 import { Client } from './client';
-import { checkWithStoredReport, demoLogin, signInThroughForm } from './session';
+import { demoLogin, finishedPlateCheck, signInThroughForm } from './session';
 
 const baseUrl = inject('baseUrl');
 const LOADS_PER_PAGE = 8;
-/** M8 inserts at 100 mm pitch (a common insert grid, common practice). */
-const PATTERN: Pattern = {
-  version: 1, name: 'hydration plate', units: 'mm', bed: { width: 800, height: 500 },
-  families: [{ id: 'ins', kind: 'threaded-insert', holeDiameter: 12, origin: { x: 100, y: 100 }, pitch: { x: 100, y: 100 }, count: { x: 5, y: 4 }, fit: { fastener: 'M8', clearance: 'medium' } }],
-};
 const HYDRATION_ERROR = /hydrat|#418|#423|#425/i;
 let browser: LaunchedChromium | undefined;
 let page: Page | undefined;
@@ -34,11 +26,7 @@ beforeAll(async () => {
   const api = new Client(baseUrl);
   const owner = demoLogin('owner');
   expect((await api.req('POST', '/api/auth/sign-in', owner)).status).toBe(200);
-  const scene = makeScene({ pattern: PATTERN, seed: 7, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 640, y: 250, angleDeg: 3 } });
-  const report = analyzePoints(scene.points, PATTERN);
-  checkId = await checkWithStoredReport(api, { name: 'Hydration plate', pattern: PATTERN }, { status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() });
-  const beds = (await api.req('GET', '/api/beds')).json as { beds: { id: string; name: string }[] };
-  bedId = beds.beds.find((b) => b.name === 'Hydration plate')!.id;
+  ({ checkId, bedId } = await finishedPlateCheck(api, 'Hydration plate', 7));
 
   browser = await launchChromium({ width: 1280, height: 900 });
   page = await browser.ctx.newPage();

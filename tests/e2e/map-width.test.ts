@@ -5,19 +5,11 @@
  */
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { analyzePoints } from '@/lib/geometry';
-import type { Pattern } from '@/lib/geometry/contract';
-import { makeScene } from '@/lib/geometry/synthetic';
 import { launchChromium, type LaunchedChromium } from './chromium';
 import { Client } from './client';
-import { checkWithStoredReport, demoLogin, signInThroughForm } from './session';
+import { demoLogin, finishedPlateCheck, signInThroughForm } from './session';
 
 const baseUrl = inject('baseUrl');
-/** M8 inserts at 100 mm pitch (a common insert grid, common practice). */
-const PATTERN: Pattern = {
-  version: 1, name: 'map width plate', units: 'mm', bed: { width: 800, height: 500 },
-  families: [{ id: 'ins', kind: 'threaded-insert', holeDiameter: 12, origin: { x: 100, y: 100 }, pitch: { x: 100, y: 100 }, count: { x: 5, y: 4 }, fit: { fastener: 'M8', clearance: 'medium' } }],
-};
 let browser: LaunchedChromium | undefined;
 let page: Page;
 let checkId = '';
@@ -26,9 +18,7 @@ beforeAll(async () => {
   const api = new Client(baseUrl);
   const owner = demoLogin('owner');
   expect((await api.req('POST', '/api/auth/sign-in', owner)).status).toBe(200);
-  const scene = makeScene({ pattern: PATTERN, seed: 11, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 640, y: 250, angleDeg: 3 } });
-  const report = analyzePoints(scene.points, PATTERN);
-  checkId = await checkWithStoredReport(api, { name: 'Map width plate', pattern: PATTERN }, { status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() });
+  ({ checkId } = await finishedPlateCheck(api, 'Map width plate', 11));
   browser = await launchChromium({ width: 390, height: 844 });
   page = await browser.ctx.newPage();
   await signInThroughForm(page, owner);

@@ -15,7 +15,9 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, inject } from 'vitest';
 import { openDb } from '@/db/client';
 import { checks } from '@/db/schema';
+import { analyzePoints } from '@/lib/geometry';
 import type { Pattern } from '@/lib/geometry/contract';
+import { makeScene } from '@/lib/geometry/synthetic';
 import { DEMO_LOGINS, DEMO_PASSWORD } from '@/lib/services/demo-accounts';
 import { spawnWorker, stopWorker, type WorkerProc } from '../workers/spawn';
 import { launchChromium, type LaunchedChromium } from './chromium';
@@ -140,4 +142,24 @@ export async function checkWithStoredReport(api: Client, bed: { name: string; pa
     db.$client.close();
   }
   return checkId;
+}
+
+/** M8 inserts at 100 mm pitch, 5 × 4 on an 800 × 500 mm plate (a common insert grid, common practice). */
+export const INSERT_PLATE: Pattern = {
+  version: 1, name: 'insert plate', units: 'mm', bed: { width: 800, height: 500 },
+  families: [{ id: 'ins', kind: 'threaded-insert', holeDiameter: 12, origin: { x: 100, y: 100 }, pitch: { x: 100, y: 100 }, count: { x: 5, y: 4 }, fit: { fastener: 'M8', clearance: 'medium' } }],
+};
+
+/**
+ * A finished check on a new bed `name` of INSERT_PLATE made as `api` (signed in), its report the measurement core's
+ * own of a synthetic scene (`seed`) written into the e2e server's database. Returns the check's and the bed's ids.
+ */
+export async function finishedPlateCheck(api: Client, name: string, seed: number): Promise<{ checkId: string; bedId: string }> {
+  const scene = makeScene({ pattern: INSERT_PLATE, seed, mmPerPx: 0.5, centreNoisePx: 0.05, square: { sizeMm: 150, x: 640, y: 250, angleDeg: 3 } });
+  const report = analyzePoints(scene.points, INSERT_PLATE);
+  const checkId = await checkWithStoredReport(api, { name, pattern: INSERT_PLATE }, { status: 'done', progress: 1, reportJson: JSON.stringify(report), verdict: report.summary.verdict, finishedAt: Date.now() });
+  const beds = (await api.req('GET', '/api/beds')).json as { beds: { id: string; name: string }[] };
+  const bed = beds.beds.find((b) => b.name === name);
+  if (!bed) throw new Error(`the bed ${name} is not listed`);
+  return { checkId, bedId: bed.id };
 }
