@@ -54,7 +54,7 @@ function Outcome({ r, unit, what }: { r: Placement; unit: LengthUnit; what: stri
 }
 
 /** Every position of the origin family at one turn: fits (disc), binds (square), hole not seen (ring). */
-function FitMap({ positions, cells, turn, bed, onPick }: { positions: FitPosition[]; cells: MapAnswer['cells']; turn: Turn; bed: { width: number; height: number }; onPick: (at: string) => void }) {
+function FitMap({ positions, cells, turn, bed, unit, onPick }: { positions: FitPosition[]; cells: MapAnswer['cells']; turn: Turn; bed: { width: number; height: number }; unit: LengthUnit; onPick: (at: string) => void }) {
   const byAt = new Map(cells.filter((c) => c.turnDeg === turn).map((c) => [c.at, c]));
   const m = Math.max(bed.width, bed.height) * 0.03;
   const r = Math.max(bed.width, bed.height) / 90;
@@ -64,7 +64,7 @@ function FitMap({ positions, cells, turn, bed, onPick }: { positions: FitPositio
       {positions.map((p) => {
         const c = byAt.get(p.label);
         const x = p.x, y = bed.height - p.y;
-        const title = c ? `${p.label} at ${turn}°: ${c.status}${c.marginMm !== null ? ` (${c.marginMm >= 0 ? 'spare' : 'binds by'} ${Math.abs(c.marginMm).toFixed(3)} mm)` : ''}` : `${p.label}: a pin would miss the bed`;
+        const title = c ? `${p.label} at ${turn}°: ${c.status}${c.marginMm !== null ? ` (${c.marginMm >= 0 ? 'spare' : 'binds by'} ${formatLength(Math.abs(c.marginMm), unit)})` : ''}` : `${p.label}: a pin would miss the bed`;
         if (!c) return <circle key={p.label} cx={x} cy={y} r={r / 3} fill="var(--line)"><title>{title}</title></circle>;
         if (c.status === 'fits') return <circle key={p.label} cx={x} cy={y} r={r} fill="var(--pass)" className="cursor-pointer" onClick={() => onPick(p.label)} data-status="fits"><title>{title}</title></circle>;
         if (c.status === 'binds') return <rect key={p.label} x={x - r} y={y - r} width={2 * r} height={2 * r} fill="var(--fail)" className="cursor-pointer" onClick={() => onPick(p.label)} data-status="binds"><title>{title}</title></rect>;
@@ -141,7 +141,7 @@ export function FitPanel({ checkId, accessories, positions, bed, boards, unit: i
                   return <button key={t} type="button" className={`btn !px-3 ${mapTurn === t ? '' : 'btn-quiet'}`} aria-pressed={mapTurn === t} onClick={() => setMapTurn(t)}>{t}° · {n} fit</button>;
                 })}
               </div>
-              <FitMap positions={mapPositions} cells={map.data.cells} turn={mapTurn} bed={bed} onPick={pick} />
+              <FitMap positions={mapPositions} cells={map.data.cells} turn={mapTurn} bed={bed} unit={unit} onPick={pick} />
             </>
           )}
         </section>

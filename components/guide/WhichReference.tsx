@@ -14,7 +14,7 @@ const CHOICES: { title: string; body: string }[] = [
   },
   {
     title: 'A measured distance between two holes',
-    body: 'For the overall size of a long bed (a full 2440 mm sheet, say), measure between two holes far apart and enter it with the upload: with a steel tape read carefully (about ±0.3 mm), or from the machine’s own coordinates with the spindle jogged over the centre of each hole in turn (about ±0.1 mm, and in the machine’s own scale, which is the one your cuts follow). One distance along the bed sets the scale along it; add one across the bed and one on the diagonal to set the other scale and the squareness too. The report shows each distance’s residual after the fit, so a wrong label or a misread tape shows at once.',
+    body: 'For the overall size of a long bed (a full 2440 mm sheet, say), measure between two holes far apart and enter it with the upload: with a steel tape read carefully (about ± 0.3 mm), or from the machine’s own coordinates with the spindle jogged over the centre of each hole in turn (about ± 0.1 mm, and in the machine’s own scale, which is the one your cuts follow). One distance along the bed sets the scale along it; add one across the bed and one on the diagonal to set the other scale and the squareness too. The report shows each distance’s residual after the fit, so a wrong label or a misread tape shows at once.',
   },
 ];
 

@@ -322,7 +322,7 @@ export async function reapExhaustedJobs(db: Db, now?: number): Promise<number> {
     const rows = await tx.select().from(jobs).where(abandoned);
     for (const job of rows) {
       const message = `The worker stopped in the middle of this analysis ${job.attempts} times (it may have run out of memory or been ` +
-        'restarted). Try a smaller photo, or mark the reference square\'s corners by hand, and upload it again.';
+        'restarted). Try a photo with fewer megapixels (the whole bed and the square still in the frame), and upload it again.';
       await failJobRow(tx, job, message, job.lastError ?? 'lease expired on the last attempt', now ?? Date.now());
     }
     return rows.length;

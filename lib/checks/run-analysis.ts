@@ -79,7 +79,7 @@ export class AnalysisLimitError extends Error {
   /** What the check says when this was its last attempt (`attempts` made in all). */
   finalMessage(attempts: number): string {
     return `The analysis ${this.reason}${attempts > 1 ? `, on the last of ${attempts} attempts` : ''}. ` +
-      'Try a photo with fewer megapixels, or mark the reference square\'s corners by hand, and upload it again.';
+      'Try a photo with fewer megapixels (the whole bed and the square still in the frame), and upload it again.';
   }
 }
 

@@ -12,7 +12,7 @@ import { getCheckById, requestRefit } from '@/db/queries/checks';
 import { claimJob, failJob } from '@/db/queries/jobs';
 import { intakePhoto } from '@/lib/checks/intake';
 import { analysisDeps } from '@/lib/checks/pipeline';
-import { PermanentJobError, runCheckAnalysis, runCheckRefit } from '@/lib/checks/run-analysis';
+import { AnalysisLimitError, PermanentJobError, runCheckAnalysis, runCheckRefit } from '@/lib/checks/run-analysis';
 import { fitDeps } from '@/lib/checks/fit';
 import { analyzePoints } from '@/lib/geometry/analyze';
 import { ReportSchema } from '@/lib/geometry/contract';
@@ -110,4 +110,13 @@ describe('the analysis of a photo whose reference target is cut by the border', 
     expect(JSON.parse(stored!.qualityJson!).issues.map((i: { code: string }) => i.code)).toEqual(['target-cut']);
     expect(stored!.reportJson ?? null).toBeNull();
   }, 60_000);
+});
+
+describe('an analysis stopped by a limit', () => {
+  it('tells the user to upload a lighter photo, never to mark corners the upload form cannot take', () => {
+    const message = new AnalysisLimitError('took longer than 120 s').finalMessage(3);
+    expect(message).toMatch(/^The analysis took longer than 120 s, on the last of 3 attempts\. /);
+    expect(message).toMatch(/fewer megapixels/);
+    expect(message).not.toMatch(/by hand/i);
+  });
 });
