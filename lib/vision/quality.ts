@@ -480,129 +480,147 @@ async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: n
   return { cands: spreadSample(cands), atBorder };
 }
 
-/** Darkness moments of one hole at full resolution, less a disc's seen through the target's perspective. */
-function holeMoments(q: QualityInput, H: Mat3, Hi: Mat3, c: { x: number; y: number; dMm: number }): HoleStats | null {
-  const { grey, width: w, height: h } = q;
-  const p = applyH(Hi, c.x, c.y);
-  // Jacobian of mm → px at the hole
+/** Jacobian of target mm → image px at the target point p (mm), by 0.5 mm forward differences: [∂x/∂X, ∂x/∂Y, ∂y/∂X, ∂y/∂Y], px per mm. */
+function jacobianMmToPx(H: Mat3, p: [number, number]): [number, number, number, number] {
   const e = 0.5;
   const px = applyH(H, p[0] + e, p[1]);
   const py = applyH(H, p[0], p[1] + e);
   const p0 = applyH(H, p[0], p[1]);
-  const J = [(px[0] - p0[0]) / e, (py[0] - p0[0]) / e, (px[1] - p0[1]) / e, (py[1] - p0[1]) / e];
-  const rMm = c.dMm / 2;
-  const rPx = rMm * Math.sqrt(Math.abs(J[0]! * J[3]! - J[1]! * J[2]!));
-  const R0 = rPx + 14;
-  if (c.x - R0 - 4 < 0 || c.y - R0 - 4 < 0 || c.x + R0 + 4 > w - 1 || c.y + R0 + 4 > h - 1) return null;
-  let cx = c.x;
-  let cy = c.y;
-  let surround = 0;
+  return [(px[0] - p0[0]) / e, (py[0] - p0[0]) / e, (px[1] - p0[1]) / e, (py[1] - p0[1]) / e];
+}
+
+/**
+ * Second moments (px²) of a uniform disc of radius rMm seen through J (mm → px): a disc has r²/4 per axis, so
+ * J (r²/4) Jᵀ, as [xx, yy, xy].
+ */
+function discMomentsPx(J: [number, number, number, number], rMm: number): [number, number, number] {
+  const r2 = (rMm * rMm) / 4;
+  return [r2 * (J[0] ** 2 + J[1] ** 2), r2 * (J[2] ** 2 + J[3] ** 2), r2 * (J[0] * J[2] + J[1] * J[3])];
+}
+
+/**
+ * The bed's level around a hole: 48 samples on each circle of radius R + 1, R + 2.5 and R + 4 px about (cx, cy),
+ * image px; linear light (ring) and encoded grey (ringEnc), and the linear samples' median (surround).
+ */
+function surroundRing(q: QualityInput, cx: number, cy: number, R: number): { ring: number[]; ringEnc: number[]; surround: number } {
+  const { grey, width: w, height: h } = q;
   const ring: number[] = [];
   const ringEnc: number[] = [];
-  const level = () => {
-    ring.length = 0;
-    ringEnc.length = 0;
-    for (const rr of [R + 1, R + 2.5, R + 4])
-      for (let k = 0; k < 48; k++) {
-        const v = sampleGrey(grey, w, h, cx + rr * Math.cos((k * Math.PI) / 24), cy + rr * Math.sin((k * Math.PI) / 24));
-        ringEnc.push(v);
-        ring.push(lin(v));
-      }
-    surround = median(ring);
-  };
+  for (const rr of [R + 1, R + 2.5, R + 4])
+    for (let k = 0; k < 48; k++) {
+      const v = sampleGrey(grey, w, h, cx + rr * Math.cos((k * Math.PI) / 24), cy + rr * Math.sin((k * Math.PI) / 24));
+      ringEnc.push(v);
+      ring.push(lin(v));
+    }
+  return { ring, ringEnc, surround: median(ring) };
+}
+
+/**
+ * Moments of the darkness D = surround − I (linear light, where positive) over the disc of radius R px about
+ * (cx, cy): its centroid's offset (mx, my), px, and its central second moments, px². Null when nothing is darker.
+ */
+function darknessMoments(q: QualityInput, cx: number, cy: number, R: number, surround: number): { mx: number; my: number; sxx: number; syy: number; sxy: number } | null {
+  const { grey, width: w } = q;
   let m0 = 0;
+  let sx = 0;
+  let sy = 0;
+  const pts: [number, number, number][] = [];
+  for (let y = Math.floor(cy - R); y <= Math.ceil(cy + R); y++)
+    for (let x = Math.floor(cx - R); x <= Math.ceil(cx + R); x++) {
+      const dx = x - cx;
+      const dy = y - cy;
+      if (dx * dx + dy * dy > R * R) continue;
+      const D = surround - lin(grey[y * w + x]!);
+      if (D <= 0) continue;
+      m0 += D;
+      sx += D * dx;
+      sy += D * dy;
+      pts.push([dx, dy, D]);
+    }
+  if (m0 <= 0) return null;
+  const mx = sx / m0;
+  const my = sy / m0;
+  let sxx = 0;
+  let syy = 0;
+  let sxy = 0;
+  for (const [dx, dy, D] of pts) {
+    sxx += D * (dx - mx) ** 2;
+    syy += D * (dy - my) ** 2;
+    sxy += D * (dx - mx) * (dy - my);
+  }
+  return { mx, my, sxx: sxx / m0, syy: syy / m0, sxy: sxy / m0 };
+}
+
+/**
+ * A hole's darkness centroid and second moments after 4 passes, each re-centred on the last (image px, px²), with
+ * the surround ring of the last pass. The window is rPx + 14 px for the first two passes, which see the whole
+ * spread; then it closes to 3 spreads past the rim (less noise). Null when a pass finds nothing darker.
+ */
+function settleHole(q: QualityInput, c: { x: number; y: number }, rPx: number, rMm: number, J: [number, number, number, number]) {
+  let cx = c.x;
+  let cy = c.y;
   let sxx = 0;
   let syy = 0;
   let sxy = 0;
   let R = rPx + 14;
+  let ring = surroundRing(q, cx, cy, R);
   for (let it = 0; it < 4; it++) {
     if (it === 2) {
-      // the first passes see the whole spread; then the window closes to 3 spreads past the rim (less noise)
-      const spread = Math.max(0, (sxx + syy) / 2 + Math.hypot((sxx - syy) / 2, sxy) - (rMm * rMm) / 4 * ((J[0]! ** 2 + J[1]! ** 2 + J[2]! ** 2 + J[3]! ** 2) / 2));
+      const spread = Math.max(0, (sxx + syy) / 2 + Math.hypot((sxx - syy) / 2, sxy) - (rMm * rMm) / 4 * ((J[0] ** 2 + J[1] ** 2 + J[2] ** 2 + J[3] ** 2) / 2));
       R = Math.min(R, rPx + Math.max(3, 3 * Math.sqrt(spread)));
     }
-    level();
-    m0 = 0;
-    let sx = 0;
-    let sy = 0;
-    const x0 = Math.floor(cx - R);
-    const x1 = Math.ceil(cx + R);
-    const y0 = Math.floor(cy - R);
-    const y1 = Math.ceil(cy + R);
-    const pts: [number, number, number][] = [];
-    for (let y = y0; y <= y1; y++)
-      for (let x = x0; x <= x1; x++) {
-        const dx = x - cx;
-        const dy = y - cy;
-        if (dx * dx + dy * dy > R * R) continue;
-        const D = surround - lin(grey[y * w + x]!);
-        if (D <= 0) continue;
-        m0 += D;
-        sx += D * dx;
-        sy += D * dy;
-        pts.push([dx, dy, D]);
-      }
-    if (m0 <= 0) return null;
-    const mx = sx / m0;
-    const my = sy / m0;
-    sxx = 0;
-    syy = 0;
-    sxy = 0;
-    for (const [dx, dy, D] of pts) {
-      sxx += D * (dx - mx) ** 2;
-      syy += D * (dy - my) ** 2;
-      sxy += D * (dx - mx) * (dy - my);
-    }
-    sxx /= m0;
-    syy /= m0;
-    sxy /= m0;
-    cx += mx;
-    cy += my;
+    ring = surroundRing(q, cx, cy, R);
+    const mo = darknessMoments(q, cx, cy, R, ring.surround);
+    if (!mo) return null;
+    ({ sxx, syy, sxy } = mo);
+    cx += mo.mx;
+    cy += mo.my;
   }
-  // a uniform disc of radius r has second moments r²/4 per axis; through J it is J (r²/4) Jᵀ
-  const r2 = (rMm * rMm) / 4;
-  const dxx = r2 * (J[0]! ** 2 + J[1]! ** 2);
-  const dyy = r2 * (J[2]! ** 2 + J[3]! ** 2);
-  const dxy = r2 * (J[0]! * J[2]! + J[1]! * J[3]!);
-  const ex = sxx - dxx;
-  const ey = syy - dyy;
-  const exy = sxy - dxy;
-  // noise that moves a centre: what the bed around the rim adds to its light (sensor, texture, JPEG), in linear light
-  // as the detector weighs it, measured just outside the rim's spread where the profile is flat (inside the spread a
-  // px's sub-pixel phase against the rim would pass for noise), as residuals from the mean profile at the same
-  // distance on the bed plane (read between 0.25 px bins: shading and the rim's tail are not noise); and how far it
-  // is correlated from one px to the next (a sum over correlated px varies 1 + 2ρ₁ + 2ρ₂ times more)
-  const s0 = Math.sqrt(Math.abs(J[0]! * J[3]! - J[1]! * J[2]!));
-  const c1 = applyH(Hi, cx, cy);
-  const band = 1.5 * Math.sqrt(Math.max(0, (sxx + syy) / 2 - (dxx + dyy) / 2)) + 1;
-  const flat0 = rPx + band + 0.5;
-  const flat1 = flat0 + 3;
-  const bx0 = Math.floor(cx - flat1 - 1);
-  const by0 = Math.floor(cy - flat1 - 1);
-  const bw = Math.ceil(cx + flat1 + 1) - bx0 + 1;
-  const bh = Math.ceil(cy + flat1 + 1) - by0 + 1;
-  if (bx0 < 0 || by0 < 0 || bx0 + bw > w || by0 + bh > h) return null;
-  const rhoAt = new Float64Array(bw * bh).fill(NaN);
-  const val = new Float64Array(bw * bh);
+  return { cx, cy, sxx, syy, sxy, ...ring };
+}
+
+/** Residuals on a window of image px (origin x0, y0; w × h), NaN where not taken; their sum of squares over n. */
+interface RingResiduals {
+  x0: number;
+  y0: number;
+  w: number;
+  h: number;
+  res: Float64Array;
+  sumSq: number;
+  n: number;
+}
+
+/**
+ * The bed's light (linear) on the flat annulus flat0 ≤ ρ ≤ flat1 px about a hole, ρ the distance on the bed plane
+ * from its centre c1 (target mm, through Hi) times pxPerMm, less the mean profile at the same ρ (0.25 px bins read
+ * between: shading and the rim's tail are not noise). Null when the window leaves the photo.
+ */
+function flatRingResiduals(q: QualityInput, Hi: Mat3, cx: number, cy: number, c1: [number, number], pxPerMm: number, flat0: number, flat1: number): RingResiduals | null {
+  const { grey, width: W, height: Hh } = q;
+  const x0 = Math.floor(cx - flat1 - 1);
+  const y0 = Math.floor(cy - flat1 - 1);
+  const w = Math.ceil(cx + flat1 + 1) - x0 + 1;
+  const h = Math.ceil(cy + flat1 + 1) - y0 + 1;
+  if (x0 < 0 || y0 < 0 || x0 + w > W || y0 + h > Hh) return null;
+  const rhoAt = new Float64Array(w * h).fill(NaN);
+  const val = new Float64Array(w * h);
   const bsum = new Map<number, [number, number]>();
-  for (let j = 0; j < bh; j++)
-    for (let i = 0; i < bw; i++) {
-      const x = bx0 + i;
-      const y = by0 + j;
-      const b = applyH(Hi, x, y);
-      const rho = Math.hypot(b[0] - c1[0], b[1] - c1[1]) * s0;
+  for (let j = 0; j < h; j++)
+    for (let i = 0; i < w; i++) {
+      const b = applyH(Hi, x0 + i, y0 + j);
+      const rho = Math.hypot(b[0] - c1[0], b[1] - c1[1]) * pxPerMm;
       if (rho < flat0 || rho > flat1) continue;
-      const v = lin(grey[y * w + x]!);
-      rhoAt[j * bw + i] = rho;
-      val[j * bw + i] = v;
+      const v = lin(grey[(y0 + j) * W + x0 + i]!);
+      rhoAt[j * w + i] = rho;
+      val[j * w + i] = v;
       const key = Math.round(rho * 4);
       const t = bsum.get(key);
       if (t) { t[0] += v; t[1]++; } else bsum.set(key, [v, 1]);
     }
   const meanAt = (k: number) => { const t = bsum.get(k); return t && t[1] >= 3 ? t[0] / t[1] : NaN; };
-  const res = new Float64Array(bw * bh).fill(NaN);
-  let rs = 0;
-  let rn = 0;
+  const res = new Float64Array(w * h).fill(NaN);
+  let sumSq = 0;
+  let n = 0;
   for (let k = 0; k < res.length; k++) {
     const rho = rhoAt[k]!;
     if (!Number.isFinite(rho)) continue;
@@ -613,65 +631,117 @@ function holeMoments(q: QualityInput, H: Mat3, Hi: Mat3, c: { x: number; y: numb
     const m = Number.isFinite(a0) && Number.isFinite(a1) ? a0 + (a1 - a0) * (u - k0) : Number.isFinite(a0) ? a0 : a1;
     if (!Number.isFinite(m)) continue;
     res[k] = val[k]! - m;
-    rs += res[k]! ** 2;
-    rn++;
+    sumSq += res[k]! ** 2;
+    n++;
   }
-  const lag = (d: number) => {
-    let c = 0;
-    let n = 0;
-    for (let j = 0; j < bh; j++)
-      for (let i = 0; i < bw; i++) {
-        const e0 = res[j * bw + i]!;
-        if (!Number.isFinite(e0)) continue;
-        if (i + d < bw && Number.isFinite(res[j * bw + i + d]!)) { c += e0 * res[j * bw + i + d]!; n++; }
-        if (j + d < bh && Number.isFinite(res[(j + d) * bw + i]!)) { c += e0 * res[(j + d) * bw + i]!; n++; }
-      }
-    return n ? c / n : 0;
-  };
-  const noiseVar = rn > 20 ? rs / rn : NaN;
-  // the surround's slope across the hole: the first harmonic of the flat ring's residuals, linear light per px
-  let sc = 0, ss = 0, cc = 0, sn = 0, cs = 0;
-  for (let j = 0; j < bh; j++)
-    for (let i = 0; i < bw; i++) {
-      const e0 = res[j * bw + i]!;
+  return { x0, y0, w, h, res, sumSq, n };
+}
+
+/** Mean product of residuals d px apart along x and along y (linear light²): their covariance at lag d. */
+function lagCovariance({ res, w, h }: RingResiduals, d: number): number {
+  let c = 0;
+  let n = 0;
+  for (let j = 0; j < h; j++)
+    for (let i = 0; i < w; i++) {
+      const e0 = res[j * w + i]!;
       if (!Number.isFinite(e0)) continue;
-      const th = Math.atan2(by0 + j - cy, bx0 + i - cx);
+      if (i + d < w && Number.isFinite(res[j * w + i + d]!)) { c += e0 * res[j * w + i + d]!; n++; }
+      if (j + d < h && Number.isFinite(res[(j + d) * w + i]!)) { c += e0 * res[(j + d) * w + i]!; n++; }
+    }
+  return n ? c / n : 0;
+}
+
+/**
+ * The surround's slope across the hole, linear light per px: the first harmonic a cos θ + b sin θ of the flat
+ * ring's residuals about (cx, cy) by least squares, its amplitude over the ring's mean radius.
+ */
+function surroundSlope(rr: RingResiduals, cx: number, cy: number, flat0: number, flat1: number): number {
+  const { res, w, h, x0, y0 } = rr;
+  let sc = 0, ss = 0, cc = 0, sn = 0, cs = 0;
+  for (let j = 0; j < h; j++)
+    for (let i = 0; i < w; i++) {
+      const e0 = res[j * w + i]!;
+      if (!Number.isFinite(e0)) continue;
+      const th = Math.atan2(y0 + j - cy, x0 + i - cx);
       const c = Math.cos(th), sv = Math.sin(th);
       sc += e0 * c; ss += e0 * sv; cc += c * c; sn += sv * sv; cs += c * sv;
     }
   const det = cc * sn - cs * cs;
   const ga = det > 0 ? (sc * sn - ss * cs) / det : 0;
   const gb = det > 0 ? (ss * cc - sc * cs) / det : 0;
-  const slope = Math.hypot(ga, gb) / ((flat0 + flat1) / 2);
-  // the hole's floor sloping across it (an insert's flange, a bore wall seen at a tilt): a plane fitted to the flat
-  // middle, inside the rim's spread, linear light per px
-  const inR = rPx - band - 0.5;
-  let slopeIn = 0;
-  if (inR >= 2) {
-    let n = 0, m = 0, xx = 0, yy = 0, xy = 0, xv = 0, yv = 0;
-    const pts: [number, number, number][] = [];
-    for (let y = Math.ceil(cy - inR); y <= Math.floor(cy + inR); y++)
-      for (let x = Math.ceil(cx - inR); x <= Math.floor(cx + inR); x++) {
-        const b = applyH(Hi, x, y);
-        if (Math.hypot(b[0] - c1[0], b[1] - c1[1]) * s0 > inR) continue;
-        const v = lin(grey[y * w + x]!);
-        pts.push([x - cx, y - cy, v]);
-        m += v;
-        n++;
-      }
-    if (n >= 8) {
-      m /= n;
-      for (const [dx, dy, v] of pts) { xx += dx * dx; yy += dy * dy; xy += dx * dy; xv += dx * (v - m); yv += dy * (v - m); }
-      const dt = xx * yy - xy * xy;
-      if (dt > 0) slopeIn = Math.hypot((xv * yy - yv * xy) / dt, (yv * xx - xv * xy) / dt);
+  return Math.hypot(ga, gb) / ((flat0 + flat1) / 2);
+}
+
+/**
+ * The hole's floor sloping across it (an insert's flange, a bore wall seen at a tilt), linear light per px: the
+ * gradient of a plane fitted to the px within inR px (on the bed plane, as in flatRingResiduals) of its centre.
+ * 0 when inR < 2 px or fewer than 8 px.
+ */
+function floorSlope(q: QualityInput, Hi: Mat3, cx: number, cy: number, c1: [number, number], pxPerMm: number, inR: number): number {
+  const { grey, width: w } = q;
+  if (inR < 2) return 0;
+  let n = 0, m = 0, xx = 0, yy = 0, xy = 0, xv = 0, yv = 0;
+  const pts: [number, number, number][] = [];
+  for (let y = Math.ceil(cy - inR); y <= Math.floor(cy + inR); y++)
+    for (let x = Math.ceil(cx - inR); x <= Math.floor(cx + inR); x++) {
+      const b = applyH(Hi, x, y);
+      if (Math.hypot(b[0] - c1[0], b[1] - c1[1]) * pxPerMm > inR) continue;
+      const v = lin(grey[y * w + x]!);
+      pts.push([x - cx, y - cy, v]);
+      m += v;
+      n++;
     }
-  }
-  const corr = Number.isFinite(noiseVar) && noiseVar > 0 ? Math.min(10, Math.max(1, 1 + (2 * (lag(1) + lag(2))) / noiseVar)) : 1;
+  if (n < 8) return 0;
+  m /= n;
+  for (const [dx, dy, v] of pts) { xx += dx * dx; yy += dy * dy; xy += dx * dy; xv += dx * (v - m); yv += dy * (v - m); }
+  const dt = xx * yy - xy * xy;
+  return dt > 0 ? Math.hypot((xv * yy - yv * xy) / dt, (yv * xx - xv * xy) / dt) : 0;
+}
+
+/** The hole's middle: the median of 16 samples at 0.3 of its radius rPx and one at its centre, linear light. */
+function middleLevel(q: QualityInput, cx: number, cy: number, rPx: number): number {
+  const { grey, width: w, height: h } = q;
   const inner: number[] = [];
   for (let k = 0; k < 16; k++) inner.push(lin(sampleGrey(grey, w, h, cx + 0.3 * rPx * Math.cos((k * Math.PI) / 8), cy + 0.3 * rPx * Math.sin((k * Math.PI) / 8))));
   inner.push(lin(sampleGrey(grey, w, h, cx, cy)));
-  const contrast = surround - median(inner);
-  return { dev: [(ex - ey) / 2, exy], contrast, noise: Number.isFinite(noiseVar) ? Math.sqrt(noiseVar) : robustSd(ring), corr, slopeRatio: (slope * rPx) / Math.max(1e-6, contrast), slopeInRatio: (slopeIn * rPx) / Math.max(1e-6, contrast), surroundClipped: ringEnc.filter((v) => v >= CLIP_HI).length / ringEnc.length, diameterPx: 2 * rPx };
+  return median(inner);
+}
+
+/**
+ * Darkness moments of one hole at full resolution (image px), less a disc's seen through the target's perspective
+ * (H: target mm → image px, Hi its inverse), with the noise, shading and clipping around it. Null near the border.
+ */
+function holeMoments(q: QualityInput, H: Mat3, Hi: Mat3, c: { x: number; y: number; dMm: number }): HoleStats | null {
+  const { width: w, height: h } = q;
+  const J = jacobianMmToPx(H, applyH(Hi, c.x, c.y));
+  const rMm = c.dMm / 2;
+  const pxPerMm = Math.sqrt(Math.abs(J[0] * J[3] - J[1] * J[2]));
+  const rPx = rMm * pxPerMm;
+  const R0 = rPx + 14;
+  if (c.x - R0 - 4 < 0 || c.y - R0 - 4 < 0 || c.x + R0 + 4 > w - 1 || c.y + R0 + 4 > h - 1) return null;
+  const hole = settleHole(q, c, rPx, rMm, J);
+  if (!hole) return null;
+  const { cx, cy, sxx, syy, sxy } = hole;
+  const [dxx, dyy, dxy] = discMomentsPx(J, rMm);
+  const ex = sxx - dxx;
+  const ey = syy - dyy;
+  const exy = sxy - dxy;
+  // noise that moves a centre: what the bed around the rim adds to its light (sensor, texture, JPEG), in linear light
+  // as the detector weighs it, measured just outside the rim's spread where the profile is flat (inside the spread a
+  // px's sub-pixel phase against the rim would pass for noise); and how far it is correlated from one px to the next
+  // (a sum over correlated px varies 1 + 2ρ₁ + 2ρ₂ times more)
+  const c1 = applyH(Hi, cx, cy);
+  const band = 1.5 * Math.sqrt(Math.max(0, (sxx + syy) / 2 - (dxx + dyy) / 2)) + 1;
+  const flat0 = rPx + band + 0.5;
+  const flat1 = flat0 + 3;
+  const rr = flatRingResiduals(q, Hi, cx, cy, c1, pxPerMm, flat0, flat1);
+  if (!rr) return null;
+  const noiseVar = rr.n > 20 ? rr.sumSq / rr.n : NaN;
+  const slope = surroundSlope(rr, cx, cy, flat0, flat1);
+  const slopeIn = floorSlope(q, Hi, cx, cy, c1, pxPerMm, rPx - band - 0.5);
+  const corr = Number.isFinite(noiseVar) && noiseVar > 0 ? Math.min(10, Math.max(1, 1 + (2 * (lagCovariance(rr, 1) + lagCovariance(rr, 2))) / noiseVar)) : 1;
+  const contrast = hole.surround - middleLevel(q, cx, cy, rPx);
+  return { dev: [(ex - ey) / 2, exy], contrast, noise: Number.isFinite(noiseVar) ? Math.sqrt(noiseVar) : robustSd(hole.ring), corr, slopeRatio: (slope * rPx) / Math.max(1e-6, contrast), slopeInRatio: (slopeIn * rPx) / Math.max(1e-6, contrast), surroundClipped: hole.ringEnc.filter((v) => v >= CLIP_HI).length / hole.ringEnc.length, diameterPx: 2 * rPx };
 }
 
 function tiltFrom(H: Mat3, w: number, h: number, f: number): number {
