@@ -79,6 +79,9 @@ function robustSd(a: number[]): number {
   return 1.4826 * median(a.map((v) => Math.abs(v - m)));
 }
 
+/** Millimetres per unit of the pattern's dimensions (inches or mm). */
+const mmPerUnit = (pattern: Pattern) => (pattern.units === 'in' ? 25.4 : 1);
+
 export interface QualityInput {
   grey: Float32Array;
   width: number;
@@ -457,8 +460,7 @@ async function holeCandidates(q: QualityInput, H: Mat3): Promise<{ cands: { x: n
   const { small, factor } = q;
   const Hi = invertHomography(H);
   const S = q.referenceMm;
-  const k = q.pattern.units === 'in' ? 25.4 : 1;
-  const fams = q.pattern.families.map((f) => f.holeDiameter * k);
+  const fams = q.pattern.families.map((f) => f.holeDiameter * mmPerUnit(q.pattern));
   const cands: { x: number; y: number; dMm: number; area: number }[] = [];
   let atBorder = 0;
   for (const { left: l, top: t, widthPx: bw, heightPx: bh, area, x, y } of await darkBlobs(q)) {
@@ -781,6 +783,158 @@ function issue(code: PhotoIssueCode, message: string): PhotoQuality['issues'][nu
   return { code, message, advice: ISSUE_ADVICE[code] };
 }
 
+/** The mean of the four sides of the corners' quadrilateral, image px. */
+function meanSidePx(corners: Corners): number {
+  const sides = [0, 1, 2, 3].map((i) => Math.hypot(corners[(i + 1) % 4]![0] - corners[i]![0], corners[(i + 1) % 4]![1] - corners[i]![1]));
+  return sides.reduce((a, b) => a + b, 0) / 4;
+}
+
+/**
+ * A straight motion's length L (px) and unit direction d (image px) from the anisotropic part of the point spread:
+ * the median of the sampled holes' (Σxx − Σyy)/2 and Σxy (px²), or, with fewer than 5 holes (smeared past the
+ * candidate pass, or too small), the orientation mark's (H: target mm → image px). A box of length L along d has
+ * variance L²/12 along d and none across, so the anisotropic part's magnitude is L²/24. L = 0 and d = x when neither.
+ */
+function motionFromSpread(q: QualityInput, holes: HoleStats[], H: Mat3): { L: number; d: [number, number]; motion: PhotoQuality['measured']['motion'] } {
+  const spread: [number, number] | null = holes.length >= 5 ? [median(holes.map((x) => x.dev[0])), median(holes.map((x) => x.dev[1]))] : markSpread(q.grey, q.width, q.height, H, q.referenceMm);
+  if (!spread) return { L: 0, d: [1, 0], motion: null };
+  const [a, b] = spread;
+  const L = Math.sqrt(24 * Math.hypot(a, b));
+  const th = 0.5 * Math.atan2(b, a);
+  return { L, d: [Math.cos(th), Math.sin(th)], motion: { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) } };
+}
+
+/**
+ * The smear, L px along the unit direction d (image px), and its report: from the point spread (motionFromSpread),
+ * lengthened to what the target's edges across and along it say (edgeSmearPx2, a = L²/12 px²) where that is more
+ * than the holes or the mark give (their moments a flange around the bore or the paper's shading cut short).
+ */
+function smearOf(q: QualityInput, holes: HoleStats[], H: Mat3, good: EdgeStats[]): ReturnType<typeof motionFromSpread> {
+  const smear = motionFromSpread(q, holes, H);
+  const fromEdges = smear.motion ? edgeSmearPx2(good, smear.d) : null;
+  if (!fromEdges || !(Math.sqrt(12 * fromEdges) > smear.L)) return smear;
+  const L = Math.sqrt(12 * fromEdges);
+  return { L, d: smear.d, motion: { lengthPx: round(L, 10), directionDeg: smear.motion!.directionDeg } };
+}
+
+/**
+ * What the target's edges measure (at least 4 with a line spread): the defocus σ (px) as the median over the edges of
+ * their spread variance less the motion's L²/12·(n·d)², the edge spread (2.563 σ of the median variance, px), the
+ * clipped shares, the white's contrast over the black and its encoded level (0–255). thinningPx: how far the stroke
+ * reads thinner than printed at each edge, px, with riseIqPx the edges' 25–75 % rise (NaN with fewer than 2 outer
+ * and 2 inner edges).
+ */
+function edgeMeasures(good: EdgeStats[], holes: HoleStats[], L: number, d: [number, number]) {
+  const v = good.map((e) => e.varPx2 - ((L * L) / 12) * (e.n[0] * d[0] + e.n[1] * d[1]) ** 2);
+  const sigma2 = Math.max(0, median(v));
+  const outer = good.filter((e) => e.outer);
+  const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : 0);
+  const clipped = {
+    targetWhite: round(mean(outer.map((e) => e.whiteClipped))),
+    targetEdge: round(mean(outer.map((e) => e.edgeClipped))),
+    targetBlack: round(mean(good.map((e) => e.blackClipped))),
+    holesSurround: round(holes.length ? median(holes.map((x) => x.surroundClipped)) : 0),
+  };
+  const hiLin = median(good.map((e) => e.hiLin));
+  const loLin = median(good.map((e) => e.loLin));
+  // the stroke thinner than printed: its outer and inner edges both moved into the black (the corners' own
+  // placement, centreline or outer edge, cancels in the mean), over the edges' rise
+  let thinningPx = NaN;
+  let riseIqPx = NaN;
+  const shift = (o: boolean) => median(good.filter((e) => e.outer === o).map((e) => e.shiftPx));
+  if (good.filter((e) => e.outer).length >= 2 && good.filter((e) => !e.outer).length >= 2) {
+    thinningPx = -(shift(true) + shift(false)) / 2;
+    riseIqPx = median(good.map((e) => e.riseIqPx).filter(Number.isFinite));
+  }
+  const measured = {
+    defocusSigmaPx: round(Math.sqrt(sigma2), 100),
+    edgeSpreadPx: round(2.563 * Math.sqrt(median(good.map((e) => e.varPx2))), 100),
+    clipped,
+    targetContrast: loLin > 0 ? round(hiLin / loLin, 10) : null,
+    whiteLevel: round(255 * (hiLin <= 0.0031308 ? 12.92 * hiLin : 1.055 * hiLin ** (1 / 2.4) - 0.055), 10),
+  };
+  return { measured, thinningPx, riseIqPx };
+}
+
+/**
+ * The issues against LIMITS, in the report's order: blur, motion, over- and under-exposure, a small target, small
+ * holes, tilt, a target at the border, a bed beyond the frame (at the target's scale sCentre px per mm, or 2 holes
+ * or more cut by the border). thinningPx and riseIqPx as edgeMeasures gives them.
+ */
+function photoIssues(q: QualityInput, m: PhotoQuality['measured'], corners: Corners, s: { sidePx: number; sCentre: number; atBorder: number; thinningPx: number; riseIqPx: number }): PhotoQuality['issues'] {
+  const { width: w, height: h } = q;
+  const { sidePx, sCentre, atBorder, thinningPx, riseIqPx } = s;
+  const issues: PhotoQuality['issues'] = [];
+  if (m.defocusSigmaPx !== null && m.defocusSigmaPx > LIMITS.defocusSigmaPx) issues.push(issue('blurred', `The target's edges are spread over ${m.edgeSpreadPx!.toFixed(1)} px (out of focus by σ ${m.defocusSigmaPx.toFixed(1)} px; a sharp photo stays under ${LIMITS.defocusSigmaPx} px).`));
+  if (m.motion && m.motion.lengthPx > LIMITS.motionPx) issues.push(issue('motion-blur', `The photo is smeared by ${m.motion.lengthPx.toFixed(0)} px along ${m.motion.directionDeg.toFixed(0)}° from the photo's horizontal: the camera moved while it was taken.`));
+  const whiteClipped = !!m.clipped && m.clipped.targetWhite >= LIMITS.whiteClipShare;
+  const flat = whiteClipped && m.targetContrast !== null && m.targetContrast !== undefined && m.targetContrast < LIMITS.printContrast;
+  const thinned = whiteClipped && thinningPx > LIMITS.strokeThinning * riseIqPx;
+  if (m.clipped && (flat || thinned || m.clipped.holesSurround > LIMITS.holesClipShare)) {
+    const parts = [];
+    if (flat) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and reads only ${m.targetContrast!.toFixed(0)} times its black, where a print gives ${LIMITS.printContrast} or more`);
+    else if (thinned) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and its black frame reads ${thinningPx.toFixed(2)} px thinner than printed at each edge, ${Math.round((100 * thinningPx) / riseIqPx)} % of the edge's rise`);
+    if (m.clipped.holesSurround > LIMITS.holesClipShare) parts.push(`${Math.round(100 * m.clipped.holesSurround)} % of the bed around the holes is burnt out`);
+    issues.push(issue('overexposed', `Over-exposed: ${parts.join('; ')}.`));
+  }
+  if (m.whiteLevel !== null && m.whiteLevel < LIMITS.whiteLevel) issues.push(issue('underexposed', `Under-exposed: the target's white paper reads only ${m.whiteLevel.toFixed(0)} of 255.`));
+  if (sidePx < LIMITS.targetSidePx) issues.push(issue('target-small', `The target spans only ${sidePx.toFixed(0)} px a side; at least ${LIMITS.targetSidePx} px are wanted to set the scale.`));
+  if (m.holeDiameterPx! < LIMITS.holeDiameterPx) issues.push(issue('holes-small', `The smallest holes are only ${m.holeDiameterPx!.toFixed(1)} px across; at least ${LIMITS.holeDiameterPx} px are wanted to find their centres.`));
+  if (m.tiltDeg! > LIMITS.tiltDeg) issues.push(issue('tilted', `The camera looked at the bed ${m.tiltDeg!.toFixed(0)}° off straight down; up to ${LIMITS.tiltDeg}° is fine.`));
+  const margin = 0.05 * sidePx;
+  if (corners.some(([x, y]) => x < margin || y < margin || x > w - 1 - margin || y > h - 1 - margin)) issues.push(issue('target-cut', 'The target touches the border of the photo: its edge there cannot be measured.'));
+  const k = mmPerUnit(q.pattern);
+  const bw = q.pattern.bed.width * k * sCentre;
+  const bh = q.pattern.bed.height * k * sCentre;
+  const fits = (bw <= 1.05 * w && bh <= 1.05 * h) || (bw <= 1.05 * h && bh <= 1.05 * w);
+  if (!fits || atBorder >= 2) issues.push(issue('bed-cut', !fits ? `At the target's scale the bed is ${bw.toFixed(0)} × ${bh.toFixed(0)} px, larger than the ${w} × ${h} px photo: part of it is outside.` : `${atBorder} holes are cut by the border of the photo: the bed runs off it.`));
+  return issues;
+}
+
+/**
+ * The target's corners' 1σ per image axis, px: as the square stage measured it, or from the curve model (header):
+ * the outer edges' point scatter through the quadratic's end leverage 15.2/n, halved in variance for the stroke's
+ * centreline, over the frame's inner share.
+ */
+function cornerSigmaPx(q: QualityInput, good: EdgeStats[], sidePx: number): number {
+  const outerEdges = good.filter((e) => e.outer);
+  const edgeSd = Math.sqrt(median(outerEdges.map((e) => e.edgeSdPx ** 2)));
+  const nSide = Math.max(12, Math.min(200, Math.floor(sidePx / 2)));
+  return q.cornerSigmaPx ?? (edgeSd * Math.sqrt(15.2 / nSide)) / Math.SQRT2 / (1 - FRAME_FRACTION);
+}
+
+/**
+ * A hole position's predicted 2-D RMS error, mm: √2 × the per-axis centre σ from the rim's noise and shading
+ * (header), each family at its own size (sCentre px per mm at the target), weighted by its count; sb the
+ * Gaussian-equivalent line spread, px.
+ */
+function holePositionMm(q: QualityInput, holes: HoleStats[], sb: number, sCentre: number): number {
+  const k = mmPerUnit(q.pattern);
+  const dH = median(holes.map((x) => x.contrast));
+  const nH = median(holes.map((x) => x.noise));
+  const cH = median(holes.map((x) => x.corr));
+  // the surround brighter on one side by ΔL(θ) = G·r·cos θ moves the ramp's half-way crossing of a blurred rim by
+  // −σ_b·ΔL/(Φ'(z₀)·ΔL̄)·0.55 (z₀ = Φ⁻¹(0.55), Φ' = 0.396), i.e. 1.39·σ_b·G·r/ΔL̄ cos θ: a disc of radius r + a cos θ has
+  // its centroid moved by a. The floor sloping by G'·r moves it by (1 − 0.55)/0.396 = 1.14·σ_b·G'·r/ΔL̄. Per axis half
+  // the squares, over the sampled holes (each family alike, relative to r).
+  const shadeVarPx = holes.reduce((acc, x) => acc + ((1.39 * sb * x.slopeRatio) ** 2 + (1.14 * sb * x.slopeInRatio) ** 2) / 2, 0) / holes.length;
+  // the detector's centroid weighs each px by a ramp from 35 % to 75 % of the way from hole to surround: a px in
+  // that band (a ring 1.06 σ_b wide, at least 0.4 px for a pixel-sharp edge) moves the weight by δI / (0.4 ΔI);
+  // over the ring's 2πr·band px at distance r, of a total weight πr²: var = σ²·band / (0.16 π ΔI² r) per axis for
+  // noise independent from px to px, times 1 + 2ρ₁ + 2ρ₂ for noise correlated over neighbours (linear light)
+  const bandPx = Math.max(0.4, 1.06 * sb);
+  let num = 0;
+  let cnt = 0;
+  for (const fm of q.pattern.families) {
+    const rPx = (fm.holeDiameter * k * sCentre) / 2;
+    const varAxisPx = (nH * nH * cH * bandPx) / (0.16 * Math.PI * dH * dH * rPx) + shadeVarPx;
+    const nPos = fm.count.x * fm.count.y;
+    num += nPos * (varAxisPx / (sCentre * sCentre));
+    cnt += nPos;
+  }
+  return Math.sqrt(2 * (num / cnt));
+}
+
 /**
  * Measures the photo's quality and predicts the accuracy it can reach. Fast: a few hundred profiles on the target
  * and moments of up to 48 holes; the decode and the square search it needs are the analysis's own first steps.
@@ -805,133 +959,34 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   const S = q.referenceMm;
   const H = homographyFrom4(targetCornersMm(S), corners);
   const Hi = invertHomography(H);
-  const sides = [0, 1, 2, 3].map((i) => Math.hypot(corners[(i + 1) % 4]![0] - corners[i]![0], corners[(i + 1) % 4]![1] - corners[i]![1]));
-  const sidePx = sides.reduce((a, b) => a + b, 0) / 4;
+  const sidePx = meanSidePx(corners);
   measured.targetSidePx = round(sidePx, 10);
   const f = q.focalPx ?? (ASSUMED_FOCAL_35MM / Math.hypot(36, 24)) * Math.hypot(w, h);
   measured.tiltDeg = round(tiltFrom(H, w, h, f), 10);
 
-  // --- the target's edges -----------------------------------------------------------------------------------
   const edges = targetEdges(q, corners);
-  // --- the holes ----------------------------------------------------------------------------------------------
   const { cands, atBorder } = await holeCandidates(q, H);
   const holes = cands.map((c) => holeMoments(q, H, Hi, c)).filter((x): x is HoleStats => x !== null);
   measured.holesSampled = holes.length;
-
-  // motion: the anisotropic part of the point spread (L²/24 = its magnitude), the median over the sampled holes, or
-  // when too few are sampled (smeared past the candidate pass, or too small), from the target's orientation mark
-  let L = 0;
-  let d: [number, number] = [1, 0];
-  const spread: [number, number] | null = holes.length >= 5 ? [median(holes.map((x) => x.dev[0])), median(holes.map((x) => x.dev[1]))] : markSpread(q.grey, w, h, H, S);
-  if (spread) {
-    const [a, b] = spread;
-    L = Math.sqrt(24 * Math.hypot(a, b));
-    const th = 0.5 * Math.atan2(b, a);
-    d = [Math.cos(th), Math.sin(th)];
-    measured.motion = { lengthPx: round(L, 10), directionDeg: round((((th * 180) / Math.PI) % 180 + 180) % 180, 1) };
-  }
   const good = edges.filter((e) => Number.isFinite(e.varPx2));
-  // the target's edges across and along the smear tell its length too: where they say more than the holes or the
-  // mark (whose moments a flange around the bore or the paper's shading cut short), theirs is taken
-  const fromEdges = spread ? edgeSmearPx2(good, d) : null;
-  if (fromEdges && Math.sqrt(12 * fromEdges) > L) {
-    L = Math.sqrt(12 * fromEdges);
-    measured.motion = { lengthPx: round(L, 10), directionDeg: measured.motion!.directionDeg };
-  }
-  let thinningPx = NaN;
-  let riseIqPx = NaN;
-  const k = q.pattern.units === 'in' ? 25.4 : 1;
-  const smallestMm = Math.min(...q.pattern.families.map((fm) => fm.holeDiameter * k));
+  const { L, d, motion } = smearOf(q, holes, H, good);
+  if (motion) measured.motion = motion;
+  const smallestMm = Math.min(...q.pattern.families.map((fm) => fm.holeDiameter * mmPerUnit(q.pattern)));
   const sCentre = homographyScale(H, S / 2, S / 2); // px per mm at the target
   measured.holeDiameterPx = round(smallestMm * sCentre, 10);
+  let stroke = { thinningPx: NaN, riseIqPx: NaN };
   if (good.length >= 4) {
-    const v = good.map((e) => e.varPx2 - ((L * L) / 12) * (e.n[0] * d[0] + e.n[1] * d[1]) ** 2);
-    const sigma2 = Math.max(0, median(v));
-    measured.defocusSigmaPx = round(Math.sqrt(sigma2), 100);
-    measured.edgeSpreadPx = round(2.563 * Math.sqrt(median(good.map((e) => e.varPx2))), 100);
-    const outer = good.filter((e) => e.outer);
-    const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : 0);
-    measured.clipped = {
-      targetWhite: round(mean(outer.map((e) => e.whiteClipped))),
-      targetEdge: round(mean(outer.map((e) => e.edgeClipped))),
-      targetBlack: round(mean(good.map((e) => e.blackClipped))),
-      holesSurround: round(holes.length ? median(holes.map((x) => x.surroundClipped)) : 0),
-    };
-    const hiLin = median(good.map((e) => e.hiLin));
-    const loLin = median(good.map((e) => e.loLin));
-    measured.targetContrast = loLin > 0 ? round(hiLin / loLin, 10) : null;
-    // the stroke thinner than printed: its outer and inner edges both moved into the black (the corners' own
-    // placement, centreline or outer edge, cancels in the mean), over the edges' rise
-    const shift = (o: boolean) => median(good.filter((e) => e.outer === o).map((e) => e.shiftPx));
-    if (good.filter((e) => e.outer).length >= 2 && good.filter((e) => !e.outer).length >= 2) {
-      thinningPx = -(shift(true) + shift(false)) / 2;
-      riseIqPx = median(good.map((e) => e.riseIqPx).filter(Number.isFinite));
-    }
-    measured.whiteLevel = round(255 * (hiLin <= 0.0031308 ? 12.92 * hiLin : 1.055 * hiLin ** (1 / 2.4) - 0.055), 10);
+    const edgeMeasured = edgeMeasures(good, holes, L, d);
+    Object.assign(measured, edgeMeasured.measured);
+    stroke = edgeMeasured;
   }
+  issues.push(...photoIssues(q, measured, corners, { sidePx, sCentre, atBorder, ...stroke }));
 
-  // --- issues -------------------------------------------------------------------------------------------------
-  const m = measured;
-  if (m.defocusSigmaPx !== null && m.defocusSigmaPx > LIMITS.defocusSigmaPx) issues.push(issue('blurred', `The target's edges are spread over ${m.edgeSpreadPx!.toFixed(1)} px (out of focus by σ ${m.defocusSigmaPx.toFixed(1)} px; a sharp photo stays under ${LIMITS.defocusSigmaPx} px).`));
-  if (m.motion && m.motion.lengthPx > LIMITS.motionPx) issues.push(issue('motion-blur', `The photo is smeared by ${m.motion.lengthPx.toFixed(0)} px along ${m.motion.directionDeg.toFixed(0)}° from the photo's horizontal: the camera moved while it was taken.`));
-  const whiteClipped = !!m.clipped && m.clipped.targetWhite >= LIMITS.whiteClipShare;
-  const flat = whiteClipped && m.targetContrast !== null && m.targetContrast !== undefined && m.targetContrast < LIMITS.printContrast;
-  const thinned = whiteClipped && thinningPx > LIMITS.strokeThinning * riseIqPx;
-  if (m.clipped && (flat || thinned || m.clipped.holesSurround > LIMITS.holesClipShare)) {
-    const parts = [];
-    if (flat) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and reads only ${m.targetContrast!.toFixed(0)} times its black, where a print gives ${LIMITS.printContrast} or more`);
-    else if (thinned) parts.push(`the target's white is burnt out (${Math.round(100 * m.clipped.targetWhite)} % clipped) and its black frame reads ${thinningPx.toFixed(2)} px thinner than printed at each edge, ${Math.round((100 * thinningPx) / riseIqPx)} % of the edge's rise`);
-    if (m.clipped.holesSurround > LIMITS.holesClipShare) parts.push(`${Math.round(100 * m.clipped.holesSurround)} % of the bed around the holes is burnt out`);
-    issues.push(issue('overexposed', `Over-exposed: ${parts.join('; ')}.`));
-  }
-  if (m.whiteLevel !== null && m.whiteLevel < LIMITS.whiteLevel) issues.push(issue('underexposed', `Under-exposed: the target's white paper reads only ${m.whiteLevel.toFixed(0)} of 255.`));
-  if (sidePx < LIMITS.targetSidePx) issues.push(issue('target-small', `The target spans only ${sidePx.toFixed(0)} px a side; at least ${LIMITS.targetSidePx} px are wanted to set the scale.`));
-  if (m.holeDiameterPx! < LIMITS.holeDiameterPx) issues.push(issue('holes-small', `The smallest holes are only ${m.holeDiameterPx!.toFixed(1)} px across; at least ${LIMITS.holeDiameterPx} px are wanted to find their centres.`));
-  if (m.tiltDeg! > LIMITS.tiltDeg) issues.push(issue('tilted', `The camera looked at the bed ${m.tiltDeg!.toFixed(0)}° off straight down; up to ${LIMITS.tiltDeg}° is fine.`));
-  const margin = 0.05 * sidePx;
-  if (corners.some(([x, y]) => x < margin || y < margin || x > w - 1 - margin || y > h - 1 - margin)) issues.push(issue('target-cut', 'The target touches the border of the photo: its edge there cannot be measured.'));
-  const bw = q.pattern.bed.width * k * sCentre;
-  const bh = q.pattern.bed.height * k * sCentre;
-  const fits = (bw <= 1.05 * w && bh <= 1.05 * h) || (bw <= 1.05 * h && bh <= 1.05 * w);
-  if (!fits || atBorder >= 2) issues.push(issue('bed-cut', !fits ? `At the target's scale the bed is ${bw.toFixed(0)} × ${bh.toFixed(0)} px, larger than the ${w} × ${h} px photo: part of it is outside.` : `${atBorder} holes are cut by the border of the photo: the bed runs off it.`));
-
-  // --- prediction -------------------------------------------------------------------------------------------
-  if (!good.length || m.defocusSigmaPx === null) return done(null);
-  const sigma2 = m.defocusSigmaPx ** 2;
+  // prediction: the scale along each photo axis from the corners' σ over the side (header); the holes' positions
+  if (!good.length || measured.defocusSigmaPx === null) return done(null);
   // Gaussian-equivalent line spread averaged over directions (a box of L: L²/12 along d, 0 across, mean L²/24)
-  const sb = Math.sqrt(sigma2 + (L * L) / 24 + 1e-6);
-  // target: the corners' 1σ per axis, as the square stage measured it or from the curve model (header)
-  const outerEdges = good.filter((e) => e.outer);
-  const edgeSd = Math.sqrt(median(outerEdges.map((e) => e.edgeSdPx ** 2)));
-  const nSide = Math.max(12, Math.min(200, Math.floor(sidePx / 2)));
-  const cornerSd = q.cornerSigmaPx ?? (edgeSd * Math.sqrt(15.2 / nSide)) / Math.SQRT2 / (1 - FRAME_FRACTION);
-  const scalePpm = (1e6 * cornerSd) / sidePx;
-  // holes: per-axis centre variance from the rim; each family at its own size, weighted by its count
-  let positionMm = NaN;
-  if (holes.length) {
-    const dH = median(holes.map((x) => x.contrast));
-    const nH = median(holes.map((x) => x.noise));
-    const cH = median(holes.map((x) => x.corr));
-    // the surround brighter on one side by ΔL(θ) = G·r·cos θ moves the ramp's half-way crossing of a blurred rim by
-    // −σ_b·ΔL/(Φ'(z₀)·ΔL̄)·0.55 (z₀ = Φ⁻¹(0.55), Φ' = 0.396), i.e. 1.39·σ_b·G·r/ΔL̄ cos θ: a disc of radius r + a cos θ has
-    // its centroid moved by a. The floor sloping by G'·r moves it by (1 − 0.55)/0.396 = 1.14·σ_b·G'·r/ΔL̄. Per axis half
-    // the squares, over the sampled holes (each family alike, relative to r).
-    const shadeVarPx = holes.reduce((acc, x) => acc + ((1.39 * sb * x.slopeRatio) ** 2 + (1.14 * sb * x.slopeInRatio) ** 2) / 2, 0) / holes.length;
-    // the detector's centroid weighs each px by a ramp from 35 % to 75 % of the way from hole to surround: a px in
-    // that band (a ring 1.06 σ_b wide, at least 0.4 px for a pixel-sharp edge) moves the weight by δI / (0.4 ΔI);
-    // over the ring's 2πr·band px at distance r, of a total weight πr²: var = σ²·band / (0.16 π ΔI² r) per axis for
-    // noise independent from px to px, times 1 + 2ρ₁ + 2ρ₂ for noise correlated over neighbours (linear light)
-    const bandPx = Math.max(0.4, 1.06 * sb);
-    let num = 0;
-    let cnt = 0;
-    for (const fm of q.pattern.families) {
-      const rPx = (fm.holeDiameter * k * sCentre) / 2;
-      const varAxisPx = (nH * nH * cH * bandPx) / (0.16 * Math.PI * dH * dH * rPx) + shadeVarPx;
-      const nPos = fm.count.x * fm.count.y;
-      num += nPos * (varAxisPx / (sCentre * sCentre));
-      cnt += nPos;
-    }
-    positionMm = Math.sqrt(2 * (num / cnt));
-  }
+  const sb = Math.sqrt(measured.defocusSigmaPx ** 2 + (L * L) / 24 + 1e-6);
+  const scalePpm = (1e6 * cornerSigmaPx(q, good, sidePx)) / sidePx;
+  const positionMm = holes.length ? holePositionMm(q, holes, sb, sCentre) : NaN;
   return done(Number.isFinite(positionMm) ? { positionMm: round(positionMm, 1e5), scalePpm: round(scalePpm, 10) } : null);
 }
