@@ -122,6 +122,8 @@ interface SquareSource {
   corners: Corners;
   square: DetectMeta['square'];
   precision: Pick<Points['reference'], 'cornerSigmaPx' | 'cornerCovPx2'>;
+  /** Null for a square found in the photo, which was already told from a cut target's mark; absent for given corners. */
+  cutMark?: null;
 }
 
 /** What the square search found, for the meta (px, to 0.001 px). */
@@ -146,13 +148,14 @@ async function locateSquare({ photo, small, factor }: PhotoPlanes, pattern: Patt
   // the orientation mark of a target cut by the border is found whole as a small filled square: not the reference
   const cutMark = sq ? cutTargetMark(grey, w, h, sq.corners) : null;
   if (!sq || cutMark) {
-    const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq ? sq.corners : null, referenceMm: opts.referenceMm, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
+    const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq ? sq.corners : null, referenceMm: opts.referenceMm, pattern, cutMark, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}) });
     await opts.onQuality?.(quality);
     const cut = cutMark ? quality.issues.find((i) => i.code === 'target-cut') : undefined;
     throw new VisionInputError('no-square', cut ? `No whole reference square was found. ${cut.message} ${cut.advice}` : 'No reference square was found in the photo. Make sure the whole printed square is in view, flat and not glared.');
   }
   return {
     corners: sq.corners,
+    cutMark: null,
     square: detectedSquareMeta(sq),
     precision: { cornerSigmaPx: Math.max(1e-4, sq.cornerSigmaPx), ...(sq.cornerCovPx2 ? { cornerCovPx2: sq.cornerCovPx2 } : {}) },
   };
@@ -253,7 +256,7 @@ export async function detectFromImage(bytes: Buffer, pattern: Pattern, opts: Det
   const H = targetToImage(S, sq.corners);
   clock.lap('square');
   const { small } = planes;
-  const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq.corners, referenceMm: S, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), ...(sq.square.cornerSigmaPx !== undefined ? { cornerSigmaPx: sq.square.cornerSigmaPx } : {}) });
+  const quality = await measureQuality({ grey, width: w, height: h, small, factor, corners: sq.corners, referenceMm: S, pattern, ...(photo.focalPx ? { focalPx: photo.focalPx } : {}), ...(sq.square.cornerSigmaPx !== undefined ? { cornerSigmaPx: sq.square.cornerSigmaPx } : {}), ...(sq.cutMark === null ? { cutMark: null } : {}) });
   await opts.onQuality?.(quality);
   clock.lap('quality');
 

@@ -34,7 +34,7 @@
  */
 import type { Pattern, PhotoIssueCode, PhotoQuality } from '@/lib/geometry/contract';
 import { ISSUE_ADVICE } from './advice';
-import { cutTargetMark } from './cut-target';
+import { cutTargetMark, type CutTargetMark } from './cut-target';
 import { markSpread } from './mark-spread';
 import { getCv, matFromGrey, type CvMat } from './cv';
 import { applyH, homographyFrom4, invertHomography, homographyScale, type Mat3 } from '@/lib/geometry/homography';
@@ -95,6 +95,8 @@ export interface QualityInput {
   focalPx?: number;
   /** 1σ of each corner per image axis, px, as the square stage measured it (absent for corners given by hand). */
   cornerSigmaPx?: number;
+  /** Whether `corners` are a cut target's orientation mark (cut-target.ts), when the caller has looked already; else looked for here. */
+  cutMark?: CutTargetMark | null;
 }
 
 interface EdgeStats {
@@ -951,7 +953,7 @@ export async function measureQuality(q: QualityInput): Promise<PhotoQuality> {
   }
   const corners = q.corners;
   // a target cut by the border can leave its orientation mark whole, found as a small filled square
-  const mark = cutTargetMark(q.grey, w, h, corners);
+  const mark = q.cutMark !== undefined ? q.cutMark : cutTargetMark(q.grey, w, h, corners);
   if (mark) {
     issues.push(issue('target-cut', mark.offPhoto ? 'Only the target\'s corner mark is whole in the photo: the border cuts through the target.' : 'Only the target\'s corner mark was found whole: its frame is hidden or glared.'));
     return done(null);
