@@ -34,6 +34,21 @@ export function panelCornerShift(w: number, h: number, dx: number, dy: number, r
   return m;
 }
 
+/** Where a panel stands: sits off and should be reseated, in place, or not placed (too few of its holes seen). */
+export type PanelState = 'reseat' | 'in-place' | 'not-placed';
+
+/**
+ * A panel found at (dx, dy) mm, turned `rotationDeg`, with 1σ `uncertaintyMm`: `not-placed` when that 1σ is as large
+ * as the panel; `reseat` when its corners (of `outline`, mm; without one its centre, the least they can move) move
+ * more than half the tightest tolerance `minTolMm` and more than twice its 1σ; else `in-place`.
+ */
+export function panelState(q: Pick<Report['panels'][number], 'dx' | 'dy' | 'rotationDeg' | 'uncertaintyMm'>, outline: { widthMm: number; heightMm: number } | null, minTolMm: number): PanelState {
+  const [w, h] = outline ? [outline.widthMm, outline.heightMm] : [0, 0];
+  if (outline && q.uncertaintyMm >= Math.hypot(w, h)) return 'not-placed';
+  const s = panelCornerShift(w, h, q.dx, q.dy, (q.rotationDeg * Math.PI) / 180);
+  return s > 0.5 * minTolMm && s > 2 * q.uncertaintyMm ? 'reseat' : 'in-place';
+}
+
 /** What would settle the overall size when the reference cannot. */
 const SETTLE = 'a larger reference target, or a measured distance between two far-apart positions, would settle it';
 
@@ -135,9 +150,7 @@ export function bedVerdict(positions: Report['positions'], panels: Report['panel
   const minTol = Math.min(...lat.families.map((f) => f.toleranceMm));
   const reseat = panels.filter((q, j) => {
     const P = lat.panels[j]!;
-    if (P.implicit || q.uncertaintyMm >= Math.hypot(P.width, P.height)) return false;
-    const s = panelCornerShift(P.width, P.height, q.dx, q.dy, (q.rotationDeg * Math.PI) / 180);
-    return s > 0.5 * minTol && s > 2 * q.uncertaintyMm;
+    return !P.implicit && panelState(q, { widthMm: P.width, heightMm: P.height }, minTol) === 'reseat';
   });
   const shapeOut = shape?.verdict === 'out';
   const close = hasForm ? formMarginal : marginal;

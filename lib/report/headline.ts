@@ -8,7 +8,7 @@
  */
 import type { Comparison } from '@/lib/geometry/compare';
 import type { Report } from '@/lib/geometry/contract';
-import { panelCornerShift, shapeSentence, verdictSentence, type LengthWriter } from '@/lib/geometry/verdict';
+import { panelState, shapeSentence, verdictSentence, type LengthWriter, type PanelState } from '@/lib/geometry/verdict';
 import { formatLength, type LengthUnit } from './units';
 import { BED_VERDICT_WORD, reportCounts } from './words';
 
@@ -25,15 +25,12 @@ export function panelStates(report: Pick<Report, 'positions' | 'panels' | 'patte
   const minTol = Math.min(...report.positions.map((p) => p.toleranceMm));
   return new Map(report.panels.map((q): [string, PanelState] => {
     const o = outline.find((p) => p.id === q.id);
-    const [w, h] = o ? [o.width * k, o.height * k] : [0, 0];
-    if (o && q.uncertaintyMm >= Math.hypot(w, h)) return [q.id, 'not-placed'];
     if (!o && outline.length === 0 && report.panels.length === 1 && q.id === 'bed') return [q.id, 'in-place'];
-    const s = panelCornerShift(w, h, q.dx, q.dy, (q.rotationDeg * Math.PI) / 180);
-    return [q.id, s > 0.5 * minTol && s > 2 * q.uncertaintyMm ? 'reseat' : 'in-place'];
+    return [q.id, panelState(q, o ? { widthMm: o.width * k, heightMm: o.height * k } : null, minTol)];
   }));
 }
 
-export type PanelState = 'reseat' | 'in-place' | 'not-placed';
+export type { PanelState };
 
 /** The panels that sit off and should be reseated (panelStates), in the report's order. */
 export function panelsToReseat(report: Pick<Report, 'positions' | 'panels' | 'pattern'>): string[] {
